@@ -1,0 +1,253 @@
+"""The boundary: plain dicts in, plain dicts out. The only module the browser calls.
+
+Functions
+---------
+handle(method, params_json) -> str     JSON dispatcher used by the page's worker
+distribution(params) -> dict           alpha-fraction curves and a table at one pH
+version_info() -> dict                 package and protocol versions
+
+Every function validates its input and raises :mod:`acidscape.errors` classes;
+:func:`handle` turns them into ``{"ok": false, "error": {"type", "message", "field"}}``
+so that no traceback crosses into JavaScript.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from collections.abc import Callable
+
+from . import __version__
+from .errors import AcidscapeError, InputError, UnknownIdError
+from .speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions
+
+#: Version of the JSON message protocol between page and worker.
+PROTOCOL_VERSION = 1
+
+#: Largest pH grid a curve request may ask for.
+MAX_POINTS = 5001
+
+
+def version_info() -> dict:
+    """Package and protocol versions, for the page footer and reports."""
+    return {"acidscape": __version__, "protocol": PROTOCOL_VERSION}
+
+
+def _number(params: dict, key: str, default=None, *, lo=None, hi=None, field=None) -> float:
+    field = field or key
+    value = params.get(key, default)
+    if value is None:
+        raise InputError(f"{field} is required", field=field)
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        if isinstance(value, str):
+            try:
+                value = float(value.strip())
+            except ValueError:
+                raise InputError(f"{field} must be a number, got {value!r}", field=field) from None
+        else:
+            raise InputError(f"{field} must be a number, got {value!r}", field=field)
+    value = float(value)
+    if not math.isfinite(value):
+        raise InputError(f"{field} must be a finite number, got {value!r}", field=field)
+    if lo is not None and value < lo:
+        raise InputError(f"{field} = {value:g} is below the allowed minimum {lo:g}", field=field)
+    if hi is not None and value > hi:
+        raise InputError(f"{field} = {value:g} is above the allowed maximum {hi:g}", field=field)
+    return value
+
+
+def _integer(params: dict, key: str, default=None, *, lo=None, hi=None) -> int:
+    value = params.get(key, default)
+    if isinstance(value, bool) or not isinstance(value, int):
+        if isinstance(value, float) and value.is_integer():
+            value = int(value)
+        else:
+            raise InputError(f"{key} must be a whole number, got {value!r}", field=key)
+    if lo is not None and value < lo:
+        raise InputError(f"{key} = {value} is below the allowed minimum {lo}", field=key)
+    if hi is not None and value > hi:
+        raise InputError(f"{key} = {value} is above the allowed maximum {hi}", field=key)
+    return value
+
+
+def generic_species_names(n: int, z0: int, base: str = "A") -> list[str]:
+    """Names H_nA .. A for a custom acid, with charges written after the formula.
+
+    >>> generic_species_names(2, 0)
+    ['H2A', 'HA-', 'A-2']
+    >>> generic_species_names(1, 1, "B")
+    ['HB+', 'B']
+    """
+    names = []
+    for i in range(n + 1):
+        h = n - i
+        z = z0 - i
+        hpart = "" if h == 0 else ("H" if h == 1 else f"H{h}")
+        zpart = "" if z == 0 else (("+" if z > 0 else "-") + (str(abs(z)) if abs(z) > 1 else ""))
+        names.append(f"{hpart}{base}{zpart}")
+    return names
+
+
+def _acid_from_params(params: dict) -> tuple[str, list[str], list[int], tuple[float, ...]]:
+    """Resolve ``{"system": id}`` or ``{"pKa": [...], "charge_most_protonated": z}``."""
+    if params.get("system"):
+        from .library import get_system
+
+        system_id = params["system"]
+        if not isinstance(system_id, str):
+            raise InputError(f"system must be a library id (text), got {system_id!r}", field="system")
+        try:
+            system = get_system(system_id)
+        except UnknownIdError as exc:
+            exc.field = "system"
+            raise
+        names = [s.formula for s in system.species]
+        charges = [s.charge for s in system.species]
+        return system.name, names, charges, tuple(system.pKa_25C)
+    pKa = params.get("pKa")
+    if pKa is None:
+        raise InputError("pKa is required: give a list of 1 to %d numbers" % MAX_STEPS, field="pKa")
+    if not isinstance(pKa, (list, tuple)):
+        raise InputError(f"pKa must be a list of numbers, got {pKa!r}", field="pKa")
+    pKa = _check_pKa(pKa)
+    if any(b < a for a, b in zip(pKa, pKa[1:])):
+        raise InputError(
+            "pKa values must be listed in increasing order (step 1 first), got "
+            + ", ".join(f"{v:g}" for v in pKa),
+            field="pKa",
+        )
+    z0 = _integer(params, "charge_most_protonated", 0, lo=-10, hi=10)
+    name = params.get("name") or "custom acid"
+    if not isinstance(name, str):
+        raise InputError(f"name must be text, got {name!r}", field="name")
+    names = generic_species_names(len(pKa), z0)
+    charges = [z0 - i for i in range(len(pKa) + 1)]
+    return name[:80], names, charges, pKa
+
+
+def distribution(params: dict) -> dict:
+    """Alpha-fraction curves of one acid and a species table at one pH (25 °C, I = 0).
+
+    Parameters (keys of ``params``)
+    -------------------------------
+    system : str, optional
+        Library id; otherwise ``pKa`` [-] and ``charge_most_protonated`` [-] describe the acid.
+    total_M : float
+        Total concentration of the acid [mol/L] (default 1e-3)
+    pH : float
+        pH of the species table [-] (default 7)
+    pH_min, pH_max : float
+        Range of the curve [-] (default 0..14)
+    points : int
+        Number of pH values in the curve (default 561)
+
+    Returns
+    -------
+    dict
+        ``{"name", "pKa", "species": [{"name", "charge"}], "curve": {"pH": [...],
+        "fractions": [[...] per species]}, "table": {"pH", "rows": [{"name", "charge",
+        "fraction", "concentration_M", "log10_concentration_M"}]}}``
+
+    Examples
+    --------
+    >>> out = distribution({"pKa": [2.148, 7.198, 12.35], "total_M": 1e-3, "pH": 7.198, "points": 3})
+    >>> [r["name"] for r in out["table"]["rows"]]
+    ['H3A', 'H2A-', 'HA-2', 'A-3']
+    >>> round(out["table"]["rows"][1]["fraction"], 3)
+    0.5
+    """
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    name, names, charges, pKa = _acid_from_params(params)
+    total = _number(params, "total_M", 1e-3, lo=0.0, hi=20.0)
+    pH = _number(params, "pH", 7.0, lo=-2.0, hi=16.0)
+    pH_min = _number(params, "pH_min", 0.0, lo=-2.0, hi=16.0)
+    pH_max = _number(params, "pH_max", 14.0, lo=-2.0, hi=16.0)
+    if pH_max <= pH_min:
+        raise InputError(f"pH_max ({pH_max:g}) must be above pH_min ({pH_min:g})", field="pH_max")
+    points = _integer(params, "points", 561, lo=2, hi=MAX_POINTS)
+    step = (pH_max - pH_min) / (points - 1)
+    grid = [pH_min + k * step for k in range(points)]
+    grid[-1] = pH_max
+    fractions = alpha_curve(grid, pKa)
+    alphas = alpha_fractions(pH, pKa)
+    rows = []
+    for nm, z, a in zip(names, charges, alphas):
+        c = total * a
+        rows.append(
+            {
+                "name": nm,
+                "charge": z,
+                "fraction": a,
+                "concentration_M": c,
+                "log10_concentration_M": math.log10(c) if c > 0 else None,
+            }
+        )
+    return {
+        "name": name,
+        "pKa": list(pKa),
+        "total_M": total,
+        "species": [{"name": nm, "charge": z} for nm, z in zip(names, charges)],
+        "curve": {"pH": grid, "fractions": fractions},
+        "table": {"pH": pH, "rows": rows},
+    }
+
+
+def _methods() -> dict[str, Callable[[dict], dict]]:
+    methods: dict[str, Callable[[dict], dict]] = {
+        "version": lambda params: version_info(),
+        "distribution": distribution,
+    }
+    try:  # modules that land later register here
+        from . import library
+
+        methods["systems"] = lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()}
+    except ImportError:  # pragma: no cover - during bootstrap only
+        pass
+    return methods
+
+
+def handle(method: str, params_json: str) -> str:
+    """Dispatch one request from the page; always returns a JSON string.
+
+    Parameters
+    ----------
+    method : str
+        Name of the call (``"distribution"``, ``"solve"``, ``"systems"``, ``"version"``...)
+    params_json : str
+        Its parameters as a JSON object
+
+    Returns
+    -------
+    str
+        ``{"ok": true, "result": ...}`` or ``{"ok": false, "error": {"type", "message", "field"}}``
+
+    Examples
+    --------
+    >>> json.loads(handle("distribution", '{"pKa": []}'))["error"]["field"]
+    'pKa'
+    >>> json.loads(handle("nope", "{}"))["error"]["type"]
+    'UnknownIdError'
+    """
+    try:
+        try:
+            params = json.loads(params_json) if params_json else {}
+        except (TypeError, ValueError) as exc:
+            raise InputError(f"request parameters are not valid JSON: {exc}", field=None) from None
+        if not isinstance(params, dict):
+            raise InputError("request parameters must be a JSON object", field=None)
+        methods = _methods()
+        fn = methods.get(method)
+        if fn is None:
+            raise UnknownIdError(
+                f"unknown method {method!r}; known: {', '.join(sorted(methods))}", field=None
+            )
+        result = fn(params)
+        return json.dumps({"ok": True, "result": result}, allow_nan=False)
+    except AcidscapeError as exc:
+        return json.dumps({"ok": False, "error": exc.to_dict()})
+    except (ValueError, OverflowError, ZeroDivisionError, TypeError, KeyError) as exc:
+        # A bug or an unforeseen input: report it plainly rather than crash the worker.
+        return json.dumps(
+            {"ok": False, "error": {"type": type(exc).__name__, "message": str(exc), "field": None}}
+        )
