@@ -193,10 +193,115 @@ def distribution(params: dict) -> dict:
     }
 
 
+def _species_rows(eq, sources) -> list[dict]:
+    rows = []
+    for st, src in zip(eq.systems, sources):
+        comp = st.component
+        masses = [getattr(sp, "molar_mass_g_per_mol", None) for sp in getattr(src, "species", ())] or [None] * len(
+            comp.species
+        )
+        for name, z, a, lg, mm in zip(comp.species, comp.charges, st.fractions, st.log10_gammas, masses):
+            c = st.total_M * a
+            g = 10.0**lg
+            rows.append(
+                {
+                    "name": name,
+                    "system": comp.key,
+                    "charge": z,
+                    "concentration_M": c,
+                    "activity_M": g * c,
+                    "activity_coefficient": g,
+                    "fraction": a,
+                    "molar_mass_g_per_mol": mm,
+                }
+            )
+    return rows
+
+
+def solve(scenario: dict) -> dict:
+    """Equilibrium (or fixed-pH speciation) of a water described by a scenario.
+
+    See :mod:`acidscape.scenario` for the keys. The result holds ``pH``,
+    ``temperature_C``, ``ionic_strength_M``, ``pKw``, ``species`` (each system's
+    species from most to least protonated with ``name``, ``system``, ``charge``,
+    ``concentration_M``, ``activity_M``, ``activity_coefficient``, ``fraction``),
+    ``charge_balance_residual_eq_per_L``, ``warnings``, plus ``systems``, ``ions``,
+    ``water_ions`` and ``trail`` (each charge-balance term).
+
+    Examples
+    --------
+    A 1 mmol/L acetic acid solution, ideal activities (Goldberg et al. 2002 pKa 4.756):
+    the textbook quadratic gives pH 3.91 (Harris, Quantitative Chemical Analysis, ch. 9).
+
+    >>> out = solve({"activity": "ideal", "systems": [{"id": "acetic", "total": 1, "unit": "mmol/L"}]})
+    >>> round(out["pH"], 2)
+    3.91
+    """
+    from .scenario import read_scenario
+    from .solver import charge_balance_terms, equilibrate
+
+    parsed = read_scenario(scenario)
+    eq = equilibrate(
+        parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
+        I_fixed=parsed.I_fixed, pH=parsed.pH,
+    )
+    warnings = list(parsed.warnings)
+    from .activity import VALIDITY_I_M
+
+    limit = VALIDITY_I_M.get(parsed.model)
+    if limit is not None and eq.I > limit:
+        warnings.append(
+            f"ionic strength {eq.I:.3g} mol/L exceeds the {parsed.model} model's usual validity "
+            f"(about {limit:g} mol/L); activities are less reliable"
+        )
+    systems_out = []
+    for st in eq.systems:
+        systems_out.append({
+            "id": st.component.key,
+            "name": st.component.name,
+            "total_M": st.total_M,
+            "pKa": list(st.component.pKa),
+            "pKa_conditional": list(st.pKa_mixed),
+            "open_to_gas": st.component.fixed_first_M is not None,
+        })
+    ions_out = []
+    for ion, lg in eq.ions:
+        g = 10.0**lg
+        ions_out.append({"name": ion.name, "id": ion.key, "charge": ion.charge, "concentration_M": ion.conc_M,
+                         "activity_M": g * ion.conc_M, "activity_coefficient": g})
+    gH, gOH = 10.0**eq.log10_gamma_H, 10.0**eq.log10_gamma_OH
+    result = {
+        "pH": eq.pH,
+        "pH_was_given": eq.pH_was_given,
+        "temperature_C": parsed.temperature_C,
+        "activity": parsed.model,
+        "ionic_strength_M": eq.I,
+        "ionic_strength_source": parsed.I_source,
+        "pKw": eq.pKw,
+        "species": _species_rows(eq, parsed.sources),
+        "systems": systems_out,
+        "ions": ions_out,
+        "water_ions": [
+            {"name": "H+", "charge": 1, "concentration_M": eq.H_M, "activity_M": gH * eq.H_M,
+             "activity_coefficient": gH},
+            {"name": "OH-", "charge": -1, "concentration_M": eq.OH_M, "activity_M": gOH * eq.OH_M,
+             "activity_coefficient": gOH},
+        ],
+        "charge_balance_residual_eq_per_L": eq.residual_eq_per_L,
+        "trail": charge_balance_terms(eq),
+        "iterations": eq.iterations,
+        "warnings": warnings,
+    }
+    if parsed.CO2_partial_pressure_atm is not None:
+        result["CO2_partial_pressure_atm"] = parsed.CO2_partial_pressure_atm
+    return result
+
+
 def _methods() -> dict[str, Callable[[dict], dict]]:
     methods: dict[str, Callable[[dict], dict]] = {
         "version": lambda params: version_info(),
         "distribution": distribution,
+        "solve": solve,
     }
     try:  # modules that land later register here
         from . import library

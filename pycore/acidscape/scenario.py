@@ -1,0 +1,291 @@
+"""Reading a scenario (the JSON a user, the page or the CLI gives) into solver inputs.
+
+A scenario is a dict with these keys (all optional except as noted):
+
+``temperature_C``        0..100, default 25
+``activity``             "ideal", "davies" (default) or "extended-debye-huckel"
+``ionic_strength_M``     hold the ionic strength fixed [mol/L]
+``tds_mg_per_L``         estimate a fixed ionic strength from total dissolved solids
+``conductance_uS_per_cm`` estimate a fixed ionic strength from specific conductance (25 °C)
+``pH``                   speciate at this pH instead of solving the charge balance
+``systems``              list of ``{"id", "total", "unit"}`` or ``{"custom": {...}, "total", "unit"}``
+``ions``                 list of ``{"id", "total", "unit"}`` or ``{"custom": {...}, "total", "unit"}``
+``gas``                  ``{"CO2_partial_pressure_atm": p}``: open to CO2 at that partial pressure
+
+Functions
+---------
+read_scenario(scenario) -> Parsed    validated inputs for :func:`acidscape.solver.equilibrate`
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from . import activity, library, temperature, water
+from .constants import T0
+from .errors import InputError, UnknownIdError
+from .solver import Component, Ion
+from .speciation import MAX_STEPS, _check_pKa
+from .units import to_molar
+
+#: At most this many acid-base systems in one water.
+MAX_SYSTEMS = 40
+#: At most this many strong ions in one water.
+MAX_IONS = 40
+#: Largest total accepted for one system or ion [mol/L].
+MAX_TOTAL_M = 5.0
+
+KNOWN_KEYS = {
+    "temperature_C", "activity", "ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm",
+    "pH", "systems", "ions", "gas", "measured", "name", "note", "version",
+}
+
+
+@dataclass
+class CustomSystem:
+    """A user-defined acid (duck-types the unit-relevant parts of AcidSystem)."""
+
+    id: str
+    name: str
+    mass_basis_g_per_mol: float | None
+    as_formula: None = None
+    as_g_per_mol: None = None
+    species: tuple = ()
+
+
+@dataclass
+class CustomIon:
+    """A user-defined strong ion."""
+
+    id: str
+    name: str
+    charge: int
+    molar_mass_g_per_mol: float | None
+    as_formula: None = None
+    as_g_per_mol: None = None
+
+
+@dataclass
+class Parsed:
+    """Validated scenario."""
+
+    T: float
+    temperature_C: float
+    model: str
+    I_fixed: float | None
+    I_source: str
+    pH: float | None
+    components: list[Component]
+    ions: list[Ion]
+    sources: list  # library objects (or Custom*) per component, same order
+    ion_sources: list
+    pKw: float
+    CO2_partial_pressure_atm: float | None
+    warnings: list[str] = field(default_factory=list)
+
+
+def _num(value, field_name: str, *, lo=None, hi=None) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise InputError(f"{field_name} must be a number, got {value!r}", field=field_name)
+    v = float(value)
+    if not math.isfinite(v):
+        raise InputError(f"{field_name} must be a finite number, got {value!r}", field=field_name)
+    if lo is not None and v < lo:
+        raise InputError(f"{field_name} = {v:g} is below the allowed minimum {lo:g}", field=field_name)
+    if hi is not None and v > hi:
+        raise InputError(f"{field_name} = {v:g} is above the allowed maximum {hi:g}", field=field_name)
+    return v
+
+
+def _text(value, field_name: str, max_len: int = 80) -> str:
+    if not isinstance(value, str) or not value.strip():
+        raise InputError(f"{field_name} must be non-empty text, got {value!r}", field=field_name)
+    return value.strip()[:max_len]
+
+
+def _entry_list(scenario: dict, key: str, limit: int) -> list:
+    entries = scenario.get(key, [])
+    if entries is None:
+        return []
+    if not isinstance(entries, list):
+        raise InputError(f"{key} must be a list, got {type(entries).__name__}", field=key)
+    if len(entries) > limit:
+        raise InputError(f"{key} holds {len(entries)} entries; at most {limit} are allowed", field=key)
+    for i, e in enumerate(entries):
+        if not isinstance(e, dict):
+            raise InputError(f"{key}[{i}] must be an object, got {e!r}", field=f"{key}[{i}]")
+    return entries
+
+
+def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
+    path = f"systems[{i}]"
+    unit = entry.get("unit", "mol/L")
+    if "custom" in entry:
+        c = entry["custom"]
+        if not isinstance(c, dict):
+            raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
+        name = _text(c.get("name", "custom acid"), f"{path}.custom.name")
+        pKa_raw = c.get("pKa")
+        if not isinstance(pKa_raw, list):
+            raise InputError(f"{path}.custom.pKa must be a list of 1 to {MAX_STEPS} numbers, got {pKa_raw!r}",
+                             field=f"{path}.custom.pKa")
+        pKa = _check_pKa(pKa_raw, f"{path}.custom.pKa")
+        if any(b < a for a, b in zip(pKa, pKa[1:])):
+            raise InputError(f"{path}.custom.pKa must increase with step", field=f"{path}.custom.pKa")
+        z0 = c.get("charge_most_protonated", 0)
+        if isinstance(z0, bool) or not isinstance(z0, int) or not -10 <= z0 <= 10:
+            raise InputError(f"{path}.custom.charge_most_protonated must be a whole number -10..10, got {z0!r}",
+                             field=f"{path}.custom.charge_most_protonated")
+        mm = c.get("molar_mass_g_per_mol")
+        if mm is not None:
+            mm = _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
+        src = CustomSystem(id=f"custom-{i}", name=name, mass_basis_g_per_mol=mm)
+        from .api import generic_species_names
+
+        names = tuple(generic_species_names(len(pKa), z0))
+        total = to_molar(entry.get("total", 0.0), unit, src, f"{path}.total")
+        if total > MAX_TOTAL_M:
+            raise InputError(f"{path}.total is {total:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
+                             field=f"{path}.total")
+        if abs(T - 298.15) > 0.5:
+            warnings.append(f"{name}: custom pKa values are used as given (no temperature correction)")
+        charges = tuple(z0 - k for k in range(len(pKa) + 1))
+        comp = Component(key=src.id, name=name, species=names, charges=charges, pKa=pKa, total_M=total)
+        return comp, src
+    sid = entry.get("id")
+    if not isinstance(sid, str):
+        raise InputError(f"{path}.id must be a library id (text) or give {path}.custom", field=f"{path}.id")
+    try:
+        system = library.get_system(sid)
+    except UnknownIdError as exc:
+        exc.field = f"{path}.id"
+        raise
+    total = to_molar(entry.get("total", 0.0), unit, system, f"{path}.total")
+    if total > MAX_TOTAL_M:
+        raise InputError(f"{path}.total is {total:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
+                         field=f"{path}.total")
+    pKa, notes = temperature.pKa_at_with_notes(system, T)
+    warnings.extend(notes)
+    comp = Component(
+        key=system.id, name=system.name,
+        species=tuple(s.formula for s in system.species),
+        charges=tuple(s.charge for s in system.species),
+        pKa=tuple(pKa), total_M=total,
+        ion_sizes=tuple(s.ion_size_A for s in system.species),
+    )
+    return comp, system
+
+
+def _read_ion(entry: dict, i: int):
+    path = f"ions[{i}]"
+    unit = entry.get("unit", "mol/L")
+    if "custom" in entry:
+        c = entry["custom"]
+        if not isinstance(c, dict):
+            raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
+        name = _text(c.get("name", "custom ion"), f"{path}.custom.name")
+        z = c.get("charge")
+        if isinstance(z, bool) or not isinstance(z, int) or z == 0 or not -6 <= z <= 6:
+            raise InputError(f"{path}.custom.charge must be a non-zero whole number -6..6, got {z!r}",
+                             field=f"{path}.custom.charge")
+        mm = c.get("molar_mass_g_per_mol")
+        if mm is not None:
+            mm = _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
+        src = CustomIon(id=f"custom-ion-{i}", name=name, charge=z, molar_mass_g_per_mol=mm)
+        conc = to_molar(entry.get("total", 0.0), unit, src, f"{path}.total")
+        if conc > MAX_TOTAL_M:
+            raise InputError(f"{path}.total is {conc:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
+                             field=f"{path}.total")
+        return Ion(key=src.id, name=name, charge=z, conc_M=conc), src
+    iid = entry.get("id")
+    if not isinstance(iid, str):
+        raise InputError(f"{path}.id must be an ion id (text) or give {path}.custom", field=f"{path}.id")
+    try:
+        ion = library.get_ion(iid)
+    except UnknownIdError as exc:
+        exc.field = f"{path}.id"
+        raise
+    conc = to_molar(entry.get("total", 0.0), unit, ion, f"{path}.total")
+    if conc > MAX_TOTAL_M:
+        raise InputError(f"{path}.total is {conc:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
+                         field=f"{path}.total")
+    return Ion(key=ion.id, name=ion.formula, charge=ion.charge, conc_M=conc, ion_size_A=ion.ion_size_A), ion
+
+
+def read_scenario(scenario: dict) -> Parsed:
+    """Validate a scenario and turn it into solver inputs.
+
+    Raises :class:`acidscape.errors.InputError` or :class:`UnknownIdError` naming the field.
+    """
+    if not isinstance(scenario, dict):
+        raise InputError("the scenario must be a JSON object", field=None)
+    warnings: list[str] = []
+    unknown = sorted(set(scenario) - KNOWN_KEYS)
+    if unknown:
+        warnings.append("ignored unknown scenario keys: " + ", ".join(unknown))
+    t_C = _num(scenario.get("temperature_C", 25.0), "temperature_C", lo=0.0, hi=100.0)
+    T = t_C + T0
+    model = scenario.get("activity", "davies")
+    if model not in activity.MODELS:
+        raise UnknownIdError(f"activity = {model!r} is not a model; choose one of {', '.join(activity.MODELS)}",
+                             field="activity")
+    I_fixed = None
+    I_source = "composition"
+    given = [k for k in ("ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm") if scenario.get(k) is not None]
+    if len(given) > 1:
+        raise InputError(f"give only one of ionic_strength_M, tds_mg_per_L, conductance_uS_per_cm (got {', '.join(given)})",
+                         field=given[1])
+    if given:
+        key = given[0]
+        if key == "ionic_strength_M":
+            I_fixed = _num(scenario[key], key, lo=0.0, hi=6.0)
+            I_source = "given"
+        elif key == "tds_mg_per_L":
+            I_fixed = activity.ionic_strength_from_tds(_num(scenario[key], key, lo=0.0, hi=300000.0))
+            I_source = "estimated from TDS"
+        else:
+            I_fixed = activity.ionic_strength_from_conductance(_num(scenario[key], key, lo=0.0, hi=500000.0))
+            I_source = "estimated from specific conductance"
+    pH = scenario.get("pH")
+    if pH is not None:
+        pH = _num(pH, "pH", lo=-1.0, hi=15.0)
+    components, sources = [], []
+    for i, entry in enumerate(_entry_list(scenario, "systems", MAX_SYSTEMS)):
+        comp, src = _read_system(entry, i, T, warnings)
+        components.append(comp)
+        sources.append(src)
+    ions, ion_sources = [], []
+    for i, entry in enumerate(_entry_list(scenario, "ions", MAX_IONS)):
+        ion, src = _read_ion(entry, i)
+        ions.append(ion)
+        ion_sources.append(src)
+    pCO2 = None
+    gas = scenario.get("gas")
+    if gas is not None:
+        if not isinstance(gas, dict):
+            raise InputError("gas must be an object like {\"CO2_partial_pressure_atm\": 0.00042}", field="gas")
+        if gas.get("CO2_partial_pressure_atm") is not None:
+            pCO2 = _num(gas["CO2_partial_pressure_atm"], "gas.CO2_partial_pressure_atm", lo=0.0, hi=10.0)
+            H2CO3 = 10.0 ** temperature.log10_KH_CO2(T) * pCO2
+            idx = next((k for k, c in enumerate(components) if c.key == "carbonate"), None)
+            if idx is None:
+                system = library.get_system("carbonate")
+                pKa = temperature.pKa_at(system, T)
+                components.append(Component(
+                    key="carbonate", name=system.name,
+                    species=tuple(s.formula for s in system.species),
+                    charges=tuple(s.charge for s in system.species), pKa=tuple(pKa), total_M=0.0,
+                    ion_sizes=tuple(s.ion_size_A for s in system.species), fixed_first_M=H2CO3))
+                sources.append(system)
+            else:
+                c = components[idx]
+                if c.total_M > 0:
+                    warnings.append("carbonate total is set by the CO2 partial pressure (open system); "
+                                    "the total given was not used")
+                components[idx] = Component(key=c.key, name=c.name, species=c.species, charges=c.charges,
+                                            pKa=c.pKa, total_M=0.0, ion_sizes=c.ion_sizes, fixed_first_M=H2CO3)
+    pKw = water.pKw(T)
+    return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
+                  components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
+                  CO2_partial_pressure_atm=pCO2, warnings=warnings)

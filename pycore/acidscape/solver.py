@@ -1,0 +1,368 @@
+"""The charge balance of a water and the pH at which it closes.
+
+A water holds acid-base systems (each a total concentration spread over its
+protonation states), strong ions and water's own H+ and OH-. Electroneutrality,
+
+.. math::
+
+    f(\\mathrm{pH}) = [H^+] - [OH^-] + \\sum_{ions} z_j c_j
+        + \\sum_{systems} C_T \\sum_i z_i\\,\\alpha_i(\\mathrm{pH}) = 0,
+
+fixes the pH. With pH = -log10 a(H+) (the meter's pH), each step's
+thermodynamic constant becomes a *mixed* constant for the concentration ratio,
+
+.. math::
+
+    \\mathrm{p}K'_{a} = \\mathrm{p}K_a + \\log_{10}\\gamma_{base} - \\log_{10}\\gamma_{acid},
+    \\qquad [H^+] = a_{H^+}/\\gamma_{H^+}, \\qquad [OH^-] = K_w / (a_{H^+}\\gamma_{OH^-}),
+
+(Stumm & Morgan [1]_ §3.5, from memory). At fixed ionic strength ``f`` falls
+strictly as pH rises (every alpha-weighted charge and [H+] - [OH-] do), so one
+root lies in any bracket where ``f`` changes sign. The root is found by Newton
+steps on the analytic derivative, kept inside a shrinking bracket and replaced
+by bisection whenever a step leaves it (a safeguarded Newton method, [2]_): it
+cannot diverge. Ionic strength, when not given, is iterated to self-consistency
+around that solve.
+
+An open system holds the neutral species of one system (H2CO3*) at a fixed
+concentration (from a gas partial pressure), and its total follows the pH.
+
+Functions and classes
+---------------------
+Component, Ion                 inputs of :func:`equilibrate`
+equilibrate(...) -> Equilibrium  the pH (or given pH), ionic strength and every concentration
+charge_balance_terms(...)       each term of the balance at one pH (the calculation trail)
+
+References
+----------
+.. [1] W. Stumm, J. J. Morgan, Aquatic Chemistry, 3rd ed., Wiley, 1996.
+.. [2] W. H. Press, S. A. Teukolsky, W. T. Vetterling, B. P. Flannery, Numerical Recipes,
+   3rd ed., Cambridge University Press, 2007, §9.4 (rtsafe).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from .activity import log10_gamma
+from .errors import ConvergenceError, InputError
+
+_LN10 = math.log(10.0)
+#: Bracket of the pH search: wide enough for pH -1..15 with every allowed total.
+PH_BRACKET = (-4.0, 19.0)
+#: Convergence tolerance on pH [-] and relative tolerance on ionic strength.
+PH_TOL = 1e-10
+I_RTOL = 1e-10
+#: Default Kielland ion sizes of H+ and OH- [Å] (Kielland 1937, J. Am. Chem. Soc. 59, 1675; from memory).
+ION_SIZE_H = 9.0
+ION_SIZE_OH = 3.5
+
+
+@dataclass(frozen=True)
+class Component:
+    """An acid-base system in a water.
+
+    ``pKa`` are thermodynamic (I = 0) values at the water's temperature. If
+    ``fixed_first_M`` is set, the most protonated species is held at that
+    concentration [mol/L] (open system) and ``total_M`` is ignored.
+    """
+
+    key: str
+    name: str
+    species: tuple[str, ...]
+    charges: tuple[int, ...]
+    pKa: tuple[float, ...]
+    total_M: float
+    ion_sizes: tuple[float | None, ...] = ()
+    fixed_first_M: float | None = None
+
+
+@dataclass(frozen=True)
+class Ion:
+    """A strong (non-reacting) ion."""
+
+    key: str
+    name: str
+    charge: int
+    conc_M: float
+    ion_size_A: float | None = None
+
+
+@dataclass
+class SystemState:
+    """One component at the solution."""
+
+    component: Component
+    total_M: float
+    pKa_mixed: tuple[float, ...]
+    fractions: list[float]
+    log10_gammas: list[float]
+
+
+@dataclass
+class Equilibrium:
+    """Result of :func:`equilibrate`."""
+
+    pH: float
+    I: float
+    pKw: float
+    T: float
+    model: str
+    H_M: float
+    OH_M: float
+    log10_gamma_H: float
+    log10_gamma_OH: float
+    systems: list[SystemState]
+    ions: list[tuple[Ion, float]]  # (ion, log10 gamma)
+    residual_eq_per_L: float
+    iterations: int
+    pH_was_given: bool
+    warnings: list[str] = field(default_factory=list)
+
+
+class _Gamma:
+    """Cache of log10 gamma by (charge, ion size) at one I, T and model."""
+
+    __slots__ = ("I", "T", "model", "cache")
+
+    def __init__(self, I: float, T: float, model: str):
+        self.I, self.T, self.model, self.cache = I, T, model, {}
+
+    def __call__(self, z: int, a: float | None) -> float:
+        if z == 0 or self.model == "ideal":
+            return 0.0
+        key = (z, a)
+        v = self.cache.get(key)
+        if v is None:
+            v = log10_gamma(z, self.I, self.T, self.model, a)
+            self.cache[key] = v
+        return v
+
+
+def _mixed_constants(comp: Component, gamma: _Gamma) -> tuple[list[float], list[float]]:
+    sizes = comp.ion_sizes or (None,) * len(comp.charges)
+    lg = [gamma(z, a) for z, a in zip(comp.charges, sizes)]
+    pKm = [pk + lg[j + 1] - lg[j] for j, pk in enumerate(comp.pKa)]
+    return pKm, lg
+
+
+def _system_terms(pH: float, cum: list[float], charges: tuple[int, ...], total: float, fixed_first: float | None):
+    """Charge [eq/L] of one system at pH, its pH derivative, and its alpha list."""
+    logs = [i * pH - s for i, s in enumerate(cum)]
+    if fixed_first is not None:
+        # concentrations relative to the fixed most-protonated species
+        terms = [math.exp((x - logs[0]) * _LN10) for x in logs]
+        q = sum(z * t for z, t in zip(charges, terms))
+        dq = sum(z * i * t for i, (z, t) in enumerate(zip(charges, terms)))
+        s = sum(terms)
+        return fixed_first * q, fixed_first * dq * _LN10, [t / s for t in terms], fixed_first * s
+    m = max(logs)
+    terms = [math.exp((x - m) * _LN10) for x in logs]
+    s = sum(terms)
+    alphas = [t / s for t in terms]
+    zbar = sum(z * a for z, a in zip(charges, alphas))
+    ibar = sum(i * a for i, a in enumerate(alphas))
+    i2bar = sum(i * i * a for i, a in enumerate(alphas))
+    # d(zbar)/dpH = -ln10 * var(i)  (z_i = z0 - i)
+    dz = -_LN10 * (i2bar - ibar * ibar)
+    return total * zbar, total * dz, alphas, total
+
+
+def _balance(pH, prepared, strong_charge, lgH, lgOH, pKw):
+    """f(pH) and df/dpH for the prepared systems."""
+    H = math.exp(-pH * _LN10 - lgH * _LN10)
+    OH = math.exp((pH - pKw - lgOH) * _LN10)
+    f = H - OH + strong_charge
+    df = -_LN10 * (H + OH)
+    for cum, charges, total, fixed in prepared:
+        q, dq, _, _ = _system_terms(pH, cum, charges, total, fixed)
+        f += q
+        df += dq
+    return f, df
+
+
+def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[float, int]:
+    lo, hi = PH_BRACKET
+    flo, _ = _balance(lo, prepared, strong_charge, lgH, lgOH, pKw)
+    fhi, _ = _balance(hi, prepared, strong_charge, lgH, lgOH, pKw)
+    if not (flo > 0 > fhi):
+        raise ConvergenceError(
+            f"the charge balance does not change sign between pH {lo:g} and {hi:g} "
+            f"(f = {flo:.3g} and {fhi:.3g} eq/L): the composition is outside what the solver accepts",
+            field="systems",
+        )
+    x = min(max(guess, lo), hi)
+    for it in range(1, 200):
+        f, df = _balance(x, prepared, strong_charge, lgH, lgOH, pKw)
+        if f == 0.0:
+            return x, it
+        if f > 0:
+            lo = x
+        else:
+            hi = x
+        step_ok = df < 0
+        if step_ok:
+            xn = x - f / df
+            step_ok = lo < xn < hi
+        if not step_ok:
+            xn = 0.5 * (lo + hi)
+        if abs(xn - x) < PH_TOL or (hi - lo) < PH_TOL:
+            return xn, it
+        x = xn
+    raise ConvergenceError("the pH search did not converge in 200 steps", field=None)
+
+
+def equilibrate(
+    components: list[Component],
+    ions: list[Ion],
+    *,
+    T: float,
+    pKw: float,
+    model: str = "davies",
+    I_fixed: float | None = None,
+    pH: float | None = None,
+    pH_guess: float = 7.0,
+    max_outer: int = 100,
+) -> Equilibrium:
+    """Solve the charge balance (or speciate at a given pH) with consistent activities.
+
+    Parameters
+    ----------
+    components : list of Component
+        Acid-base systems; their ``pKa`` are thermodynamic at ``T``
+    ions : list of Ion
+        Strong ions
+    T : float
+        Temperature [K]
+    pKw : float
+        Ion product of water at ``T`` [-]
+    model : str
+        Activity model, one of :data:`acidscape.activity.MODELS`
+    I_fixed : float, optional
+        Ionic strength held fixed [mol/L]; if None it is computed from the composition
+    pH : float, optional
+        If given, speciate at this pH [-] instead of solving for it
+    pH_guess : float
+        Starting point of the search [-]
+
+    Returns
+    -------
+    Equilibrium
+        pH, ionic strength, concentrations, activity coefficients and the charge-balance
+        residual [eq/L] at the answer
+    """
+    strong_charge = sum(ion.charge * ion.conc_M for ion in ions)
+    # Starting ionic strength: strong ions plus each system in its most protonated state.
+    if I_fixed is not None:
+        I = I_fixed
+    else:
+        I = 0.5 * sum(ion.charge**2 * ion.conc_M for ion in ions)
+    x = pH if pH is not None else pH_guess
+    total_iters = 0
+    for outer in range(max_outer):
+        gamma = _Gamma(I, T, model)
+        lgH = gamma(1, ION_SIZE_H)
+        lgOH = gamma(-1, ION_SIZE_OH)
+        prepared = []
+        mixed = []
+        for comp in components:
+            pKm, lg = _mixed_constants(comp, gamma)
+            cum = [0.0]
+            for v in pKm:
+                cum.append(cum[-1] + v)
+            prepared.append((cum, comp.charges, comp.total_M, comp.fixed_first_M))
+            mixed.append((pKm, lg))
+        if pH is None:
+            x, its = _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, x)
+            total_iters += its
+        # species at x
+        states = []
+        I_new = 0.0
+        for comp, (cum, charges, total, fixed), (pKm, lg) in zip(components, prepared, mixed):
+            _, _, alphas, tot = _system_terms(x, cum, charges, total, fixed)
+            states.append(SystemState(comp, tot, tuple(pKm), alphas, lg))
+            I_new += sum(z * z * a for z, a in zip(charges, alphas)) * tot
+        H = 10.0 ** (-x - lgH)
+        OH = 10.0 ** (x - pKw - lgOH)
+        I_new = 0.5 * (I_new + H + OH + sum(ion.charge**2 * ion.conc_M for ion in ions))
+        if I_fixed is not None or model == "ideal":
+            if I_fixed is None:
+                I = I_new
+            break
+        if abs(I_new - I) <= I_RTOL * max(I_new, 1e-14):
+            I = I_new
+            break
+        I = I_new
+    else:
+        raise ConvergenceError(
+            f"ionic strength did not settle in {max_outer} iterations (last {I:.6g} mol/L)", field=None
+        )
+    # Final consistent state at the settled I.
+    gamma = _Gamma(I, T, model)
+    lgH = gamma(1, ION_SIZE_H)
+    lgOH = gamma(-1, ION_SIZE_OH)
+    states = []
+    f = 0.0
+    prepared = []
+    for comp in components:
+        pKm, lg = _mixed_constants(comp, gamma)
+        cum = [0.0]
+        for v in pKm:
+            cum.append(cum[-1] + v)
+        prepared.append((cum, comp.charges, comp.total_M, comp.fixed_first_M))
+        states.append((comp, pKm, lg))
+    if pH is None and model != "ideal" and I_fixed is None:
+        x, its = _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, x)
+        total_iters += its
+    out_states = []
+    for (comp, pKm, lg), (cum, charges, total, fixed) in zip(states, prepared):
+        q, _, alphas, tot = _system_terms(x, cum, charges, total, fixed)
+        f += q
+        out_states.append(SystemState(comp, tot, tuple(pKm), alphas, lg))
+    H = 10.0 ** (-x - lgH)
+    OH = 10.0 ** (x - pKw - lgOH)
+    f += H - OH + strong_charge
+    ion_states = [(ion, gamma(ion.charge, ion.ion_size_A)) for ion in ions]
+    return Equilibrium(
+        pH=x, I=I, pKw=pKw, T=T, model=model, H_M=H, OH_M=OH, log10_gamma_H=lgH, log10_gamma_OH=lgOH,
+        systems=out_states, ions=ion_states, residual_eq_per_L=f, iterations=total_iters,
+        pH_was_given=pH is not None,
+    )
+
+
+def charge_balance_terms(eq: Equilibrium) -> list[dict]:
+    """Each term of the charge balance at the answer, for the calculation trail.
+
+    Returns
+    -------
+    list of dict
+        ``{"term", "charge", "concentration_M", "charge_eq_per_L"}`` per species with a
+        charge, H+ and OH- first; their sum is the residual [eq/L]
+    """
+    rows = [
+        {"term": "H+", "charge": 1, "concentration_M": eq.H_M, "charge_eq_per_L": eq.H_M},
+        {"term": "OH-", "charge": -1, "concentration_M": eq.OH_M, "charge_eq_per_L": -eq.OH_M},
+    ]
+    for ion, _ in eq.ions:
+        if ion.charge:
+            rows.append(
+                {"term": ion.name, "charge": ion.charge, "concentration_M": ion.conc_M,
+                 "charge_eq_per_L": ion.charge * ion.conc_M}
+            )
+    for st in eq.systems:
+        for name, z, a in zip(st.component.species, st.component.charges, st.fractions):
+            if z:
+                c = st.total_M * a
+                rows.append({"term": name, "system": st.component.key, "charge": z,
+                             "concentration_M": c, "charge_eq_per_L": z * c})
+    return rows
+
+
+def check_total(value: float, field: str) -> float:
+    """Validate a total concentration [mol/L]: finite, 0..20."""
+    if not math.isfinite(value) or value < 0:
+        raise InputError(f"{field} = {value!r} must be a finite, non-negative concentration", field=field)
+    if value > 20.0:
+        raise InputError(f"{field} = {value:g} mol/L is above the 20 mol/L this model accepts", field=field)
+    return value
