@@ -1,0 +1,191 @@
+"""Bokeh plot templates for the Acidscape page, written once at build time.
+
+The page never runs Python Bokeh. This module lays out each plot (axes, grid,
+legend, hover, colours) and serialises it with :func:`bokeh.embed.json_item`;
+``site/plot.js`` embeds the items with BokehJS and then only replaces the data
+of the NAMED models listed below. Their names are the contract with plot.js:
+
+=========================  ==========================================================
+model name                 what the page puts in it
+=========================  ==========================================================
+``fraction_src``           ColumnDataSource: ``xs`` (pH lists), ``ys`` (alpha
+                           fraction lists), ``label`` (species formula), ``slot``
+                           (0..n, picks the colour)
+``fraction_marker``        Span: ``location`` = the pH of the species table
+``logc_src``               ColumnDataSource as ``fraction_src`` with ``ys`` =
+                           log10 of concentration [log10(mol/L)]
+``logc_marker``            Span: ``location`` = the pH of the species table
+``fraction_legend``,       Legend: ``ncols`` fitted to the width of the page
+``logc_legend``
+``logc_y``                 Range1d: ``start``/``end`` follow the total concentration
+=========================  ==========================================================
+
+Functions
+---------
+distribution_plot() -> figure        alpha fraction vs pH, one line per species
+log_concentration_plot() -> figure   log10 concentration vs pH, one line per species
+templates() -> dict                  both, as json_item dicts, plus the palette
+
+The colours are Acidscape's own pick: thirteen hues (enough for the twelve
+dissociation steps the core accepts) ordered so that neighbours in a
+protonation ladder contrast in hue and lightness.
+"""
+
+from __future__ import annotations
+
+from bokeh.embed import json_item
+from bokeh.models import (
+    ColumnDataSource,
+    HoverTool,
+    Legend,
+    LegendItem,
+    LinearColorMapper,
+    Range1d,
+    Span,
+)
+from bokeh.plotting import figure
+from bokeh.transform import transform
+
+#: One colour per protonation state, most protonated first (Acidscape's own choice).
+PALETTE = (
+    "#0f6e7a",  # deep teal
+    "#d9822b",  # amber
+    "#6b3fa0",  # violet
+    "#2f9e44",  # leaf green
+    "#c2255c",  # raspberry
+    "#1c5fb8",  # cobalt
+    "#8a6d1f",  # ochre
+    "#4d4d4d",  # graphite
+    "#e0559a",  # pink
+    "#3bb3c3",  # cyan
+    "#7a9a01",  # olive
+    "#9c4221",  # brick
+    "#5a67d8",  # indigo
+)
+
+_INK = "#1f2a30"
+_GRID = "#e3e8eb"
+_MARKER = "#8a949b"
+_FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, sans-serif"
+
+
+def _empty_source(name: str) -> ColumnDataSource:
+    return ColumnDataSource(data={"xs": [], "ys": [], "label": [], "slot": []}, name=name)
+
+
+def _base_figure(y_label: str, y_range: Range1d) -> figure:
+    p = figure(
+        height=330,
+        sizing_mode="stretch_width",
+        x_range=Range1d(0, 14, bounds=(-2, 16)),
+        y_range=y_range,
+        x_axis_label="pH",
+        y_axis_label=y_label,
+        tools="xpan,xwheel_zoom,box_zoom,reset,save",
+        active_scroll=None,
+        toolbar_location="right",
+        background_fill_color="#ffffff",
+        border_fill_color="#ffffff",
+        outline_line_color=None,
+        min_border_left=56,
+    )
+    p.toolbar.logo = None
+    p.toolbar.autohide = True
+    p.toolbar_inner = True  # float over the frame instead of reserving a strip
+    for axis in (p.xaxis, p.yaxis):
+        axis.axis_label_text_font = _FONT
+        axis.axis_label_text_font_style = "normal"
+        axis.axis_label_text_font_size = "13px"
+        axis.axis_label_text_color = _INK
+        axis.major_label_text_font = _FONT
+        axis.major_label_text_font_size = "12px"
+        axis.major_label_text_color = _INK
+        axis.axis_line_color = _MARKER
+        axis.major_tick_line_color = _MARKER
+        axis.minor_tick_line_color = None
+    p.xaxis.ticker.desired_num_ticks = 14
+    p.grid.grid_line_color = _GRID
+    return p
+
+
+def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: str, legend_name: str) -> None:
+    mapper = LinearColorMapper(palette=list(PALETTE), low=-0.5, high=len(PALETTE) - 0.5)
+    lines = p.multi_line(
+        xs="xs",
+        ys="ys",
+        source=source,
+        line_width=2.6,
+        line_color=transform("slot", mapper),
+        line_alpha=0.95,
+        hover_line_width=4.0,
+        hover_line_color=transform("slot", mapper),
+        hover_line_alpha=1.0,
+    )
+    legend = Legend(
+        name=legend_name,
+        items=[LegendItem(label={"field": "label"}, renderers=[lines])],
+        location="center_left",
+        orientation="vertical",
+        ncols=4,
+        label_text_font=_FONT,
+        label_text_font_size="12px",
+        label_text_color=_INK,
+        background_fill_alpha=0.0,
+        border_line_color=None,
+        click_policy="hide",
+        spacing=14,
+        padding=4,
+        glyph_width=22,
+    )
+    p.add_layout(legend, "below")
+    p.add_tools(
+        HoverTool(
+            renderers=[lines],
+            line_policy="interp",
+            tooltips=[("species", "@label"), ("pH", "$snap_x{0.00}"), (y_name, "$snap_y{" + y_format + "}")],
+        )
+    )
+
+
+def _marker(name: str) -> Span:
+    return Span(
+        name=name,
+        location=7.0,
+        dimension="height",
+        line_color=_MARKER,
+        line_dash=[6, 4],
+        line_width=1.6,
+    )
+
+
+def distribution_plot() -> figure:
+    """Alpha fraction [-] of each species against pH, with the table's pH marked."""
+    p = _base_figure("fraction of total", Range1d(-0.02, 1.02, bounds=(-0.05, 1.05)))
+    p.yaxis.ticker.desired_num_ticks = 6
+    _species_lines(p, _empty_source("fraction_src"), "0.0000", "fraction", "fraction_legend")
+    p.add_layout(_marker("fraction_marker"))
+    return p
+
+
+def log_concentration_plot() -> figure:
+    """log10 of each species' concentration [log10(mol/L)] against pH."""
+    p = _base_figure("log₁₀ concentration (mol/L)", Range1d(-12, 0, name="logc_y"))
+    _species_lines(p, _empty_source("logc_src"), "0.00", "log₁₀ c", "logc_legend")
+    p.add_layout(_marker("logc_marker"))
+    return p
+
+
+def templates() -> dict:
+    """Every plot as a ``json_item`` dict, keyed by the name plot.js looks up."""
+    return {
+        "distribution": json_item(distribution_plot()),
+        "log_concentration": json_item(log_concentration_plot()),
+        "palette": list(PALETTE),
+    }
+
+
+if __name__ == "__main__":  # quick look: python build_scripts/plots.py > plots.json
+    import json
+    import sys
+
+    json.dump(templates(), sys.stdout)

@@ -1,0 +1,163 @@
+// Section "Species of one acid across pH": reads the form, asks the core for the distribution,
+// draws the plots and the table. Keeps the last good result on screen when an input is bad.
+// Other sections (water equilibrium, titration, dosing...) follow the same shape: a
+// mount<Name>({py, view, plots, status, ...}) function returning {refresh}.
+
+import { CoreError } from "./py.js";
+import { prettyFormula } from "./format.js";
+
+const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
+const INTEGER = /^[+-]?\d+$/;
+const DEBOUNCE_MS = 120;
+const LOG_SPAN = 12; // decades shown on the log-concentration axis
+
+// Core error fields -> ids of the inputs they concern.
+const FIELD_INPUT = {
+  system: "acid-select",
+  pKa: "pka-input",
+  charge_most_protonated: "charge-input",
+  total_M: "total-input",
+  pH: "ph-input",
+};
+
+function inputForField(field) {
+  if (!field) return "form";
+  const base = String(field).replace(/\[\d+\]$/, "");
+  return FIELD_INPUT[base] || "form";
+}
+
+function cleanNumberText(text) {
+  return String(text).trim().replace(/\u2212/g, "-"); // accept a typographic minus
+}
+
+function parseNumber(text, what) {
+  const t = cleanNumberText(text);
+  if (!t) return { error: `Enter ${what}.` };
+  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.` };
+  return { value: Number(t) };
+}
+
+function parsePkaList(text) {
+  const t = String(text).trim();
+  if (!t) return { error: "Enter at least one pKa value, e.g. 4.76 (for several, separate with commas)." };
+  const parts = t.split(",").map(cleanNumberText);
+  const values = [];
+  for (const [i, part] of parts.entries()) {
+    if (!part) return { error: `Value ${i + 1} of the list is empty; separate pKa values with single commas.` };
+    if (!NUMBER.test(part)) return { error: `"${part}" (value ${i + 1}) is not a number.` };
+    values.push(Number(part));
+  }
+  return { value: values };
+}
+
+function parseCharge(text) {
+  const t = cleanNumberText(text);
+  if (!t) return { error: "Enter the charge of the most protonated form, e.g. 0 or 1." };
+  if (!INTEGER.test(t)) return { error: `"${t}" is not a whole number; a charge is e.g. -1, 0 or 1.` };
+  return { value: Number(t) };
+}
+
+/**
+ * Mount the section.
+ *
+ * @param {object} deps
+ * @param {{call: (method: string, params?: object) => Promise<any>}} deps.py  the core
+ * @param {import("./view.js").DistributionView} deps.view  its DOM
+ * @param {{palette: string[], fraction: object, logc: object, setLogRange: Function}} deps.plots
+ * @param {import("./view.js").StatusView} deps.status  page status
+ * @param {{id: string, name: string, species: {charge: number}[], pKa_25C: number[]}[]|null} deps.systems
+ *        library acids, or null when the core offers none
+ * @returns {{refresh: () => Promise<boolean>}}  refresh resolves true when a result was drawn
+ */
+export function mountDistribution({ py, view, plots, status, systems }) {
+  const library = new Map((systems || []).map((s) => [s.id, s]));
+  let latest = 0;
+  let timer = null;
+
+  if (library.size) {
+    view.setAcidOptions([...library.values()]);
+    const first = [...library.keys()].find((id) => id.startsWith("phosph")) ?? [...library.keys()][0];
+    fillFromLibrary(first);
+  }
+
+  function fillFromLibrary(id) {
+    const system = library.get(id);
+    if (!system) return;
+    const pKa = system.pKa_25C ?? system.pKa ?? [];
+    view.setAcid(id, { pka: pKa.join(", "), charge: String(system.species?.[0]?.charge ?? 0) });
+  }
+
+  function collect() {
+    const raw = view.read();
+    const errors = {};
+    const params = {};
+    if (raw.acid !== "custom" && library.has(raw.acid)) {
+      params.system = raw.acid;
+    } else {
+      const pKa = parsePkaList(raw.pka);
+      if (pKa.error) errors["pka-input"] = pKa.error;
+      else params.pKa = pKa.value;
+      const charge = parseCharge(raw.charge);
+      if (charge.error) errors["charge-input"] = charge.error;
+      else params.charge_most_protonated = charge.value;
+    }
+    const total = parseNumber(raw.total, "the total concentration in mol/L, e.g. 0.001");
+    if (total.error) errors["total-input"] = total.error;
+    else params.total_M = total.value;
+    const pH = parseNumber(raw.ph, "a pH, e.g. 7");
+    if (pH.error) errors["ph-input"] = pH.error;
+    else params.pH = pH.value;
+    return { params, errors };
+  }
+
+  function draw(result) {
+    const labels = result.species.map((s) => prettyFormula(s.name));
+    const total = result.total_M;
+    const logc = result.curve.fractions.map((row) =>
+      row.map((f) => (f > 0 && total > 0 ? Math.log10(total * f) : Number.NaN)),
+    );
+    plots.fraction.setLines(result.curve.pH, labels, result.curve.fractions);
+    plots.logc.setLines(result.curve.pH, labels, logc);
+    plots.fraction.setMarker(result.table.pH);
+    plots.logc.setMarker(result.table.pH);
+    if (total > 0) {
+      const top = Math.ceil(Math.log10(total) + 0.8);
+      plots.setLogRange(top - LOG_SPAN, top);
+    }
+    view.renderTable(result.name, result.table, plots.palette);
+    status.markDrawn();
+  }
+
+  async function refresh() {
+    const { params, errors } = collect();
+    const seq = ++latest;
+    if (Object.keys(errors).length) {
+      view.showErrors(errors); // the last good result stays on screen
+      return false;
+    }
+    view.setBusy(true);
+    try {
+      const result = await py.call("distribution", params);
+      if (seq !== latest) return false; // a newer request is on its way
+      view.showErrors({});
+      draw(result);
+      return true;
+    } catch (error) {
+      if (seq !== latest) return false;
+      const target = error instanceof CoreError ? inputForField(error.field) : "form";
+      view.showErrors({ [target]: error.message });
+      return false;
+    } finally {
+      if (seq === latest) view.setBusy(false);
+    }
+  }
+
+  view.bindChange((what) => {
+    if (what === "acid") fillFromLibrary(view.read().acid);
+    if (what === "values" && view.read().acid !== "custom") view.setAcid("custom");
+    clearTimeout(timer);
+    timer = setTimeout(refresh, what === "acid" ? 0 : DEBOUNCE_MS);
+  });
+
+  return { refresh };
+}

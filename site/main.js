@@ -1,0 +1,40 @@
+// Composition root: start Python, embed the plots, mount the sections, go offline-capable.
+
+import { startPython } from "./py.js";
+import { embedPlots } from "./plot.js";
+import { AboutView, DistributionView, StatusView } from "./view.js";
+import { mountDistribution } from "./distribution.js";
+
+const status = new StatusView(document);
+const about = new AboutView(document);
+
+fetch("./manifest.json")
+  .then((r) => (r.ok ? r.json() : null))
+  .then((manifest) => about.render(manifest?.versions))
+  .catch(() => about.render(null));
+
+const py = startPython({ onProgress: (step) => status.progress(step) });
+const plots = embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });
+
+try {
+  const [versions, plotHandles] = await Promise.all([py.ready, plots]);
+  about.render(versions);
+  const library = await py.call("systems").then((r) => r.systems, () => null);
+  const distribution = mountDistribution({
+    py,
+    view: new DistributionView(document),
+    plots: plotHandles,
+    status,
+    systems: library,
+  });
+  status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
+  await distribution.refresh();
+} catch (error) {
+  status.fatal(String(error?.message || error));
+}
+
+if ("serviceWorker" in navigator && window.isSecureContext) {
+  navigator.serviceWorker.register("./sw.js", { scope: "./" }).catch((error) => {
+    console.warn("offline copy unavailable:", error.message);
+  });
+}

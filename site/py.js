@@ -1,0 +1,94 @@
+// The page's side of the worker protocol: starts worker.js and turns its messages into Promises.
+//
+// Protocol version 1 (every message carries v: 1):
+//   page -> worker   {v, id, method, params}
+//   worker -> page   {v, id, ok: true, result} | {v, id, ok: false, error: {type, message, field}}
+//   worker -> page   {v, type: "progress", stage, fraction, text} while booting,
+//                    then exactly one {v, type: "ready", versions} or {v, type: "fatal", message}
+
+export const PROTOCOL_VERSION = 1;
+
+/** An error reported by the Python core (or the worker), with the input field it concerns. */
+export class CoreError extends Error {
+  /**
+   * @param {{type?: string, message?: string, field?: string|null}} error  the worker's error object
+   */
+  constructor(error) {
+    super(error?.message || "unknown error");
+    this.name = "CoreError";
+    this.type = error?.type || "Error";
+    this.field = error?.field ?? null;
+  }
+}
+
+/**
+ * Start Python in a module worker.
+ *
+ * @param {object} options
+ * @param {(p: {stage: string, fraction: number, text: string}) => void} [options.onProgress]
+ *        called for each boot step
+ * @param {number} [options.bootTimeoutMs]  give up if "ready" has not come by then [ms]
+ * @returns {{ready: Promise<object>, call: (method: string, params?: object) => Promise<any>,
+ *            terminate: () => void}}  `ready` resolves with the versions Python reports
+ */
+export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = {}) {
+  const worker = new Worker(new URL("./worker.js", import.meta.url), { type: "module" });
+  const pending = new Map();
+  let nextId = 1;
+  let settleBoot;
+  const ready = new Promise((resolve, reject) => {
+    settleBoot = { resolve, reject };
+  });
+  const fail = (message) => {
+    settleBoot.reject(new Error(message));
+    for (const { reject } of pending.values()) reject(new CoreError({ type: "BootError", message }));
+    pending.clear();
+  };
+  const timer = setTimeout(
+    () => fail(`Python did not start within ${Math.round(bootTimeoutMs / 1000)} s.`),
+    bootTimeoutMs,
+  );
+
+  worker.addEventListener("error", (event) => {
+    clearTimeout(timer);
+    fail(`The calculation worker could not start${event.message ? `: ${event.message}` : "."}`);
+  });
+  worker.addEventListener("message", (event) => {
+    const msg = event.data;
+    if (!msg || msg.v !== PROTOCOL_VERSION) {
+      fail(`The worker speaks another protocol version (${msg?.v}); reload the page.`);
+      return;
+    }
+    if (msg.type === "progress") {
+      onProgress(msg);
+    } else if (msg.type === "ready") {
+      clearTimeout(timer);
+      settleBoot.resolve(msg.versions || {});
+    } else if (msg.type === "fatal") {
+      clearTimeout(timer);
+      fail(msg.message);
+    } else if (pending.has(msg.id)) {
+      const { resolve, reject } = pending.get(msg.id);
+      pending.delete(msg.id);
+      if (msg.ok) resolve(msg.result);
+      else reject(new CoreError(msg.error));
+    }
+  });
+
+  /**
+   * Call one method of acidscape.api.handle in the worker.
+   *
+   * @param {string} method  e.g. "distribution", "systems", "version"
+   * @param {object} [params]  plain JSON-able object
+   * @returns {Promise<any>}  the result; rejects with a CoreError
+   */
+  function call(method, params = {}) {
+    const id = nextId++;
+    return new Promise((resolve, reject) => {
+      pending.set(id, { resolve, reject });
+      worker.postMessage({ v: PROTOCOL_VERSION, id, method, params });
+    });
+  }
+
+  return { ready, call, terminate: () => worker.terminate() };
+}
