@@ -147,42 +147,63 @@ def _mixed_constants(comp: Component, gamma: _Gamma) -> tuple[list[float], list[
     return pKm, lg
 
 
-def _system_terms(pH: float, cum: list[float], charges: tuple[int, ...], total: float, fixed_first: float | None):
-    """Charge [eq/L] of one system at pH, its pH derivative, and its alpha list."""
-    logs = [i * pH - s for i, s in enumerate(cum)]
+def _system_charge(pH: float, cum: list[float], z0: int, total: float, fixed_first: float | None):
+    """Charge [eq/L] of one system at pH and its derivative d/dpH, in one pass.
+
+    With z_i = z0 - i, the mean charge is z0 - <i> and d<i>/dpH = ln10 var(i).
+    """
+    exp = math.exp
     if fixed_first is not None:
-        # concentrations relative to the fixed most-protonated species
-        terms = [math.exp((x - logs[0]) * _LN10) for x in logs]
-        q = sum(z * t for z, t in zip(charges, terms))
-        dq = sum(z * i * t for i, (z, t) in enumerate(zip(charges, terms)))
-        s = sum(terms)
-        return fixed_first * q, fixed_first * dq * _LN10, [t / s for t in terms], fixed_first * s
+        base = -cum[0]
+        s = si = si2 = 0.0
+        for i, c in enumerate(cum):
+            t = exp((i * pH - c - base) * _LN10)
+            s += t
+            si += i * t
+            si2 += i * i * t
+        # concentrations relative to the fixed species: c_i = fixed * t_i
+        return fixed_first * (z0 * s - si), -fixed_first * si2 * _LN10 + fixed_first * z0 * si * _LN10
+    n = len(cum)
+    if n == 2:  # monoprotic: closed form
+        d = (pH - cum[1]) * _LN10
+        if d > 0:
+            r = exp(-d)
+            a1 = 1.0 / (1.0 + r)
+            a0 = r * a1
+        else:
+            r = exp(d)
+            a0 = 1.0 / (1.0 + r)
+            a1 = r * a0
+        return total * (z0 - a1), -total * _LN10 * a0 * a1
+    logs = [i * pH - c for i, c in enumerate(cum)]
     m = max(logs)
-    terms = [math.exp((x - m) * _LN10) for x in logs]
-    s = sum(terms)
-    alphas = [t / s for t in terms]
-    zbar = sum(z * a for z, a in zip(charges, alphas))
-    ibar = sum(i * a for i, a in enumerate(alphas))
-    i2bar = sum(i * i * a for i, a in enumerate(alphas))
-    # d(zbar)/dpH = -ln10 * var(i)  (z_i = z0 - i)
-    dz = -_LN10 * (i2bar - ibar * ibar)
-    return total * zbar, total * dz, alphas, total
+    s = si = si2 = 0.0
+    for i, x in enumerate(logs):
+        t = exp((x - m) * _LN10)
+        s += t
+        si += i * t
+        si2 += i * i * t
+    ibar = si / s
+    var = si2 / s - ibar * ibar
+    if var < 0.0:
+        var = 0.0
+    return total * (z0 - ibar), -total * _LN10 * var
 
 
 def _balance(pH, prepared, strong_charge, lgH, lgOH, pKw):
     """f(pH) and df/dpH for the prepared systems."""
-    H = math.exp(-pH * _LN10 - lgH * _LN10)
+    H = math.exp((-pH - lgH) * _LN10)
     OH = math.exp((pH - pKw - lgOH) * _LN10)
     f = H - OH + strong_charge
     df = -_LN10 * (H + OH)
-    for cum, charges, total, fixed in prepared:
-        q, dq, _, _ = _system_terms(pH, cum, charges, total, fixed)
+    for cum, z0, total, fixed in prepared:
+        q, dq = _system_charge(pH, cum, z0, total, fixed)
         f += q
         df += dq
     return f, df
 
 
-def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[float, int]:
+def _check_bracket(prepared, strong_charge, lgH, lgOH, pKw) -> None:
     lo, hi = PH_BRACKET
     flo, _ = _balance(lo, prepared, strong_charge, lgH, lgOH, pKw)
     fhi, _ = _balance(hi, prepared, strong_charge, lgH, lgOH, pKw)
@@ -192,8 +213,13 @@ def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[fl
             f"(f = {flo:.3g} and {fhi:.3g} eq/L): the composition is outside what the solver accepts",
             field="systems",
         )
+
+
+def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[float, int]:
+    """Safeguarded Newton in the bracket PH_BRACKET (f(lo) > 0 > f(hi), checked by the caller)."""
+    lo, hi = PH_BRACKET
     x = min(max(guess, lo), hi)
-    for it in range(1, 200):
+    for it in range(1, 300):
         f, df = _balance(x, prepared, strong_charge, lgH, lgOH, pKw)
         if f == 0.0:
             return x, it
@@ -201,16 +227,31 @@ def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[fl
             lo = x
         else:
             hi = x
-        step_ok = df < 0
-        if step_ok:
-            xn = x - f / df
-            step_ok = lo < xn < hi
-        if not step_ok:
+        if df < 0:
+            step = f / df
+            if abs(step) < PH_TOL:
+                return x - step, it
+            xn = x - step
+            if not lo < xn < hi:
+                xn = 0.5 * (lo + hi)
+        else:
             xn = 0.5 * (lo + hi)
-        if abs(xn - x) < PH_TOL or (hi - lo) < PH_TOL:
+        if (hi - lo) < PH_TOL:
             return xn, it
         x = xn
-    raise ConvergenceError("the pH search did not converge in 200 steps", field=None)
+    raise ConvergenceError("the pH search did not converge in 300 steps", field=None)
+
+
+def _alphas(pH: float, cum: list[float], fixed_first: float | None, total: float) -> tuple[list[float], float]:
+    """Fractions at pH and the system total (which follows pH in an open system)."""
+    logs = [i * pH - c for i, c in enumerate(cum)]
+    m = max(logs)
+    terms = [math.exp((x - m) * _LN10) for x in logs]
+    s = sum(terms)
+    alphas = [t / s for t in terms]
+    if fixed_first is not None:
+        total = fixed_first / alphas[0] if alphas[0] > 0 else math.inf
+    return alphas, total
 
 
 def equilibrate(
@@ -253,13 +294,11 @@ def equilibrate(
         residual [eq/L] at the answer
     """
     strong_charge = sum(ion.charge * ion.conc_M for ion in ions)
-    # Starting ionic strength: strong ions plus each system in its most protonated state.
-    if I_fixed is not None:
-        I = I_fixed
-    else:
-        I = 0.5 * sum(ion.charge**2 * ion.conc_M for ion in ions)
+    strong_I = 0.5 * sum(ion.charge**2 * ion.conc_M for ion in ions)
+    I = I_fixed if I_fixed is not None else strong_I
     x = pH if pH is not None else pH_guess
     total_iters = 0
+    checked = False
     for outer in range(max_outer):
         gamma = _Gamma(I, T, model)
         lgH = gamma(1, ION_SIZE_H)
@@ -271,26 +310,30 @@ def equilibrate(
             cum = [0.0]
             for v in pKm:
                 cum.append(cum[-1] + v)
-            prepared.append((cum, comp.charges, comp.total_M, comp.fixed_first_M))
+            prepared.append((cum, comp.charges[0], comp.total_M, comp.fixed_first_M))
             mixed.append((pKm, lg))
         if pH is None:
+            if not checked:
+                _check_bracket(prepared, strong_charge, lgH, lgOH, pKw)
+                checked = True
             x, its = _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, x)
             total_iters += its
-        # species at x
+        H = math.exp((-x - lgH) * _LN10)
+        OH = math.exp((x - pKw - lgOH) * _LN10)
         states = []
-        I_new = 0.0
-        for comp, (cum, charges, total, fixed), (pKm, lg) in zip(components, prepared, mixed):
-            _, _, alphas, tot = _system_terms(x, cum, charges, total, fixed)
+        I_sys = 0.0
+        f = H - OH + strong_charge
+        for comp, (cum, z0, total, fixed), (pKm, lg) in zip(components, prepared, mixed):
+            alphas, tot = _alphas(x, cum, fixed, total)
             states.append(SystemState(comp, tot, tuple(pKm), alphas, lg))
-            I_new += sum(z * z * a for z, a in zip(charges, alphas)) * tot
-        H = 10.0 ** (-x - lgH)
-        OH = 10.0 ** (x - pKw - lgOH)
-        I_new = 0.5 * (I_new + H + OH + sum(ion.charge**2 * ion.conc_M for ion in ions))
-        if I_fixed is not None or model == "ideal":
-            if I_fixed is None:
-                I = I_new
+            I_sys += tot * sum(z * z * a for z, a in zip(comp.charges, alphas))
+            f += tot * sum(z * a for z, a in zip(comp.charges, alphas))
+        I_new = 0.5 * (H + OH) + 0.5 * I_sys + strong_I
+        if I_fixed is not None:
             break
-        if abs(I_new - I) <= I_RTOL * max(I_new, 1e-14):
+        if model == "ideal" or abs(I_new - I) <= I_RTOL * max(I_new, 1e-14):
+            # The state above was computed with gammas at I; I_new differs from I by at most
+            # I_RTOL relative, so the reported I is I_new (ideal: gammas do not depend on I).
             I = I_new
             break
         I = I_new
@@ -298,35 +341,10 @@ def equilibrate(
         raise ConvergenceError(
             f"ionic strength did not settle in {max_outer} iterations (last {I:.6g} mol/L)", field=None
         )
-    # Final consistent state at the settled I.
-    gamma = _Gamma(I, T, model)
-    lgH = gamma(1, ION_SIZE_H)
-    lgOH = gamma(-1, ION_SIZE_OH)
-    states = []
-    f = 0.0
-    prepared = []
-    for comp in components:
-        pKm, lg = _mixed_constants(comp, gamma)
-        cum = [0.0]
-        for v in pKm:
-            cum.append(cum[-1] + v)
-        prepared.append((cum, comp.charges, comp.total_M, comp.fixed_first_M))
-        states.append((comp, pKm, lg))
-    if pH is None and model != "ideal" and I_fixed is None:
-        x, its = _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, x)
-        total_iters += its
-    out_states = []
-    for (comp, pKm, lg), (cum, charges, total, fixed) in zip(states, prepared):
-        q, _, alphas, tot = _system_terms(x, cum, charges, total, fixed)
-        f += q
-        out_states.append(SystemState(comp, tot, tuple(pKm), alphas, lg))
-    H = 10.0 ** (-x - lgH)
-    OH = 10.0 ** (x - pKw - lgOH)
-    f += H - OH + strong_charge
     ion_states = [(ion, gamma(ion.charge, ion.ion_size_A)) for ion in ions]
     return Equilibrium(
         pH=x, I=I, pKw=pKw, T=T, model=model, H_M=H, OH_M=OH, log10_gamma_H=lgH, log10_gamma_OH=lgOH,
-        systems=out_states, ions=ion_states, residual_eq_per_L=f, iterations=total_iters,
+        systems=states, ions=ion_states, residual_eq_per_L=f, iterations=total_iters,
         pH_was_given=pH is not None,
     )
 
