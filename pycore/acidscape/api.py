@@ -218,7 +218,7 @@ def _species_rows(eq, sources) -> list[dict]:
     return rows
 
 
-def solve(scenario: dict) -> dict:
+def solve(scenario: dict, _state: dict | None = None) -> dict:
     """Equilibrium (or fixed-pH speciation) of a water described by a scenario.
 
     See :mod:`acidscape.scenario` for the keys. The result holds ``pH``,
@@ -245,6 +245,8 @@ def solve(scenario: dict) -> dict:
         parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
         I_fixed=parsed.I_fixed, pH=parsed.pH,
     )
+    if _state is not None:  # callers inside the package may want the solved state too
+        _state["parsed"], _state["eq"] = parsed, eq
     warnings = list(parsed.warnings)
     from .activity import VALIDITY_I_M
 
@@ -297,11 +299,42 @@ def solve(scenario: dict) -> dict:
     return result
 
 
+def water(params: dict) -> dict:
+    """A water's equilibrium plus its curves against pH (for the page's plots).
+
+    ``params`` is a scenario plus optional ``curve`` ``{"pH_min", "pH_max", "points"}``.
+    Returns ``{"result": <solve result>, "curves": <acidscape.curves.water_curves>}``.
+
+    Examples
+    --------
+    >>> out = water({"systems": [{"id": "ammonium", "total": 1, "unit": "mmol/L"}], "curve": {"points": 5}})
+    >>> out["curves"]["pH"]
+    [0.0, 3.5, 7.0, 10.5, 14.0]
+    """
+    from .curves import pH_grid, water_curves
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    curve = params.get("curve") or {}
+    if not isinstance(curve, dict):
+        raise InputError("curve must be an object {pH_min, pH_max, points}", field="curve")
+    scenario = {k: v for k, v in params.items() if k != "curve"}
+    grid = pH_grid(
+        _number(curve, "pH_min", 0.0, lo=-1.0, hi=15.0, field="curve.pH_min"),
+        _number(curve, "pH_max", 14.0, lo=-1.0, hi=15.0, field="curve.pH_max"),
+        _integer(curve, "points", 281, lo=2, hi=MAX_POINTS),
+    )
+    state: dict = {}
+    result = solve(scenario, state)
+    return {"result": result, "curves": water_curves(state["eq"], grid)}
+
+
 def _methods() -> dict[str, Callable[[dict], dict]]:
     methods: dict[str, Callable[[dict], dict]] = {
         "version": lambda params: version_info(),
         "distribution": distribution,
         "solve": solve,
+        "water": water,
     }
     try:  # modules that land later register here
         from . import library
