@@ -240,6 +240,11 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     from .scenario import read_scenario
     from .solver import charge_balance_terms, equilibrate
 
+    inferred = None
+    if isinstance(scenario, dict) and scenario.get("measured") is not None:
+        from .measured import resolve_measured  # pH + alkalinity -> carbonate total (issue 4)
+
+        scenario, inferred = resolve_measured(scenario)
     parsed = read_scenario(scenario)
     eq = equilibrate(
         parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
@@ -296,6 +301,14 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     }
     if parsed.CO2_partial_pressure_atm is not None:
         result["CO2_partial_pressure_atm"] = parsed.CO2_partial_pressure_atm
+    from .alkalinity import alkalinity_report
+    from .buffer import buffer_intensity
+
+    result["alkalinity"] = alkalinity_report(eq)
+    result["buffer_intensity_eq_per_L_per_pH"] = buffer_intensity(eq)
+    result["buffer_intensity_basis"] = "closed water at its ionic strength, per unit of meter pH"
+    if inferred is not None:
+        result["inferred_from_measurements"] = inferred
     return result
 
 
