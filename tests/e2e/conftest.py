@@ -1,0 +1,143 @@
+"""Fixtures for the end-to-end tests: the built site on a loopback server, Debian Chromium.
+
+- ``site_dir``: ``dist/``, rebuilt once per session by build_scripts/build.py when it is
+  missing or older than any of its inputs (site/, pycore/acidscape/, build_scripts/).
+- ``base_url``: an HTTP server for ``dist/`` on 127.0.0.1 with a free port (pytest-playwright
+  resolves ``page.goto("/")`` against it).
+- ``browser_type_launch_args``: use /usr/bin/chromium (``bash build_scripts/dev.sh setup-test``
+  installs it with apt when missing); Playwright's own browser builds are not used.
+- ``watch``: a page whose console errors, uncaught exceptions, CSP violations and request
+  origins are recorded; ``watch.assert_clean()`` checks them.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+import threading
+from pathlib import Path
+from urllib.parse import urlsplit
+
+import pytest
+
+REPO = Path(__file__).resolve().parents[2]
+DIST = REPO / "dist"
+CHROMIUM = Path("/usr/bin/chromium")
+
+sys.path.insert(0, str(REPO / "build_scripts"))
+from serve import make_server  # noqa: E402
+
+# Collects Content-Security-Policy violations in every frame, before the page's own scripts run.
+CSP_WATCH = """
+window.__cspViolations = [];
+document.addEventListener("securitypolicyviolation", (e) => {
+  window.__cspViolations.push(`${e.violatedDirective} ${e.blockedURI}`);
+});
+"""
+
+
+def _build_inputs() -> list[Path]:
+    roots = [REPO / "site", REPO / "pycore" / "acidscape", REPO / "build_scripts"]
+    files = [REPO / "pyproject.toml", REPO / "LICENSE"]
+    for root in roots:
+        for path in root.rglob("*"):
+            if path.is_file() and "node_modules" not in path.parts and "__pycache__" not in path.parts:
+                files.append(path)
+    return files
+
+
+def _stale_reason() -> str | None:
+    manifest = DIST / "manifest.json"
+    if not manifest.exists():
+        return "dist/ has not been built"
+    built = manifest.stat().st_mtime
+    newer = [p for p in _build_inputs() if p.stat().st_mtime > built]
+    if newer:
+        return f"{newer[0].relative_to(REPO)} is newer than dist/"
+    return None
+
+
+@pytest.fixture(scope="session")
+def site_dir() -> Path:
+    reason = _stale_reason()
+    if reason:
+        done = subprocess.run(
+            [sys.executable, str(REPO / "build_scripts" / "build.py")], capture_output=True, text=True
+        )
+        if done.returncode != 0:
+            pytest.fail(
+                f"{reason}, and building it failed; run `bash build_scripts/dev.sh setup-test`.\n"
+                + done.stdout
+                + done.stderr,
+                pytrace=False,
+            )
+    return DIST
+
+
+@pytest.fixture(scope="session")
+def site_server(site_dir):
+    server = make_server(site_dir, 0, quiet=True)
+    thread = threading.Thread(target=server.serve_forever, daemon=True)
+    thread.start()
+    host, port = server.server_address[:2]
+    yield f"http://{host}:{port}"
+    server.shutdown()
+    server.server_close()
+
+
+@pytest.fixture(scope="session")
+def base_url(site_server):
+    return site_server
+
+
+@pytest.fixture(scope="session")
+def browser_type_launch_args(browser_type_launch_args):
+    if not CHROMIUM.exists():
+        pytest.fail(
+            f"{CHROMIUM} is missing: install Debian's chromium (apt-get install -y chromium), "
+            "or run `bash build_scripts/dev.sh setup-test`, which does it.",
+            pytrace=False,
+        )
+    return {
+        **browser_type_launch_args,
+        "executable_path": str(CHROMIUM),
+        "args": ["--disable-gpu"],
+    }
+
+
+class PageWatch:
+    """What a page did that a test may want to forbid."""
+
+    def __init__(self, context, page, origin: str):
+        self.page = page
+        self.origin = origin
+        self.console_errors: list[str] = []
+        self.requests: list[str] = []
+        page.add_init_script(CSP_WATCH)
+        context.on("request", lambda request: self.requests.append(request.url))
+        page.on("console", lambda msg: msg.type == "error" and self.console_errors.append(msg.text))
+        page.on("pageerror", lambda exc: self.console_errors.append(f"uncaught: {exc}"))
+
+    def csp_violations(self) -> list[str]:
+        return self.page.evaluate("() => window.__cspViolations || []")
+
+    def foreign_requests(self) -> list[str]:
+        own = urlsplit(self.origin).netloc
+        return [
+            url
+            for url in self.requests
+            if urlsplit(url).scheme not in ("data", "blob") and urlsplit(url).netloc != own
+        ]
+
+    def assert_clean(self) -> None:
+        assert self.console_errors == [], f"console errors: {self.console_errors}"
+        assert self.csp_violations() == [], "CSP violations"
+        assert self.foreign_requests() == [], "requests to other origins"
+
+
+@pytest.fixture
+def watch(context, page, base_url):
+    """The test's page with its console, CSP and requests recorded; checked clean at the end."""
+    w = PageWatch(context, page, base_url)
+    yield w
+    w.assert_clean()
