@@ -342,13 +342,78 @@ def water(params: dict) -> dict:
     return {"result": result, "curves": water_curves(state["eq"], grid)}
 
 
+def _scenario_param(params: dict) -> dict:
+    sc = params.get("scenario")
+    if not isinstance(sc, dict):
+        raise InputError("scenario must be a JSON object describing the water", field="scenario")
+    return sc
+
+
+def titrate(params: dict) -> dict:
+    """Titration curve of a water (see :func:`acidscape.titration.titration_curve`).
+
+    ``params``: ``scenario`` (object), ``titrant`` (id), optional ``titrant_M`` [mol/L]
+    (default 0.1), ``sample_mL`` [mL] (default 100), ``to_pH`` [-], ``points`` (default 400).
+
+    Examples
+    --------
+    >>> out = titrate({"scenario": {"activity": "ideal", "ions": [{"id": "Cl-", "total": 1e-3}], "pH": 3},
+    ...                "titrant": "NaOH", "titrant_M": 0.01, "sample_mL": 100, "to_pH": 10, "points": 101})
+    >>> round(out["equivalence_points"][0]["titrant_mL"], 2)
+    10.0
+    """
+    from .titration import DEFAULT_POINTS, titration_curve
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    titrant = params.get("titrant")
+    if not isinstance(titrant, str):
+        raise InputError(f"titrant must be a chemical id such as 'NaOH', got {titrant!r}", field="titrant")
+    to_pH = params.get("to_pH")
+    return titration_curve(
+        _scenario_param(params), titrant,
+        titrant_M=_number(params, "titrant_M", 0.1, lo=1e-9, hi=20.0),
+        sample_mL=_number(params, "sample_mL", 100.0, lo=1e-6, hi=1e6),
+        to_pH=None if to_pH is None else _number(params, "to_pH", lo=0.0, hi=14.5),
+        points=_integer(params, "points", DEFAULT_POINTS, lo=3, hi=MAX_POINTS),
+    )
+
+
+def dose(params: dict) -> dict:
+    """Dose to a target pH (see :func:`acidscape.dosing.dose_to_pH`).
+
+    ``params``: ``scenario``, ``chemical`` (id), ``target_pH``, optional ``strength_pct`` [% w/w],
+    ``density_kg_per_L`` [kg/L], ``flow`` and ``flow_unit`` (m3/d, m3/h, L/s, L/min, MGD, gpm).
+    """
+    from .dosing import dose_to_pH
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    chem = params.get("chemical")
+    if not isinstance(chem, str):
+        raise InputError(f"chemical must be an id such as 'NaOH', got {chem!r}", field="chemical")
+    opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
+           ("strength_pct", "density_kg_per_L", "flow")}
+    return dose_to_pH(_scenario_param(params), chem, _number(params, "target_pH"),
+                      strength_pct=opt["strength_pct"], density_kg_per_L=opt["density_kg_per_L"],
+                      flow=opt["flow"], flow_unit=params.get("flow_unit"))
+
+
 def _methods() -> dict[str, Callable[[dict], dict]]:
     methods: dict[str, Callable[[dict], dict]] = {
         "version": lambda params: version_info(),
         "distribution": distribution,
         "solve": solve,
         "water": water,
+        "titrate": titrate,
+        "dose": dose,
     }
+    try:
+        from .dosing import chemicals
+
+        methods["chemicals"] = lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]}
+    except ImportError:  # pragma: no cover - during bootstrap only
+        pass
     try:  # modules that land later register here
         from . import library
 
