@@ -66,6 +66,8 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
+_LN10 = math.log(10.0)
+
 from .buffer import _cum, _moments, proton_level
 from .constants import M_CaCO3
 from .errors import ConvergenceError, InputError
@@ -180,22 +182,45 @@ def proton_alkalinity(pH: float, systems: Sequence, pH_ref: float, pKw: float = 
     return OH - H + sum(terms), terms
 
 
+def _alk_and_slope(pH, prep, pKw, lgH, lgOH):
+    """Equivalence-point alkalinity [eq/L] and its pH derivative (the buffer intensity)."""
+    H = 10.0 ** (-pH - lgH)
+    OH = 10.0 ** (pH - pKw - lgOH)
+    alk = OH - H
+    slope = OH + H
+    for cum, total, r in prep:
+        mean, var = _moments(pH, cum)
+        alk += total * (mean - r)
+        slope += total * var
+    return alk, _LN10 * slope
+
+
 def _equivalence_pH(systems, pH_ref, pKw, lgH, lgOH) -> float:
-    """pH at which the equivalence-point alkalinity of the reference level vanishes."""
+    """pH at which the equivalence-point alkalinity of the reference level vanishes.
+
+    Newton steps on the analytic slope (the buffer intensity), kept inside a shrinking
+    bracket and replaced by bisection when a step leaves it (alkalinity rises with pH).
+    """
+    prep = [(_cum(pKa_m), total, reference_index(pKa_ref, pH_ref)) for pKa_ref, pKa_m, total in systems]
     lo, hi = -2.0, 18.0
-    f_lo = proton_alkalinity(lo, systems, pH_ref, pKw, lgH, lgOH)[0]
-    f_hi = proton_alkalinity(hi, systems, pH_ref, pKw, lgH, lgOH)[0]
-    if not (f_lo < 0.0 < f_hi):
+    if not (_alk_and_slope(lo, prep, pKw, lgH, lgOH)[0] < 0.0 < _alk_and_slope(hi, prep, pKw, lgH, lgOH)[0]):
         raise ConvergenceError(f"no equivalence pH between {lo:g} and {hi:g} for reference pH {pH_ref:g}")
-    for _ in range(80):
-        mid = 0.5 * (lo + hi)
-        if proton_alkalinity(mid, systems, pH_ref, pKw, lgH, lgOH)[0] < 0.0:
-            lo = mid
+    x = pH_ref
+    for _ in range(200):
+        f, df = _alk_and_slope(x, prep, pKw, lgH, lgOH)
+        if f == 0.0:
+            return x
+        if f < 0.0:
+            lo = x
         else:
-            hi = mid
-        if hi - lo < 1e-10:
-            break
-    return 0.5 * (lo + hi)
+            hi = x
+        xn = x - f / df if df > 0.0 else 0.5 * (lo + hi)
+        if not lo < xn < hi:
+            xn = 0.5 * (lo + hi)
+        if abs(xn - x) < 1e-11 or hi - lo < 1e-11:
+            return xn
+        x = xn
+    raise ConvergenceError(f"the equivalence pH for reference pH {pH_ref:g} did not converge", field=None)
 
 
 def sm2320_split(P: float, T: float) -> dict:

@@ -257,28 +257,6 @@ def _opt_number(value, field, lo, hi, lo_open=True):
     return v
 
 
-def _chem_term_scan(engine, chem, pH0, target, I):
-    """pH between pH0 and target where the chemical's own charge term M changes sign, or None."""
-    if not chem.systems:
-        return None
-    n = max(8, int(abs(target - pH0) / 0.05) + 1)
-    prev_p, prev_s = pH0, engine.direction_term(pH0, I) > 0
-    for k in range(1, n + 1):
-        p = pH0 + (target - pH0) * k / n
-        s = engine.direction_term(p, I) > 0
-        if s != prev_s:
-            a, b = prev_p, p
-            for _ in range(50):
-                mid = 0.5 * (a + b)
-                if (engine.direction_term(mid, I) > 0) == prev_s:
-                    a = mid
-                else:
-                    b = mid
-            return 0.5 * (a + b)
-        prev_p, prev_s = p, s
-    return None
-
-
 def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
     """Dose [mol/L] of ``chem`` that takes a closed water to ``target_pH``, and the ionic strength after.
 
@@ -301,7 +279,7 @@ def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
             f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring it "
             f"to {target_pH:g}", field="target_pH")
     d, I, _ = engine.amount(target_pH, I0)
-    limit = _chem_term_scan(engine, chem, pH0, target_pH, I)
+    limit = engine.limit_pH(pH0, I, upward, end=target_pH)
     if limit is not None:
         raise UnreachableError(
             f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the pH "

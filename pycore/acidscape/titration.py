@@ -57,6 +57,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from operator import mul as _mul
 
 from .buffer import gamma_function
 from .errors import ConvergenceError, InputError, UnreachableError
@@ -64,8 +65,9 @@ from .solver import ION_SIZE_H, ION_SIZE_OH
 
 _LN10 = math.log(10.0)
 _exp = math.exp
-#: Relative tolerance of the per-point ionic-strength iteration.
-I_RTOL = 1e-10
+#: Relative tolerance of the per-point ionic-strength iteration (1e-8 of I shifts a Davies
+#: log10 gamma by less than 1e-9 below I = 0.5 mol/L).
+I_RTOL = 1e-8
 #: Largest titrant or chemical amount accepted [mol per litre of sample].
 MAX_AMOUNT_M = 5.0
 #: Default and largest number of curve points.
@@ -85,6 +87,13 @@ class _Sys:
     cum0: list
     sample: float       # total in the sample [mol/L]
     added: float        # moles of the system per mole of chemical
+
+    def __post_init__(self):
+        n = len(self.charges)
+        self.z0 = self.charges[0]
+        self.idx = tuple(range(n))
+        self.idx2 = tuple(i * i for i in range(n))
+        self.dz2 = tuple(z * z - self.z0 * self.z0 for z in self.charges)
 
 
 class Engine:
@@ -145,6 +154,15 @@ class Engine:
 
     # -- constants at one ionic strength -------------------------------------------------
     def _at(self, I):
+        """log10 gamma of H+ and OH- and each system's cumulative mixed pKa at I.
+
+        cum'_i = cum_i + lg_i - lg_0 (the mixed constants pKa_j + lg_{j+1} - lg_j summed);
+        with the Davies equation lg = z^2 h(I), so one h serves every species.
+        """
+        if self.model == "davies":
+            h = self.lg(1, None, I)
+            cums = [[c + h * d for c, d in zip(s.cum0, s.dz2)] for s in self.systems]
+            return h, h, cums
         lg = self.lg
         cums = []
         for s in self.systems:
@@ -171,18 +189,17 @@ class Engine:
         M = self.S_t
         bN = bM = 0.0
         Js = Jt = 0.0
+        exp = _exp
         for s, cum in zip(self.systems, cums):
-            logs = [i * pH - c for i, c in enumerate(cum)]
+            logs = [i * pH - c for i, c in zip(s.idx, cum)]
             m = max(logs)
-            terms = [_exp((x - m) * _LN10) for x in logs]
+            terms = [exp((x - m) * _LN10) for x in logs]
             inv = 1.0 / sum(terms)
-            zb = z2b = ib = i2b = 0.0
-            for i, (z, t) in enumerate(zip(s.charges, terms)):
-                a = t * inv
-                zb += z * a
-                z2b += z * z * a
-                ib += i * a
-                i2b += i * i * a
+            ib = sum(map(_mul, s.idx, terms)) * inv
+            i2b = sum(map(_mul, s.idx2, terms)) * inv
+            z0 = s.z0
+            zb = z0 - ib
+            z2b = z0 * z0 - 2.0 * z0 * ib + i2b
             var = i2b - ib * ib
             if s.sample:
                 N += s.sample * zb
@@ -243,25 +260,26 @@ class Engine:
             return M
         return self.titrant_M * M + H - OH
 
-    def limit_pH(self, pH0, I, upward: bool) -> float | None:
-        """pH the chemical approaches without end (where the denominator vanishes), or None."""
+    def limit_pH(self, pH0, I, upward: bool, end: float | None = None) -> float | None:
+        """pH the chemical approaches without end (where the denominator vanishes), or None.
+
+        The denominator, C_t (S_t + sum n zbar) + [H+] - [OH-] (or S_t + sum n zbar without
+        dilution), never rises with pH (each zbar falls, as does [H+] - [OH-]), so it changes
+        sign at most once: bisection between pH0 and ``end`` finds that pH.
+        """
+        if end is None:
+            end = PH_RANGE[1] + 3.0 if upward else PH_RANGE[0] - 2.0
         sign0 = self.direction_term(pH0, I) > 0
-        step = 0.05 if upward else -0.05
-        p = pH0
-        lo_end, hi_end = PH_RANGE[0] - 2.0, PH_RANGE[1] + 3.0
-        while lo_end <= p + step <= hi_end:
-            q = p + step
-            if (self.direction_term(q, I) > 0) != sign0:
-                a, b = p, q
-                for _ in range(60):
-                    mid = 0.5 * (a + b)
-                    if (self.direction_term(mid, I) > 0) == sign0:
-                        a = mid
-                    else:
-                        b = mid
-                return 0.5 * (a + b)
-            p = q
-        return None
+        if (self.direction_term(end, I) > 0) == sign0:
+            return None
+        a, b = pH0, end
+        while abs(b - a) > 1e-9:
+            mid = 0.5 * (a + b)
+            if (self.direction_term(mid, I) > 0) == sign0:
+                a = mid
+            else:
+                b = mid
+        return 0.5 * (a + b)
 
 
 def _cum(pKa) -> list:
@@ -385,12 +403,21 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
     grid = [pH0 + (to_pH - pH0) * k / (points - 1) for k in range(points)]
     grid[-1] = to_pH
     out_pts, slopes, amounts = [], [], []
-    I = I0
+    hist = []   # ionic strengths of the last three points, for a quadratic extrapolation
     for k, pH in enumerate(grid):
         if k == 0:
-            d, I, s = 0.0, I0, engine.amount(pH, I)[2]
+            d, I, s = 0.0, I0, engine.amount(pH, I0)[2]
         else:
-            d, I, s = engine.amount(pH, I)
+            if len(hist) == 3:
+                guess = 3.0 * hist[2] - 3.0 * hist[1] + hist[0]
+            elif len(hist) == 2:
+                guess = 2.0 * hist[1] - hist[0]
+            else:
+                guess = hist[-1]
+            if not guess > 0.0:
+                guess = hist[-1]
+            d, I, s = engine.amount(pH, guess)
+        hist = (hist + [I])[-3:]
         if not (d >= 0.0) or d > MAX_AMOUNT_M or not math.isfinite(s):
             raise UnreachableError(
                 f"pH {pH:.3g} needs {d:.3g} mol of {chem.id} per litre of sample, outside 0..{MAX_AMOUNT_M:g}",
