@@ -15,8 +15,10 @@ model name                 what the page puts in it
 ``logc_src``               ColumnDataSource as ``fraction_src`` with ``ys`` =
                            log10 of concentration [log10(mol/L)]
 ``logc_marker``            Span: ``location`` = the pH of the species table
-``fraction_legend``,       Legend: ``ncols`` fitted to the width of the page
+``fraction_legend``,       Legend: ``nrows`` fitted to the width of the page
 ``logc_legend``
+``fraction_fig``,          figure: ``height`` grows with the legend's rows
+``logc_fig``
 ``logc_y``                 Range1d: ``start``/``end`` follow the total concentration
 =========================  ==========================================================
 
@@ -73,9 +75,15 @@ def _empty_source(name: str) -> ColumnDataSource:
     return ColumnDataSource(data={"xs": [], "ys": [], "label": [], "slot": []}, name=name)
 
 
-def _base_figure(y_label: str, y_range: Range1d) -> figure:
+#: Height of a plot without its legend [px]; plot.js adds LEGEND_ROW_PX per legend row.
+BASE_HEIGHT_PX = 300
+LEGEND_ROW_PX = 24
+
+
+def _base_figure(name: str, y_label: str, y_range: Range1d) -> figure:
     p = figure(
-        height=330,
+        name=name,
+        height=BASE_HEIGHT_PX + LEGEND_ROW_PX,
         sizing_mode="stretch_width",
         x_range=Range1d(0, 14, bounds=(-2, 16)),
         y_range=y_range,
@@ -125,8 +133,8 @@ def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: s
         name=legend_name,
         items=[LegendItem(label={"field": "label"}, renderers=[lines])],
         location="center_left",
-        orientation="vertical",
-        ncols=4,
+        orientation="horizontal",
+        nrows=1,
         label_text_font=_FONT,
         label_text_font_size="12px",
         label_text_color=_INK,
@@ -160,7 +168,7 @@ def _marker(name: str) -> Span:
 
 def distribution_plot() -> figure:
     """Alpha fraction [-] of each species against pH, with the table's pH marked."""
-    p = _base_figure("fraction of total", Range1d(-0.02, 1.02, bounds=(-0.05, 1.05)))
+    p = _base_figure("fraction_fig", "fraction of total", Range1d(-0.02, 1.02, bounds=(-0.05, 1.05)))
     p.yaxis.ticker.desired_num_ticks = 6
     _species_lines(p, _empty_source("fraction_src"), "0.0000", "fraction", "fraction_legend")
     p.add_layout(_marker("fraction_marker"))
@@ -169,7 +177,7 @@ def distribution_plot() -> figure:
 
 def log_concentration_plot() -> figure:
     """log10 of each species' concentration [log10(mol/L)] against pH."""
-    p = _base_figure("log₁₀ concentration (mol/L)", Range1d(-12, 0, name="logc_y"))
+    p = _base_figure("logc_fig", "log₁₀ concentration (mol/L)", Range1d(-12, 0, name="logc_y"))
     _species_lines(p, _empty_source("logc_src"), "0.00", "log₁₀ c", "logc_legend")
     p.add_layout(_marker("logc_marker"))
     return p
@@ -181,6 +189,7 @@ def templates() -> dict:
         "distribution": json_item(distribution_plot()),
         "log_concentration": json_item(log_concentration_plot()),
         "palette": list(PALETTE),
+        "layout": {"base_height_px": BASE_HEIGHT_PX, "legend_row_px": LEGEND_ROW_PX},
     }
 
 

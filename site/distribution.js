@@ -20,6 +20,18 @@ const FIELD_INPUT = {
   pH: "ph-input",
 };
 
+// Core error fields -> the words the page uses for them, to start a message with.
+const FIELD_LABEL = {
+  total_M: "Total concentration",
+  charge_most_protonated: "Charge",
+  pH: "pH",
+};
+
+function readable(message, field) {
+  const label = FIELD_LABEL[field];
+  return label && message.startsWith(field) ? label + message.slice(field.length) : message;
+}
+
 function inputForField(field) {
   if (!field) return "form";
   const base = String(field).replace(/\[\d+\]$/, "");
@@ -145,7 +157,7 @@ export function mountDistribution({ py, view, plots, status, systems }) {
     } catch (error) {
       if (seq !== latest) return false;
       const target = error instanceof CoreError ? inputForField(error.field) : "form";
-      view.showErrors({ [target]: error.message });
+      view.showErrors({ [target]: readable(error.message, error.field) });
       return false;
     } finally {
       if (seq === latest) view.setBusy(false);

@@ -17,12 +17,14 @@ function findModel(name) {
 /** Species lines of one plot: a named data source plus a named vertical marker. */
 class SpeciesPlot {
   /**
-   * @param {string} sourceName  name of the ColumnDataSource in the template
-   * @param {string} markerName  name of the Span in the template
-   * @param {string} legendName  name of the Legend in the template
+   * @param {string} prefix  names in the template: <prefix>_fig, _src, _marker, _legend
    * @param {HTMLElement} host  the element the plot is embedded in
+   * @param {{base_height_px: number, legend_row_px: number}} layout  sizes from plots.json
    */
-  constructor(sourceName, markerName, legendName, host) {
+  constructor(prefix, host, layout) {
+    const [sourceName, markerName, legendName] = [`${prefix}_src`, `${prefix}_marker`, `${prefix}_legend`];
+    this.figure = findModel(`${prefix}_fig`);
+    this.layout = layout;
     this.source = findModel(sourceName);
     this.marker = findModel(markerName);
     this.legend = findModel(legendName);
@@ -40,7 +42,11 @@ class SpeciesPlot {
     const longest = Math.max(1, ...labels.map((label) => label.length));
     const perColumn = 44 + 8 * longest; // swatch + spacing + text [px], roughly
     const fit = Math.floor((this.host.clientWidth || 600) / perColumn);
-    this.legend.ncols = Math.max(1, Math.min(labels.length, fit));
+    const columns = Math.max(1, Math.min(labels.length, fit));
+    const rows = Math.ceil(labels.length / columns);
+    this.legend.nrows = rows; // filled row by row, in species order
+    const height = this.layout.base_height_px + rows * this.layout.legend_row_px;
+    if (this.figure.height !== height) this.figure.height = height;
     this.source.data = {
       xs: ys.map(() => x),
       ys,
@@ -73,8 +79,8 @@ export async function embedPlots(templatesUrl, targets) {
   const logY = findModel("logc_y");
   return {
     palette: templates.palette,
-    fraction: new SpeciesPlot("fraction_src", "fraction_marker", "fraction_legend", host(targets.distribution)),
-    logc: new SpeciesPlot("logc_src", "logc_marker", "logc_legend", host(targets.logConcentration)),
+    fraction: new SpeciesPlot("fraction", host(targets.distribution), templates.layout),
+    logc: new SpeciesPlot("logc", host(targets.logConcentration), templates.layout),
     /**
      * @param {number} bottom  lower end of the log-concentration axis [log10(mol/L)]
      * @param {number} top  upper end [log10(mol/L)]

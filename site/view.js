@@ -182,7 +182,7 @@ export class DistributionView {
       tr.append(
         name,
         this.cell(row.charge > 0 ? `+${row.charge}` : fixed(row.charge, 0), row.charge, "charge"),
-        this.cell(sciNumber(row.fraction, 4), row.fraction, "fraction"),
+        this.cell(sciNumber(row.fraction, 3), row.fraction, "fraction"),
         this.cell(sciNumber(row.concentration_M, 3), row.concentration_M, "concentration_M"),
         this.cell(fixed(row.log10_concentration_M, 2), row.log10_concentration_M, "log10_concentration_M"),
       );

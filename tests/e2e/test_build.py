@@ -79,7 +79,7 @@ def test_third_party_licence_texts_are_shipped(dist):
 def test_plot_templates_name_the_models_the_page_updates(dist):
     templates = json.loads((dist / "plots.json").read_text())
     text = json.dumps(templates)
-    for name in ("fraction_src", "fraction_marker", "fraction_legend", "logc_src", "logc_marker", "logc_legend", "logc_y"):
+    for name in ("fraction_fig", "logc_fig", "fraction_src", "fraction_marker", "fraction_legend", "logc_src", "logc_marker", "logc_legend", "logc_y"):
         assert text.count(f'"name": "{name}"') == 1, name
     assert len(templates["palette"]) >= 13  # one colour per species of a 12-step acid
     assert len(set(templates["palette"])) == len(templates["palette"])
