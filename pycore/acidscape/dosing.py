@@ -278,14 +278,17 @@ def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
             f"{chem.id} acts as {role} on this water (pH {pH0:.2f}); it "
             f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring it "
             f"to {target_pH:g}", field="target_pH")
-    d, I, _ = engine.amount(target_pH, I0)
-    limit = engine.limit_pH(pH0, I, upward, end=target_pH)
+    limit = engine.limit_pH(pH0, I0, upward, end=target_pH)
     if limit is not None:
         raise UnreachableError(
             f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the pH "
             f"only approaches {limit:.2f}", field="target_pH")
+    d, I, _ = engine.amount(target_pH, I0)
     if not d >= 0.0 or not math.isfinite(d):
-        raise UnreachableError(f"{chem.id} cannot bring this water to pH {target_pH:g}", field="target_pH")
+        raise UnreachableError(
+            f"pH {target_pH:g} is beyond what {chem.id} can give this water: the dose needed grows without "
+            f"bound, because the ionic strength it adds lowers the pH {chem.id} can reach (activity "
+            "corrections)", field="target_pH")
     if d > MAX_AMOUNT_M:
         raise UnreachableError(
             f"pH {target_pH:g} needs {d:.3g} mol/L of {chem.id}, more than the {MAX_AMOUNT_M:g} mol/L "

@@ -211,47 +211,115 @@ class Engine:
                 Jt += s.added * z2b
         return N, M, _LN10 * bN, _LN10 * bM, 0.5 * Js, 0.5 * Jt, H, OH
 
+    def _pass(self, pH, I):
+        """One evaluation at a trial I: (d, I of the mixture, dd/dpH, valid)."""
+        Ct = self.titrant_M
+        N, M, bN, bM, Js, Jt, H, OH = self.state(pH, I)
+        w = H - OH
+        bw = _LN10 * (H + OH)
+        if Ct is None:
+            D = M
+            dD = -bM
+        else:
+            D = Ct * M + w
+            dD = -(Ct * bM + bw)
+        dN = -(bN + bw)
+        if D == 0.0:
+            return math.inf, I, math.inf, False
+        v = -N / D                      # volume ratio Vt/Vs, or the dose itself
+        slope = -(dN * D - N * dD) / (D * D)
+        if Ct is None:
+            d = v
+            I_new = self.J_s + Js + d * (self.J_t + Jt) + 0.5 * (H + OH)
+        else:
+            d = Ct * v
+            slope = Ct * slope
+            if v <= -1.0:
+                return d, I, slope, False
+            I_new = (self.J_s + Js + v * Ct * (self.J_t + Jt)) / (1.0 + v) + 0.5 * (H + OH)
+        valid = math.isfinite(d) and I_new >= 0.0 and d >= -1e-12 * max(1.0, abs(N))
+        return d, I_new, slope, valid
+
     def amount(self, pH, I_guess):
         """Chemical per litre of sample that gives ``pH``, with a consistent ionic strength.
+
+        The pair (amount, I) is found by fixed-point iteration on I; if that does not contract
+        (near the pH a chemical approaches, where the amount grows fast with I), the fixed point
+        I = I_mix(I) is bracketed and bisected instead.
 
         Returns
         -------
         tuple
             (d, I, slope): amount [mol per L of sample], ionic strength of the mixture [mol/L],
-            and dd/dpH at fixed I [mol/(L pH)]; ``d`` may be negative or infinite when the pH
-            cannot be reached (callers check)
+            and dd/dpH at fixed I [mol/(L pH)]; ``d`` is infinite when no ionic strength gives
+            a finite, non-negative amount (the pH cannot be reached); it may be slightly
+            negative at the starting pH (callers check)
         """
-        I = self.I_fixed if self.I_fixed is not None else I_guess
-        Ct = self.titrant_M
-        for _ in range(200):
-            N, M, bN, bM, Js, Jt, H, OH = self.state(pH, I)
-            w = H - OH
-            bw = _LN10 * (H + OH)
-            if Ct is None:
-                D = M
-                dD = -bM
-            else:
-                D = Ct * M + w
-                dD = -(Ct * bM + bw)
-            dN = -(bN + bw)
-            if D == 0.0:
-                return math.inf, I, math.inf
-            v = -N / D                      # volume ratio Vt/Vs, or the dose itself
-            slope = -(dN * D - N * dD) / (D * D)
-            if Ct is None:
-                d = v
-                I_new = self.J_s + Js + d * (self.J_t + Jt) + 0.5 * (H + OH)
-            else:
-                d = Ct * v
-                I_new = (self.J_s + Js + v * Ct * (self.J_t + Jt)) / (1.0 + v) + 0.5 * (H + OH) \
-                    if v > -1.0 else I
-                slope = Ct * slope
-            if self.I_fixed is not None or self.model == "ideal" or I_new < 0.0:
-                return d, (I_new if self.I_fixed is None else I), slope
-            if abs(I_new - I) <= I_RTOL * I_new + 1e-16:
+        if self.I_fixed is not None or self.model == "ideal":
+            I0 = self.I_fixed if self.I_fixed is not None else I_guess
+            d, I_new, slope, _ = self._pass(pH, I0)
+            return d, (I0 if self.I_fixed is not None else I_new), slope
+        I = I_guess
+        prev = math.inf
+        for it in range(40):
+            d, I_new, slope, valid = self._pass(pH, I)
+            if not valid:
+                break
+            step = abs(I_new - I)
+            if step <= I_RTOL * I_new + 1e-16:
                 return d, I_new, slope
+            if it >= 3 and step > 0.5 * prev:
+                break
+            prev = step
             I = I_new
-        raise ConvergenceError(f"ionic strength did not settle at pH {pH:.4g} after 200 iterations", field=None)
+        return self._amount_bracketed(pH, I_guess)
+
+    def _amount_bracketed(self, pH, I_guess):
+        """Bisection on h(I) = I_mix(I) - I; an invalid amount counts as h = +inf."""
+        def h(I):
+            d, I_new, slope, valid = self._pass(pH, I)
+            return (I_new - I if valid else math.inf), d, I_new, slope
+
+        lo = 0.0
+        h_lo = h(lo)[0]
+        if h_lo == math.inf:
+            return math.inf, I_guess, math.inf
+        hi = max(2.0 * I_guess, 1e-3)
+        while True:
+            h_hi = h(hi)[0]
+            if h_hi < 0.0:
+                break
+            if h_hi == math.inf or hi > 2.0 * MAX_AMOUNT_M * 9.0:
+                # no consistent ionic strength below the one where the amount diverges
+                a, b = lo, hi
+                for _ in range(100):
+                    mid = 0.5 * (a + b)
+                    hm = h(mid)[0]
+                    if hm < 0.0:
+                        hi = mid
+                        break
+                    if hm == math.inf:
+                        b = mid
+                    else:
+                        a = mid
+                    if b - a <= 1e-12 * b:
+                        return math.inf, b, math.inf
+                else:
+                    return math.inf, b, math.inf
+                break
+            lo = hi
+            hi *= 2.0
+        for _ in range(200):
+            mid = 0.5 * (lo + hi)
+            hm, d, I_new, slope = h(mid)
+            if hm == math.inf or hm < 0.0:
+                hi = mid
+            else:
+                lo = mid
+            if hi - lo <= I_RTOL * hi:
+                hm, d, I_new, slope = h(hi)
+                return d, I_new, slope
+        raise ConvergenceError(f"ionic strength did not settle at pH {pH:.4g}", field=None)
 
     def direction_term(self, pH, I):
         """Charge the chemical brings per mole at pH (plus the titrant's own water) [eq/mol or eq/L]."""
