@@ -38,7 +38,8 @@ export class StatusView {
   fatal(message) {
     this.root.dataset.state = "fatal";
     this.root.setAttribute("role", "alert");
-    this.text.textContent = `The calculator could not start: ${message} Try reloading; if it keeps failing, this browser may lack WebAssembly or module workers.`;
+    const reason = /[.!?]$/.test(message) ? message : `${message}.`;
+    this.text.textContent = `The calculator could not start: ${reason} Try reloading; if it keeps failing, this browser may lack WebAssembly or module workers.`;
   }
 
   /** Count one drawn result; the first one sets body[data-ready]. */

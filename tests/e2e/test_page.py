@@ -206,3 +206,19 @@ def test_works_offline_once_the_service_worker_controls_the_page(page: Page, con
         assert all(from_sw for _, from_sw in served), [u for u, sw in served if not sw]
     finally:
         context.set_offline(False)
+
+
+def test_a_failed_boot_says_so_instead_of_spinning(browser, base_url):
+    # No service worker here: page.route() must see every request (platform notes §3).
+    context = browser.new_context(base_url=base_url, service_workers="block")
+    try:
+        page = context.new_page()
+        page.route("**/wheels/*.whl", lambda route: route.fulfill(status=404, body="gone"))
+        page.goto("/")
+        status = page.locator("#status")
+        expect(status).to_have_attribute("data-state", "fatal", timeout=BOOT_MS)
+        expect(status).to_contain_text("could not start")
+        expect(status).to_contain_text("HTTP 404")
+        assert page.locator("body").get_attribute("data-ready") is None
+    finally:
+        context.close()
