@@ -272,19 +272,24 @@ def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
         return 0.0, I0
     g0 = engine.direction_term(pH0, I0)
     upward = g0 > 0
-    if g0 == 0.0 or (target_pH > pH0) != upward:
-        role = "an acid" if g0 < 0 else ("a base" if g0 > 0 else "neutral")
-        raise UnreachableError(
-            f"{chem.id} acts as {role} on this water (pH {pH0:.2f}); it "
-            f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring it "
-            f"to {target_pH:g}", field="target_pH")
-    limit = engine.limit_pH(pH0, I0, upward, end=target_pH)
-    if limit is not None:
-        raise UnreachableError(
-            f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the pH "
-            f"only approaches {limit:.2f}", field="target_pH")
-    d, I, _ = engine.amount(target_pH, I0)
+    role = "an acid" if g0 < 0 else ("a base" if g0 > 0 else "neutral")
+    wrong_side = g0 == 0.0 or (target_pH > pH0) != upward
+    if not wrong_side:
+        limit = engine.limit_pH(pH0, I0, upward, end=target_pH)
+        if limit is not None:
+            raise UnreachableError(
+                f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the "
+                f"pH only approaches {limit:.2f}", field="target_pH")
+    # The amount comes from the self-consistent (dose, I) pair. Where the salt a dose adds moves
+    # the meter pH against the chemical's acid-base action (activity corrections), a target on the
+    # "wrong" side can still be reached; it is accepted when the amount is finite and positive.
+    d, I, _ = engine.amount(target_pH, I0, scan=wrong_side)
     if not d >= 0.0 or not math.isfinite(d):
+        if wrong_side:
+            raise UnreachableError(
+                f"{chem.id} acts as {role} on this water (pH {pH0:.2f}); it "
+                f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring "
+                f"it to {target_pH:g}", field="target_pH")
         raise UnreachableError(
             f"pH {target_pH:g} is beyond what {chem.id} can give this water: the dose needed grows without "
             f"bound, because the ionic strength it adds lowers the pH {chem.id} can reach (activity "

@@ -240,12 +240,12 @@ class Engine:
         valid = math.isfinite(d) and I_new >= 0.0 and d >= -1e-12 * max(1.0, abs(N))
         return d, I_new, slope, valid
 
-    def amount(self, pH, I_guess):
+    def amount(self, pH, I_guess, scan: bool = False):
         """Chemical per litre of sample that gives ``pH``, with a consistent ionic strength.
 
         The pair (amount, I) is found by fixed-point iteration on I; if that does not contract
-        (near the pH a chemical approaches, where the amount grows fast with I), the fixed point
-        I = I_mix(I) is bracketed and bisected instead.
+        (near the pH a chemical approaches, where the amount grows fast with I), or if ``scan``
+        is set, the smallest fixed point I = I_mix(I) is bracketed and bisected instead.
 
         Returns
         -------
@@ -259,6 +259,8 @@ class Engine:
             I0 = self.I_fixed if self.I_fixed is not None else I_guess
             d, I_new, slope, _ = self._pass(pH, I0)
             return d, (I0 if self.I_fixed is not None else I_new), slope
+        if scan:
+            return self._amount_bracketed(pH, I_guess)
         I = I_guess
         prev = math.inf
         for it in range(40):
@@ -275,51 +277,46 @@ class Engine:
         return self._amount_bracketed(pH, I_guess)
 
     def _amount_bracketed(self, pH, I_guess):
-        """Bisection on h(I) = I_mix(I) - I; an invalid amount counts as h = +inf."""
-        def h(I):
-            d, I_new, slope, valid = self._pass(pH, I)
-            return (I_new - I if valid else math.inf), d, I_new, slope
+        """Smallest fixed point of I = I_mix(I) with a non-negative amount: scan and bisection.
 
-        lo = 0.0
-        h_lo = h(lo)[0]
-        if h_lo == math.inf:
-            return math.inf, I_guess, math.inf
-        hi = max(2.0 * I_guess, 1e-3)
-        while True:
-            h_hi = h(hi)[0]
-            if h_hi < 0.0:
-                break
-            if h_hi == math.inf or hi > 2.0 * MAX_AMOUNT_M * 9.0:
-                # no consistent ionic strength below the one where the amount diverges
-                a, b = lo, hi
-                for _ in range(100):
-                    mid = 0.5 * (a + b)
-                    hm = h(mid)[0]
-                    if hm < 0.0:
+        h(I) = I_mix(I) - I is evaluated on a log-spaced grid of I up to the activity model's
+        validity limit (beyond it the Davies equation turns upward and would invent roots);
+        where the amount is infinite, h is not used (a negative I_mix from a negative trial amount
+        still counts, as h is continuous there). Each change of sign of h
+        between finite values brackets a fixed point, refined by bisection; the first (lowest I)
+        with a non-negative amount is returned. Near the limit pH of a chemical the pH
+        reached can pass through a maximum as the dose grows, so two doses may give the same
+        pH: the smaller is returned.
+        """
+        from .activity import VALIDITY_I_M
+
+        I_top = VALIDITY_I_M.get(self.model, 0.5)
+
+        def h(I):
+            d, I_new, slope, _ = self._pass(pH, I)
+            return (I_new - I if math.isfinite(d) and math.isfinite(I_new) else math.inf), d, I_new, slope
+
+        grid = [0.0] + [1e-10 * 10.0 ** (k / 10.0) for k in range(0, 200) if 1e-10 * 10.0 ** (k / 10.0) <= I_top]
+        grid.append(I_top)
+        prev_I, prev_h = grid[0], h(grid[0])[0]
+        for I in grid[1:]:
+            hI = h(I)[0]
+            if math.isfinite(prev_h) and math.isfinite(hI) and (prev_h < 0.0) != (hI < 0.0):
+                lo, hi = prev_I, I
+                neg_hi = hI < 0.0
+                for _ in range(200):
+                    mid = 0.5 * (lo + hi)
+                    if (h(mid)[0] < 0.0) == neg_hi:
                         hi = mid
-                        break
-                    if hm == math.inf:
-                        b = mid
                     else:
-                        a = mid
-                    if b - a <= 1e-12 * b:
-                        return math.inf, b, math.inf
-                else:
-                    return math.inf, b, math.inf
-                break
-            lo = hi
-            hi *= 2.0
-        for _ in range(200):
-            mid = 0.5 * (lo + hi)
-            hm, d, I_new, slope = h(mid)
-            if hm == math.inf or hm < 0.0:
-                hi = mid
-            else:
-                lo = mid
-            if hi - lo <= I_RTOL * hi:
-                hm, d, I_new, slope = h(hi)
-                return d, I_new, slope
-        raise ConvergenceError(f"ionic strength did not settle at pH {pH:.4g}", field=None)
+                        lo = mid
+                    if hi - lo <= I_RTOL * hi:
+                        break
+                _, d, I_new, slope = h(hi)
+                if d >= 0.0:
+                    return d, I_new, slope
+            prev_I, prev_h = I, hI
+        return math.inf, I_guess, math.inf
 
     def direction_term(self, pH, I):
         """Charge the chemical brings per mole at pH (plus the titrant's own water) [eq/mol or eq/L]."""
