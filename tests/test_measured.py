@@ -1,0 +1,90 @@
+"""Water from measurements: pH + alkalinity -> DIC, round trips and bad input."""
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from acidscape.alkalinity import MG_CACO3_PER_MEQ
+from acidscape.api import solve
+from acidscape.errors import InputError
+from acidscape.measured import close_scenario, resolve_measured
+
+
+def test_textbook_DIC_from_pH_and_alkalinity():
+    # Ideal activities, equivalence-point alkalinity: C_T = (Alk - [OH-] + [H+]) / (a1 + 2 a2)
+    # (Stumm & Morgan, Aquatic Chemistry 1996, ch. 4; the classic closed-system relation).
+    pH, alk_meq = 7.6, 2.4
+    sc, info = resolve_measured({"activity": "ideal", "measured": {"pH": pH, "alkalinity": {
+        "value": alk_meq, "unit": "meq/L", "definition": "equivalence-point"}}})
+    out = solve(sc)
+    pK1, pK2 = out["systems"][-1]["pKa"]
+    h = 10**-pH
+    K1, K2 = 10**-pK1, 10**-pK2
+    D = h * h + K1 * h + K1 * K2
+    a1, a2 = K1 * h / D, K1 * K2 / D
+    C = (alk_meq * 1e-3 - 10 ** (pH - out["pKw"]) + h) / (a1 + 2 * a2)
+    assert info["DIC_M"] == pytest.approx(C, rel=1e-10)
+    assert out["pH"] == pytest.approx(pH, abs=1e-8)
+
+
+@settings(max_examples=60, deadline=None)
+@given(pH=st.floats(5.5, 10.5), alk=st.floats(10.0, 400.0), t=st.floats(0.0, 40.0),
+       model=st.sampled_from(["ideal", "davies", "extended-debye-huckel"]), ca=st.floats(0.0, 3.0),
+       nh4=st.floats(0.0, 1.0))
+def test_round_trip_pH_and_lab_alkalinity(pH, alk, t, model, ca, nh4):
+    # The inferred water solves back to the measured pH and reports the measured alkalinity
+    # (fixed end point pH 4.5, mg/L as CaCO3, as a lab would per SM 2320 B).
+    sc = {"temperature_C": t, "activity": model,
+          "measured": {"pH": pH, "alkalinity": {"value": alk, "unit": "mg/L as CaCO3"}},
+          "systems": [{"id": "ammonium", "total": nh4, "unit": "mmol/L"}],
+          "ions": [{"id": "Ca+2", "total": ca, "unit": "mmol/L"}, {"id": "Cl-", "total": 2 * ca, "unit": "mmol/L"}]}
+    try:
+        out = solve(sc)
+    except InputError as e:
+        # Only an inconsistent pair may be refused (alkalinity below what water and NH3 give).
+        assert e.field == "measured.alkalinity.value"
+        return
+    assert out["pH"] == pytest.approx(pH, abs=1e-7)
+    assert out["alkalinity"]["fixed_end_point"]["total_mg_per_L_as_CaCO3"] == pytest.approx(alk, rel=1e-7)
+    assert out["inferred_from_measurements"]["DIC_M"] > 0
+
+
+def test_units_agree():
+    # 100 mg/L as CaCO3 and 100 / 50.04 meq/L are the same alkalinity (SM 2320 B).
+    a = resolve_measured({"measured": {"pH": 8.0, "alkalinity": {"value": 100, "unit": "mg/L as CaCO3"}}})[1]
+    b = resolve_measured({"measured": {"pH": 8.0, "alkalinity": {"value": 100 / MG_CACO3_PER_MEQ,
+                                                                 "unit": "meq/L"}}})[1]
+    assert a["DIC_M"] == pytest.approx(b["DIC_M"], rel=1e-12)
+
+
+@pytest.mark.parametrize("measured,field,words", [
+    ({"pH": 7.5, "alkalinity": {"value": 120}}, "measured.alkalinity.unit", "measured.alkalinity.unit"),
+    ({"pH": 7.5, "alkalinity": {"value": 120, "unit": "mg/L"}}, "measured.alkalinity.unit", "mg/L as CaCO3"),
+    ({"pH": 7.5, "alkalinity": 120}, "measured.alkalinity", "object"),
+    ({"alkalinity": {"value": 1, "unit": "meq/L"}}, "measured.pH", "required"),
+    ({"pH": 11.5, "alkalinity": {"value": 0.5, "unit": "meq/L"}}, "measured.alkalinity.value", "inconsistent"),
+    ({"pH": 4.2, "alkalinity": {"value": 0.5, "unit": "meq/L"}}, "measured.pH", "end point"),
+])
+def test_bad_measured_input(measured, field, words):
+    with pytest.raises(InputError) as e:
+        solve({"measured": measured})
+    assert e.value.field == field
+    assert words in e.value.message
+
+
+def test_conflicts():
+    m = {"pH": 7.5, "alkalinity": {"value": 2, "unit": "meq/L"}}
+    with pytest.raises(InputError) as e:
+        solve({"measured": m, "systems": [{"id": "carbonate", "total": 1, "unit": "mmol/L"}]})
+    assert e.value.field == "systems[0]"
+    with pytest.raises(InputError) as e:
+        solve({"measured": m, "pH": 7.5})
+    assert e.value.field == "pH"
+
+
+def test_given_pH_is_closed_with_a_balancing_ion():
+    # A scenario with pH and totals becomes an electroneutral one that solves to the same pH.
+    sc = {"pH": 7.2, "systems": [{"id": "carbonate", "total": 3, "unit": "mmol/L"}]}
+    closed = close_scenario(sc)
+    assert closed.eq.pH == pytest.approx(7.2, abs=1e-8)
+    assert any("balancing" in str(i.get("custom", {}).get("name", "")) for i in closed.scenario["ions"])
