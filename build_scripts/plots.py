@@ -183,11 +183,53 @@ def log_concentration_plot() -> figure:
     return p
 
 
+def titration_plot() -> figure:
+    """pH [-] against titrant amount (mL or mg/L): one curve, equivalence points marked.
+
+    Named models: ``titr_fig``, ``titr_src`` (columns ``x``, ``pH``), ``titr_eq_src``
+    (columns ``x``, ``pH``, ``label``: equivalence and half-equivalence points),
+    ``titr_xaxis`` (its ``axis_label`` names the amount and unit), ``titr_x`` (Range1d).
+    """
+    p = _base_figure("titr_fig", "pH", Range1d(0, 14, bounds=(-2, 16)))
+    p.x_range = Range1d(0, 1, name="titr_x")
+    p.xaxis.axis_label = "titrant added"
+    p.xaxis.name = "titr_xaxis"
+    p.xaxis.ticker.desired_num_ticks = 10
+    p.yaxis.ticker.desired_num_ticks = 8
+    p.tools = [t for t in p.tools if type(t).__name__ not in ("PanTool", "WheelZoomTool")]
+    curve_src = ColumnDataSource(data={"x": [], "pH": []}, name="titr_src")
+    points_src = ColumnDataSource(data={"x": [], "pH": [], "label": []}, name="titr_eq_src")
+    curve = p.line("x", "pH", source=curve_src, line_width=2.6, line_color=PALETTE[0])
+    marks = p.scatter("x", "pH", source=points_src, size=11, marker="diamond", fill_color=PALETTE[1],
+                      line_color=_INK, line_width=1.0)
+    p.add_tools(HoverTool(renderers=[curve], mode="vline",
+                          tooltips=[("added", "@x{0.000}"), ("pH", "@pH{0.00}")]))
+    p.add_tools(HoverTool(renderers=[marks], tooltips=[("point", "@label"), ("added", "@x{0.000}"),
+                                                        ("pH", "@pH{0.00}")]))
+    return p
+
+
+def buffer_plot() -> figure:
+    """Buffer intensity beta [mmol/(L pH)] against pH, with the water's pH marked.
+
+    Named models: ``buffer_fig``, ``buffer_src`` (columns ``pH``, ``beta``),
+    ``buffer_marker`` (Span), ``buffer_y`` (Range1d).
+    """
+    p = _base_figure("buffer_fig", "buffer intensity β (mmol/L per pH)", Range1d(0, 1, name="buffer_y"))
+    src = ColumnDataSource(data={"pH": [], "beta": []}, name="buffer_src")
+    line = p.line("pH", "beta", source=src, line_width=2.6, line_color=PALETTE[5])
+    p.add_tools(HoverTool(renderers=[line], mode="vline", tooltips=[("pH", "@pH{0.00}"), ("β", "@beta{0.0000}")]))
+    p.add_layout(_marker("buffer_marker"))
+    return p
+
+
 def templates() -> dict:
     """Every plot as a ``json_item`` dict, keyed by the name plot.js looks up."""
     return {
         "distribution": json_item(distribution_plot()),
         "log_concentration": json_item(log_concentration_plot()),
+        "titration": json_item(titration_plot()),
+        "buffer": json_item(buffer_plot()),
         "palette": list(PALETTE),
         "layout": {"base_height_px": BASE_HEIGHT_PX, "legend_row_px": LEGEND_ROW_PX},
     }
