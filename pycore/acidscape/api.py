@@ -408,6 +408,12 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "titrate": titrate,
         "dose": dose,
     }
+    try:  # buffer-intensity curve of a water for the page (issue 4)
+        from .buffer_api import buffer_curve_of_water
+
+        methods["buffer"] = buffer_curve_of_water
+    except ImportError:  # pragma: no cover - during bootstrap only
+        pass
     try:
         from .dosing import chemicals
 
