@@ -18,6 +18,7 @@ import math
 from collections.abc import Callable
 
 from . import __version__
+from .checks import number, whole
 from .errors import AcidscapeError, InputError, UnknownIdError
 from .speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions
 
@@ -38,36 +39,11 @@ def _number(params: dict, key: str, default=None, *, lo=None, hi=None, field=Non
     value = params.get(key, default)
     if value is None:
         raise InputError(f"{field} is required", field=field)
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        if isinstance(value, str):
-            try:
-                value = float(value.strip())
-            except ValueError:
-                raise InputError(f"{field} must be a number, got {value!r}", field=field) from None
-        else:
-            raise InputError(f"{field} must be a number, got {value!r}", field=field)
-    value = float(value)
-    if not math.isfinite(value):
-        raise InputError(f"{field} must be a finite number, got {value!r}", field=field)
-    if lo is not None and value < lo:
-        raise InputError(f"{field} = {value:g} is below the allowed minimum {lo:g}", field=field)
-    if hi is not None and value > hi:
-        raise InputError(f"{field} = {value:g} is above the allowed maximum {hi:g}", field=field)
-    return value
+    return number(value, field, lo=lo, hi=hi, allow_text=True)
 
 
 def _integer(params: dict, key: str, default=None, *, lo=None, hi=None) -> int:
-    value = params.get(key, default)
-    if isinstance(value, bool) or not isinstance(value, int):
-        if isinstance(value, float) and value.is_integer():
-            value = int(value)
-        else:
-            raise InputError(f"{key} must be a whole number, got {value!r}", field=key)
-    if lo is not None and value < lo:
-        raise InputError(f"{key} = {value} is below the allowed minimum {lo}", field=key)
-    if hi is not None and value > hi:
-        raise InputError(f"{key} = {value} is above the allowed maximum {hi}", field=key)
-    return value
+    return whole(params.get(key, default), key, lo=lo, hi=hi)
 
 
 def generic_species_names(n: int, z0: int, base: str = "A") -> list[str]:

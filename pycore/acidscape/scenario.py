@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 
 from . import activity, library, temperature, water
 from .constants import T0
+from .checks import number
 from .errors import InputError, UnknownIdError
 from .solver import Component, Ion
 from .speciation import MAX_STEPS, _check_pKa
@@ -86,16 +87,7 @@ class Parsed:
 
 
 def _num(value, field_name: str, *, lo=None, hi=None) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputError(f"{field_name} must be a number, got {value!r}", field=field_name)
-    v = float(value)
-    if not math.isfinite(v):
-        raise InputError(f"{field_name} must be a finite number, got {value!r}", field=field_name)
-    if lo is not None and v < lo:
-        raise InputError(f"{field_name} = {v:g} is below the allowed minimum {lo:g}", field=field_name)
-    if hi is not None and v > hi:
-        raise InputError(f"{field_name} = {v:g} is above the allowed maximum {hi:g}", field=field_name)
-    return v
+    return number(value, field_name, lo=lo, hi=hi)
 
 
 def _text(value, field_name: str, max_len: int = 80) -> str:
@@ -116,6 +108,23 @@ def _entry_list(scenario: dict, key: str, limit: int) -> list:
         if not isinstance(e, dict):
             raise InputError(f"{key}[{i}] must be an object, got {e!r}", field=f"{key}[{i}]")
     return entries
+
+
+def _total(entry: dict, unit, item, path: str) -> float:
+    """The entry's total in mol/L: a number, not negative, within MAX_TOTAL_M."""
+    total = to_molar(entry.get("total", 0.0), unit, item, f"{path}.total")
+    return total
+
+
+def _lookup(getter, key, path: str, what: str):
+    """A library entry by id, with errors naming ``<path>.id``."""
+    if not isinstance(key, str):
+        raise InputError(f"{path}.id must be {what} (text) or give {path}.custom", field=f"{path}.id")
+    try:
+        return getter(key)
+    except UnknownIdError as exc:
+        exc.field = f"{path}.id"
+        raise
 
 
 def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
@@ -144,27 +153,14 @@ def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
         from .api import generic_species_names
 
         names = tuple(generic_species_names(len(pKa), z0))
-        total = to_molar(entry.get("total", 0.0), unit, src, f"{path}.total")
-        if total > MAX_TOTAL_M:
-            raise InputError(f"{path}.total is {total:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
-                             field=f"{path}.total")
+        total = _total(entry, unit, src, path)
         if abs(T - 298.15) > 0.5:
             warnings.append(f"{name}: custom pKa values are used as given (no temperature correction)")
         charges = tuple(z0 - k for k in range(len(pKa) + 1))
         comp = Component(key=src.id, name=name, species=names, charges=charges, pKa=pKa, total_M=total)
         return comp, src
-    sid = entry.get("id")
-    if not isinstance(sid, str):
-        raise InputError(f"{path}.id must be a library id (text) or give {path}.custom", field=f"{path}.id")
-    try:
-        system = library.get_system(sid)
-    except UnknownIdError as exc:
-        exc.field = f"{path}.id"
-        raise
-    total = to_molar(entry.get("total", 0.0), unit, system, f"{path}.total")
-    if total > MAX_TOTAL_M:
-        raise InputError(f"{path}.total is {total:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
-                         field=f"{path}.total")
+    system = _lookup(library.get_system, entry.get("id"), path, "a library id")
+    total = _total(entry, unit, system, path)
     pKa, notes = temperature.pKa_at_with_notes(system, T)
     warnings.extend(notes)
     comp = Component(
@@ -193,23 +189,10 @@ def _read_ion(entry: dict, i: int):
         if mm is not None:
             mm = _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
         src = CustomIon(id=f"custom-ion-{i}", name=name, charge=z, molar_mass_g_per_mol=mm)
-        conc = to_molar(entry.get("total", 0.0), unit, src, f"{path}.total")
-        if conc > MAX_TOTAL_M:
-            raise InputError(f"{path}.total is {conc:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
-                             field=f"{path}.total")
+        conc = _total(entry, unit, src, path)
         return Ion(key=src.id, name=name, charge=z, conc_M=conc), src
-    iid = entry.get("id")
-    if not isinstance(iid, str):
-        raise InputError(f"{path}.id must be an ion id (text) or give {path}.custom", field=f"{path}.id")
-    try:
-        ion = library.get_ion(iid)
-    except UnknownIdError as exc:
-        exc.field = f"{path}.id"
-        raise
-    conc = to_molar(entry.get("total", 0.0), unit, ion, f"{path}.total")
-    if conc > MAX_TOTAL_M:
-        raise InputError(f"{path}.total is {conc:g} mol/L, above the {MAX_TOTAL_M:g} mol/L accepted",
-                         field=f"{path}.total")
+    ion = _lookup(library.get_ion, entry.get("id"), path, "an ion id")
+    conc = _total(entry, unit, ion, path)
     return Ion(key=ion.id, name=ion.formula, charge=ion.charge, conc_M=conc, ion_size_A=ion.ion_size_A), ion
 
 
