@@ -1,0 +1,78 @@
+"""The core under Pyodide (CPython 3.14 compiled to WebAssembly, the browser's interpreter).
+
+Runs build_scripts/pyodide_check.mjs with Node.js: it installs a freshly built wheel into
+Pyodide, runs every module's doctests there, and answers the same requests as the host
+CPython. The host results are the oracle; both interpreters must agree to the last few ulps.
+"""
+
+import json
+import math
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from acidscape import api
+
+ROOT = Path(__file__).resolve().parents[1]
+SCRIPT = ROOT / "build_scripts" / "pyodide_check.mjs"
+PYODIDE = ROOT / "build_scripts" / "node_modules" / "pyodide" / "pyodide.asm.wasm"
+
+REQUESTS = [
+    {"method": "distribution", "params": {"system": "edta", "pH": 9.5, "points": 41}},
+    {"method": "solve", "params": {"temperature_C": 8, "systems": [
+        {"id": "carbonate", "total": 3, "unit": "mmol/L"}, {"id": "phosphate", "total": 0.5, "unit": "mg/L as P"},
+        {"id": "ammonium", "total": 1, "unit": "mg/L as N"}],
+        "ions": [{"id": "Na+", "total": 2.5, "unit": "mmol/L"}, {"id": "Ca+2", "total": 1, "unit": "meq/L"}]}},
+    {"method": "solve", "params": {"activity": "extended-debye-huckel", "gas": {"CO2_partial_pressure_atm": 0.01}}},
+    {"method": "water", "params": {"systems": [{"id": "hypochlorous", "total": 2, "unit": "mg/L as Cl2"}],
+                                    "curve": {"points": 15}}},
+    {"method": "solve", "params": {"systems": [{"id": "nope", "total": 1}]}},
+]
+
+
+def _close(a, b, path="$"):
+    """Equal structure; floats equal within 1e-12 relative (libm may differ in the last bits)."""
+    if isinstance(a, float) or isinstance(b, float):
+        assert math.isclose(a, b, rel_tol=1e-12, abs_tol=1e-300), f"{path}: {a} != {b}"
+    elif isinstance(a, dict):
+        assert a.keys() == b.keys(), path
+        for k in a:
+            _close(a[k], b[k], f"{path}.{k}")
+    elif isinstance(a, list):
+        assert len(a) == len(b), path
+        for i, (x, y) in enumerate(zip(a, b)):
+            _close(x, y, f"{path}[{i}]")
+    else:
+        assert a == b, f"{path}: {a!r} != {b!r}"
+
+
+@pytest.fixture(scope="module")
+def pyodide_run(tmp_path_factory):
+    if not PYODIDE.exists():
+        pytest.fail("Pyodide is not installed: run `npm ci --prefix build_scripts` (dev.sh does)")
+    out = tmp_path_factory.mktemp("wheel")
+    subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "--no-index",
+                    "-q", "-w", str(out), str(ROOT)], check=True, capture_output=True, timeout=300)
+    wheel = next(out.glob("acidscape-*.whl"))
+    proc = subprocess.run(["node", str(SCRIPT), str(wheel)], input=json.dumps(REQUESTS), capture_output=True,
+                          text=True, timeout=300)
+    assert proc.returncode == 0, proc.stderr[-3000:]
+    return json.loads(proc.stdout)
+
+
+def test_runs_on_python_3_14(pyodide_run):
+    assert pyodide_run["python"].startswith("3.14")
+
+
+def test_doctests_pass_in_pyodide(pyodide_run):
+    assert pyodide_run["doctests_attempted"] > 50
+    assert pyodide_run["doctests_failed"] == 0
+
+
+@pytest.mark.parametrize("index", range(len(REQUESTS)))
+def test_same_answers_as_host_cpython(pyodide_run, index):
+    req = REQUESTS[index]
+    host = json.loads(api.handle(req["method"], json.dumps(req["params"])))
+    _close(pyodide_run["answers"][index], host)
