@@ -384,6 +384,12 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "titrate": titrate,
         "dose": dose,
     }
+    try:  # many samples from a CSV, streamed in chunks by the page (site/batch.js)
+        from .batch import batch_chunk
+
+        methods["batch_chunk"] = batch_chunk
+    except ImportError:  # pragma: no cover - during bootstrap only
+        pass
     try:  # buffer-intensity curve of a water for the page (issue 4)
         from .buffer_api import buffer_curve_of_water
 
