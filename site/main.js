@@ -4,6 +4,8 @@ import { startPython } from "./py.js";
 import { embedPlots } from "./plot.js";
 import { AboutView, DistributionView, StatusView } from "./view.js";
 import { mountDistribution } from "./distribution.js";
+import { mountWater } from "./water.js";
+import { WaterView, embedWaterPlots } from "./water-view.js";
 
 const status = new StatusView(document);
 const about = new AboutView(document);
@@ -27,8 +29,19 @@ try {
     status,
     systems: library,
   });
+  // Section "Equilibrium of a whole water" (water.js); its handle feeds later sections.
+  const waterLibrary = await py.call("systems").catch(() => ({ systems: [], ions: [] }));
+  const water = mountWater({
+    py,
+    view: new WaterView(document),
+    plots: await embedWaterPlots(),
+    palette: plotHandles.palette,
+    systems: waterLibrary.systems,
+    ions: waterLibrary.ions,
+  });
   status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
   await distribution.refresh();
+  await water.refresh();
 } catch (error) {
   status.fatal(String(error?.message || error));
 }

@@ -1,0 +1,565 @@
+// DOM code of the "Equilibrium of a whole water" section (#water-section): the composition
+// rows, the condition inputs, the messages beside them and the results. No chemistry here and
+// no calls to the core; water.js decides what to show. Text goes in through textContent only.
+
+import { embedSpeciesPlot } from "./plot.js";
+import { fixed, prettyFormula, sciNumber } from "./format.js";
+
+function byId(doc, id) {
+  const el = doc.getElementById(id);
+  if (!el) throw new Error(`the page lacks #${id}`);
+  return el;
+}
+
+/** Ids of the fixed (non-row) inputs, keyed by the name water.js uses for them. */
+export const CONDITION_INPUTS = {
+  temperature: "water-temperature",
+  activity: "water-activity",
+  iMode: "water-istrength-mode",
+  iValue: "water-istrength-value",
+  fixedPH: "water-fixed-ph",
+  pco2: "water-pco2",
+  measuredPH: "water-measured-ph",
+  alkValue: "water-alk-value",
+};
+
+const I_VALUE_LABEL = {
+  given: "Ionic strength (mol/L)",
+  tds: "Total dissolved solids (mg/L)",
+  conductance: "Specific conductance (µS/cm at 25 °C)",
+};
+
+/**
+ * Text shown for a core unit string.
+ *
+ * @param {string} unit  e.g. "umol/L", "mg/L", "mg/L as N"
+ * @param {string|null} massBasis  formula the plain "mg/L" of a system refers to (e.g. "PO4")
+ * @returns {string}  display text
+ */
+export function unitLabel(unit, massBasis = null) {
+  if (unit === "umol/L") return "µmol/L";
+  if (unit === "mg/L" && massBasis) return `mg/L of ${prettyFormula(massBasis)}`;
+  if (unit.startsWith("mg/L as ")) return `mg/L as ${prettyFormula(unit.slice(8))}`;
+  return unit;
+}
+
+/**
+ * Embed the section's two plots (call once, after the page's other plots).
+ *
+ * @returns {Promise<{fraction: object, logc: object}>}  SpeciesPlot handles from plot.js
+ */
+export async function embedWaterPlots() {
+  const fraction = await embedSpeciesPlot("fraction", "plot-water-fraction");
+  const logc = await embedSpeciesPlot("logc", "plot-water-logc");
+  return { fraction, logc };
+}
+
+/** Inputs, rows, messages and results of #water-section. */
+export class WaterView {
+  /** @param {Document} doc */
+  constructor(doc) {
+    this.doc = doc;
+    this.section = byId(doc, "water-section");
+    this.form = byId(doc, "water-form");
+    this.systemsHost = byId(doc, "water-systems");
+    this.ionsHost = byId(doc, "water-ions");
+    this.inputs = Object.fromEntries(Object.entries(CONDITION_INPUTS).map(([k, id]) => [k, byId(doc, id)]));
+    this.alkUnit = byId(doc, "water-alk-unit");
+    this.measured = byId(doc, "water-measured");
+    this.measuredFields = byId(doc, "water-measured-fields");
+    this.iValueField = byId(doc, "water-istrength-value-field");
+    this.iValueLabel = byId(doc, "water-istrength-value-label");
+    this.formError = byId(doc, "water-error");
+    this.results = byId(doc, "water-results");
+    this.displayUnit = byId(doc, "water-display-unit");
+    this.plotSystem = byId(doc, "water-plot-system");
+    this.speciesTable = byId(doc, "water-species-table");
+    this.trailTable = byId(doc, "water-trail-table");
+    this.systemOptions = [];
+    this.ionOptions = [];
+    this.drawn = 0;
+    this.form.addEventListener("submit", (event) => event.preventDefault());
+  }
+
+  /**
+   * @param {{id: string, name: string}[]} systems  library acid-base systems
+   * @param {{id: string, name: string, formula: string}[]} ions  library strong ions
+   */
+  setLibrary(systems, ions) {
+    this.systemOptions = systems.map((s) => [s.id, s.name]);
+    this.ionOptions = ions.map((s) => [s.id, `${s.name} (${prettyFormula(s.formula)})`]);
+  }
+
+  // -- rows ----------------------------------------------------------------------------------
+
+  field(idBase, labelText, control, hintText = null) {
+    const wrap = this.doc.createElement("div");
+    wrap.className = "field";
+    const label = this.doc.createElement("label");
+    label.htmlFor = control.id;
+    label.textContent = labelText;
+    if (hintText) {
+      const unit = this.doc.createElement("span");
+      unit.className = "unit";
+      unit.textContent = ` ${hintText}`;
+      label.append(unit);
+    }
+    wrap.append(label, control, this.errorLine(control.id));
+    control.setAttribute("aria-describedby", `${control.id}-error`);
+    return wrap;
+  }
+
+  errorLine(id) {
+    const p = this.doc.createElement("p");
+    p.id = `${id}-error`;
+    p.className = "error";
+    p.setAttribute("aria-live", "polite");
+    return p;
+  }
+
+  textInput(id, value, mode = "decimal") {
+    const input = this.doc.createElement("input");
+    input.id = id;
+    input.type = "text";
+    input.inputMode = mode;
+    input.spellcheck = false;
+    input.value = value ?? "";
+    return input;
+  }
+
+  select(id, options, value, customLabel) {
+    const select = this.doc.createElement("select");
+    select.id = id;
+    const group = this.doc.createElement("optgroup");
+    group.label = "Library";
+    for (const [v, text] of options) {
+      const option = this.doc.createElement("option");
+      option.value = v;
+      option.textContent = text;
+      group.append(option);
+    }
+    const custom = this.doc.createElement("option");
+    custom.value = "custom";
+    custom.textContent = customLabel;
+    select.append(group, custom);
+    select.value = value;
+    return select;
+  }
+
+  /**
+   * Rebuild one list of rows; ids follow the position (#water-system-0-total, ...).
+   *
+   * @param {"system"|"ion"} kind
+   * @param {object[]} rows  raw text of each row: {id, total, unit, name, pka, charge, mass}
+   * @param {(kind: string, i: number, row: object) => {units: [string, string][], note?: string}} unitsFor
+   *        the unit options [value, label] of a row
+   */
+  setRows(kind, rows, unitsFor) {
+    const host = kind === "system" ? this.systemsHost : this.ionsHost;
+    const nodes = rows.map((row, i) => this.buildRow(kind, i, row, unitsFor(kind, i, row)));
+    host.replaceChildren(...nodes);
+    if (!rows.length) {
+      const empty = this.doc.createElement("p");
+      empty.className = "hint";
+      empty.textContent = kind === "system" ? "No acid-base system yet." : "No strong ion yet.";
+      host.append(empty);
+    }
+  }
+
+  buildRow(kind, i, row, { units, note }) {
+    const base = `water-${kind}-${i}`;
+    const isSystem = kind === "system";
+    const div = this.doc.createElement("div");
+    div.className = "water-row";
+    div.id = base;
+    div.dataset.kind = kind;
+    div.dataset.index = String(i);
+
+    const head = this.doc.createElement("div");
+    head.className = "water-row-head";
+    const idSelect = this.select(
+      `${base}-id`,
+      isSystem ? this.systemOptions : this.ionOptions,
+      row.id,
+      isSystem ? "Your own acid (enter its pKa values)" : "Your own ion",
+    );
+    const remove = this.doc.createElement("button");
+    remove.type = "button";
+    remove.className = "water-remove";
+    remove.id = `${base}-remove`;
+    remove.dataset.action = "remove";
+    remove.textContent = "Remove";
+    remove.setAttribute("aria-label", `Remove ${isSystem ? "system" : "ion"} ${i + 1}`);
+    const idField = this.field(base, isSystem ? `System ${i + 1}` : `Ion ${i + 1}`, idSelect);
+    head.append(idField, remove);
+    div.append(head);
+
+    const custom = this.doc.createElement("div");
+    custom.className = "water-custom";
+    custom.id = `${base}-custom`;
+    custom.hidden = row.id !== "custom";
+    custom.append(this.field(base, "Name", this.textInput(`${base}-name`, row.name, "text")));
+    if (isSystem) {
+      custom.append(
+        this.field(base, "pKa values", this.textInput(`${base}-pka`, row.pka), "(25 °C, comma separated, step 1 first)"),
+        this.field(base, "Charge of the most protonated form", this.textInput(`${base}-charge`, row.charge, "numeric"), "(e.g. 0)"),
+      );
+    } else {
+      custom.append(
+        this.field(base, "Charge", this.textInput(`${base}-charge`, row.charge, "numeric"), "(e.g. 1 or −2)"),
+        this.field(base, "Molar mass", this.textInput(`${base}-mass`, row.mass), "(g/mol, optional; needed for mg/L)"),
+      );
+    }
+    div.append(custom);
+
+    const amount = this.doc.createElement("div");
+    amount.className = "field";
+    const label = this.doc.createElement("label");
+    label.htmlFor = `${base}-total`;
+    label.textContent = isSystem ? "Total" : "Concentration";
+    const pair = this.doc.createElement("div");
+    pair.className = "water-pair";
+    const total = this.textInput(`${base}-total`, row.total);
+    total.setAttribute("aria-describedby", `${base}-total-error ${base}-unit-error`);
+    const unit = this.doc.createElement("select");
+    unit.id = `${base}-unit`;
+    unit.setAttribute("aria-label", `Unit of ${isSystem ? "system" : "ion"} ${i + 1}`);
+    pair.append(total, unit);
+    amount.append(label, pair, this.errorLine(`${base}-total`), this.errorLine(`${base}-unit`));
+    const hint = this.doc.createElement("p");
+    hint.className = "hint";
+    hint.id = `${base}-note`;
+    hint.textContent = note || "";
+    hint.hidden = !note;
+    amount.append(hint);
+    div.append(amount);
+    this.fillUnits(unit, units, row.unit);
+    if (note) total.disabled = true;
+    return div;
+  }
+
+  fillUnits(select, units, wanted) {
+    select.replaceChildren(
+      ...units.map(([value, text]) => {
+        const option = this.doc.createElement("option");
+        option.value = value;
+        option.textContent = text;
+        return option;
+      }),
+    );
+    const values = units.map(([v]) => v);
+    if (values.includes(wanted)) {
+      select.value = wanted;
+    } else if (wanted) {
+      // Keep a unit that does not fit visible, so the message beside it makes sense.
+      const option = this.doc.createElement("option");
+      option.value = wanted;
+      option.textContent = `${wanted} (does not fit)`;
+      select.append(option);
+      select.value = wanted;
+    } else {
+      select.value = values.includes("mmol/L") ? "mmol/L" : values[0];
+    }
+  }
+
+  /**
+   * Update one row after its system/ion or molar mass changed.
+   *
+   * @param {"system"|"ion"} kind
+   * @param {number} i  row position
+   * @param {{units: [string, string][], note?: string}} info  unit options and a note
+   * @param {boolean} isCustom  show the "your own" fields
+   */
+  updateRow(kind, i, { units, note }, isCustom) {
+    const base = `water-${kind}-${i}`;
+    byId(this.doc, `${base}-custom`).hidden = !isCustom;
+    const unit = byId(this.doc, `${base}-unit`);
+    const current = unit.value;
+    const values = units.map(([v]) => v);
+    this.fillUnits(unit, units, values.includes(current) ? current : null);
+    const hint = byId(this.doc, `${base}-note`);
+    hint.textContent = note || "";
+    hint.hidden = !note;
+    byId(this.doc, `${base}-total`).disabled = Boolean(note);
+  }
+
+  /** @returns {{systems: object[], ions: object[]}} raw text of every row */
+  readRows() {
+    const read = (kind, host) =>
+      [...host.querySelectorAll(":scope > .water-row")].map((div, i) => {
+        const base = `water-${kind}-${i}`;
+        const value = (suffix) => this.doc.getElementById(`${base}-${suffix}`)?.value ?? "";
+        return kind === "system"
+          ? { id: value("id"), total: value("total"), unit: value("unit"), name: value("name"), pka: value("pka"), charge: value("charge") }
+          : { id: value("id"), total: value("total"), unit: value("unit"), name: value("name"), charge: value("charge"), mass: value("mass") };
+      });
+    return { systems: read("system", this.systemsHost), ions: read("ion", this.ionsHost) };
+  }
+
+  // -- conditions ----------------------------------------------------------------------------
+
+  /** @returns {object} raw text of the condition inputs plus the display choices */
+  readConditions() {
+    const out = Object.fromEntries(Object.entries(this.inputs).map(([k, el]) => [k, el.value]));
+    out.measured = this.measured.checked;
+    out.alkUnit = this.alkUnit.value;
+    out.displayUnit = this.displayUnit.value;
+    out.plotSystem = this.plotSystem.value;
+    return out;
+  }
+
+  /** @param {object} values  some of the keys readConditions returns */
+  setConditions(values) {
+    for (const [k, el] of Object.entries(this.inputs)) if (values[k] !== undefined) el.value = values[k];
+    if (values.measured !== undefined) this.measured.checked = Boolean(values.measured);
+    if (values.alkUnit !== undefined) this.alkUnit.value = values.alkUnit;
+    if (values.displayUnit !== undefined) this.displayUnit.value = values.displayUnit;
+    this.syncConditionFields();
+  }
+
+  /** Show the fields that the current choices need. */
+  syncConditionFields() {
+    const mode = this.inputs.iMode.value;
+    this.iValueField.hidden = mode === "composition";
+    this.iValueLabel.textContent = I_VALUE_LABEL[mode] || "Value";
+    this.measuredFields.hidden = !this.measured.checked;
+  }
+
+  // -- messages ------------------------------------------------------------------------------
+
+  /**
+   * Show one message beside each named input and clear every other message of the section.
+   *
+   * @param {Record<string, string>} messages  input id (or "water-error") -> message
+   */
+  showErrors(messages) {
+    for (const p of this.section.querySelectorAll(".error")) {
+      const id = p.id.replace(/-error$/, "");
+      const message = p.id === "water-error" ? messages["water-error"] || "" : messages[id] || "";
+      p.textContent = message;
+      const input = this.doc.getElementById(id);
+      if (input && input !== p) {
+        if (message) input.setAttribute("aria-invalid", "true");
+        else input.removeAttribute("aria-invalid");
+      }
+    }
+    // A message for an input that is not on the page (should not happen) goes to the section.
+    const stray = Object.entries(messages).filter(([id]) => id !== "water-error" && !this.doc.getElementById(`${id}-error`));
+    if (stray.length) this.formError.textContent = [messages["water-error"], ...stray.map(([, m]) => m)].filter(Boolean).join(" ");
+  }
+
+  /** @param {boolean} busy  a computation is running */
+  setBusy(busy) {
+    this.results.setAttribute("aria-busy", busy ? "true" : "false");
+  }
+
+  /**
+   * @param {(what: string, detail: {kind?: string, index?: number, id?: string}) => void} handler
+   *        "add-system", "add-ion", "remove", "row-id" (a row's system/ion changed), "row-mass",
+   *        "mode" (ionic strength or measured switch), "display-unit", "plot-system", "value"
+   */
+  bind(handler) {
+    byId(this.doc, "water-add-system").addEventListener("click", () => handler("add-system", {}));
+    byId(this.doc, "water-add-ion").addEventListener("click", () => handler("add-ion", {}));
+    const rowOf = (el) => {
+      const row = el.closest(".water-row");
+      return row ? { kind: row.dataset.kind, index: Number(row.dataset.index), id: el.id } : null;
+    };
+    this.form.addEventListener("click", (event) => {
+      const button = event.target.closest("button[data-action='remove']");
+      if (button) handler("remove", rowOf(button));
+    });
+    this.form.addEventListener("change", (event) => {
+      const el = event.target;
+      const row = rowOf(el);
+      if (row && el.id.endsWith("-id")) handler("row-id", row);
+      else if (row && el.id.endsWith("-unit")) handler("value", row);
+      else if (el === this.measured || el === this.inputs.iMode) {
+        this.syncConditionFields();
+        handler("mode", { id: el.id });
+      } else if (el.tagName === "SELECT") handler("value", { id: el.id });
+    });
+    this.form.addEventListener("input", (event) => {
+      const el = event.target;
+      if (el.tagName !== "INPUT" || el.type === "checkbox") return;
+      const row = rowOf(el);
+      handler(row && el.id.endsWith("-mass") ? "row-mass" : "value", row || { id: el.id });
+    });
+    this.displayUnit.addEventListener("change", () => handler("display-unit", {}));
+    this.plotSystem.addEventListener("change", () => handler("plot-system", {}));
+  }
+
+  // -- results -------------------------------------------------------------------------------
+
+  setNumber(id, text, value) {
+    const el = byId(this.doc, id);
+    el.textContent = text;
+    el.dataset.value = value === null || value === undefined ? "" : String(value);
+  }
+
+  /**
+   * Draw the summary, warnings, species table and trail of one solved water.
+   *
+   * @param {object} result  the core's solve result
+   * @param {{unit: string}} display  concentration unit of the species table
+   * @param {string[]} palette  line colours, in plot order
+   * @param {Map<string, string>} names  system key -> name shown in the tables
+   */
+  renderResult(result, display, palette, names) {
+    byId(this.doc, "water-ph-label").textContent = result.pH_was_given ? "pH (given)" : "Equilibrium pH";
+    this.setNumber("water-ph", fixed(result.pH, 2), result.pH);
+    this.setNumber("water-ionic-strength", `${sciNumber(result.ionic_strength_M, 3)} mol/L`, result.ionic_strength_M);
+    byId(this.doc, "water-ionic-strength-source").textContent = `(${result.ionic_strength_source})`;
+    this.setNumber("water-pkw", fixed(result.pKw, 3), result.pKw);
+    this.setNumber("water-temperature-shown", `${fixed(result.temperature_C, 1)} °C`, result.temperature_C);
+    const alk = result.alkalinity || {};
+    this.setNumber(
+      "water-alk-total",
+      `${fixed(alk.total_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(alk.total_meq_per_L, 3)} meq/L`,
+      alk.total_mg_per_L_as_CaCO3,
+    );
+    this.setNumber(
+      "water-alk-p",
+      `${fixed(alk.phenolphthalein_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(alk.phenolphthalein_meq_per_L, 3)} meq/L`,
+      alk.phenolphthalein_mg_per_L_as_CaCO3,
+    );
+    const beta = result.buffer_intensity_eq_per_L_per_pH;
+    this.setNumber("water-buffer", `${sciNumber(beta * 1e3, 3)} mmol/L per pH unit`, beta);
+
+    const inferred = byId(this.doc, "water-inferred");
+    const info = result.inferred_from_measurements;
+    inferred.hidden = !info;
+    inferred.textContent = info
+      ? `From the measurements: carbonate total ${sciNumber(info.DIC_M * 1e3, 4)} mmol/L ` +
+        `(${fixed(info.DIC_mg_per_L_as_C, 2)} mg/L as C); unlisted strong ions carry ` +
+        `${sciNumber(info.balancing_ion_eq_per_L * 1e3, 3)} meq/L.`
+      : "";
+
+    const warnings = byId(this.doc, "water-warnings");
+    warnings.replaceChildren(
+      ...(result.warnings || []).map((w) => {
+        const li = this.doc.createElement("li");
+        li.textContent = w.charAt(0).toUpperCase() + w.slice(1);
+        return li;
+      }),
+    );
+
+    this.renderSpecies(result, display, palette, names);
+    this.renderTrail(result, names);
+  }
+
+  renderSpecies(result, display, palette, names) {
+    const unit = display.unit;
+    byId(this.doc, "water-conc-unit").textContent = `(${unit === "mg/L" ? "mg/L of the species" : unit})`;
+    const scale = unit === "mmol/L" ? 1e3 : 1;
+    const shown = (c, mm) => (unit === "mg/L" ? (mm ? c * mm * 1e3 : null) : c * scale);
+    const rows = [];
+    const add = (s, systemName, slot, percent) => {
+      const tr = this.doc.createElement("tr");
+      tr.dataset.species = s.name;
+      tr.dataset.system = s.system ?? "";
+      tr.dataset.concentrationM = String(s.concentration_M);
+      const name = this.doc.createElement("th");
+      name.scope = "row";
+      if (slot !== null) {
+        const swatch = this.doc.createElement("span");
+        swatch.className = "swatch";
+        swatch.style.background = palette[Math.min(slot, palette.length - 1)];
+        swatch.setAttribute("aria-hidden", "true");
+        name.append(swatch);
+      }
+      name.append(prettyFormula(s.name));
+      const value = shown(s.concentration_M, s.molar_mass_g_per_mol);
+      tr.append(
+        name,
+        this.cell(systemName, null, "system", "col-system"),
+        this.cell(s.charge > 0 ? `+${s.charge}` : fixed(s.charge, 0), s.charge, "charge", "num col-charge"),
+        this.cell(sciNumber(value, 4), value, "concentration", "num"),
+        this.cell(sciNumber(s.activity_M, 4), s.activity_M, "activity_M", "num"),
+        this.cell(fixed(s.activity_coefficient, 4), s.activity_coefficient, "activity_coefficient", "num"),
+        this.cell(percent === null ? "—" : fixed(percent, 2), percent, "percent", "num"),
+      );
+      rows.push(tr);
+    };
+    // Slots follow the log-concentration plot: H+, OH-, then every species in order.
+    let slot = 2;
+    for (const s of result.species) add(s, names.get(s.system) ?? s.system, slot++, s.fraction * 100);
+    for (const ion of result.ions) add({ ...ion, system: "strong ion", molar_mass_g_per_mol: null }, "strong ion", null, null);
+    result.water_ions.forEach((w, k) => add({ ...w, system: "water", molar_mass_g_per_mol: w.name === "H+" ? 1.008 : 17.007 }, "water", k, null));
+    this.speciesTable.tBodies[0].replaceChildren(...rows);
+  }
+
+  renderTrail(result, names) {
+    let positive = 0;
+    let negative = 0;
+    let sum = 0;
+    const rows = result.trail.map((t) => {
+      const q = t.charge_eq_per_L;
+      if (q > 0) positive += q;
+      else negative += q;
+      sum += q;
+      const tr = this.doc.createElement("tr");
+      tr.dataset.term = t.term;
+      const name = this.doc.createElement("th");
+      name.scope = "row";
+      name.textContent = prettyFormula(t.term);
+      if (t.system) {
+        const sys = this.doc.createElement("span");
+        sys.className = "unit";
+        sys.textContent = ` (${names.get(t.system) ?? t.system})`;
+        name.append(sys);
+      }
+      tr.append(
+        name,
+        this.cell(t.charge > 0 ? `+${t.charge}` : fixed(t.charge, 0), t.charge, "charge", "num col-charge"),
+        this.cell(sciNumber(t.concentration_M * 1e3, 4), t.concentration_M, "concentration_M", "num"),
+        this.cell(sciNumber(q * 1e3, 4), q, "charge_eq_per_L", "num"),
+      );
+      return tr;
+    });
+    this.trailTable.tBodies[0].replaceChildren(...rows);
+    this.setNumber("water-trail-positive", sciNumber(positive * 1e3, 6), positive);
+    this.setNumber("water-trail-negative", sciNumber(negative * 1e3, 6), negative);
+    const residual = result.charge_balance_residual_eq_per_L;
+    this.setNumber("water-trail-residual", sciNumber(residual * 1e3, 3), residual);
+    byId(this.doc, "water-trail-residual").dataset.sum = String(sum);
+    byId(this.doc, "water-trail-note").textContent = result.pH_was_given
+      ? "At a given pH nothing forces the charges to balance: the sum is the charge the listed " +
+        "ions leave unbalanced (an unlisted ion would carry it in the real water)."
+      : "The pH shown is the one at which the charges carried by all these ions add up to zero: " +
+        "each ion's concentration depends on the pH, and the pH is moved until positive and " +
+        "negative charge balance (the sum left over is rounding).";
+  }
+
+  cell(text, value, key, className) {
+    const td = this.doc.createElement("td");
+    td.className = className;
+    td.dataset.key = key;
+    td.dataset.value = value === null || value === undefined ? "" : String(value);
+    td.textContent = text;
+    return td;
+  }
+
+  /**
+   * @param {{name: string}[]} systems  curve systems, in order
+   * @param {number} chosen  index to select
+   */
+  setPlotSystems(systems, chosen) {
+    this.plotSystem.replaceChildren(
+      ...systems.map((s, i) => {
+        const option = this.doc.createElement("option");
+        option.value = String(i);
+        option.textContent = s.name;
+        return option;
+      }),
+    );
+    this.plotSystem.disabled = systems.length === 0;
+    if (systems.length) this.plotSystem.value = String(Math.min(chosen, systems.length - 1));
+  }
+
+  /** Count one drawn result on #water-section[data-drawn]. */
+  markDrawn() {
+    this.drawn += 1;
+    this.section.dataset.drawn = String(this.drawn);
+  }
+}
