@@ -1,0 +1,310 @@
+// The link is the scenario: the page's input state (state.js collectState()) packed into the URL
+// fragment, and read back with every check a hostile or broken link needs. No DOM here, so the
+// functions also run under Node for quick checks.
+//
+// Fragment formats (after the "#"):
+//   s=<version>.<payload>   a scenario. <payload> is base64url (RFC 4648 §5, no "=" padding) of
+//                           the UTF-8 JSON of the state object, whose "v" field repeats <version>.
+//                           Version 1 = {v: 1, <section name>: <that section's inputs>, ...}
+//                           with the section shapes of the contract (distribution, water,
+//                           treatment, ...).
+//                           Version 0 (the first, single-section format, still read): a flat
+//                           object {version: 0, acid, pka: "2.15, 7.2", z, c, ph} for the
+//                           species section only; migrate() turns it into version 1.
+//   preset=<id>             one of the worked examples in presets.json.
+// Anything else after "#" is left alone (e.g. an in-page anchor).
+//
+// Reading a link: size cap -> split -> base64url -> UTF-8 (strict) -> JSON.parse -> migrate up
+// to STATE_VERSION -> sanitize (plain JSON types only, finite numbers of sane size, bounded
+// strings, arrays, depth and key counts, no "__proto__"/"constructor"/"prototype" keys) ->
+// sections the page does not have are dropped with a note. Nothing is ever evaluated or put in
+// the page as HTML: the sections' set() functions write into input values and textContent.
+
+import { STATE_VERSION } from "./state.js";
+
+/** Longest fragment accepted [characters]. */
+export const MAX_LINK_CHARS = 16384;
+/** Bounds applied to every value in a state object read from outside. */
+export const LIMITS = Object.freeze({
+  depth: 8,
+  arrayLength: 200,
+  keys: 80,
+  stringLength: 400,
+  magnitude: 1e15,
+});
+const FORBIDDEN_KEYS = new Set(["__proto__", "constructor", "prototype"]);
+const PAYLOAD = /^[A-Za-z0-9_-]*$/;
+
+/**
+ * Turn bytes into base64url text without padding.
+ *
+ * @param {Uint8Array} bytes  the bytes
+ * @returns {string}  base64url text
+ */
+export function toBase64Url(bytes) {
+  let binary = "";
+  for (let i = 0; i < bytes.length; i += 0x8000) {
+    binary += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
+  }
+  return btoa(binary).replace(/\+/g, "-").replace(/\//g, "_").replace(/=+$/, "");
+}
+
+/**
+ * Base64url text (padding optional) to bytes; throws on characters outside the alphabet or
+ * an impossible length (a truncated link).
+ *
+ * @param {string} text  base64url text
+ * @returns {Uint8Array}  the bytes
+ */
+export function fromBase64Url(text) {
+  if (!PAYLOAD.test(text)) throw new Error("it holds characters that a link of this kind never has");
+  if (text.length % 4 === 1) throw new Error("it is cut short (its length is impossible)");
+  const b64 = text.replace(/-/g, "+").replace(/_/g, "/") + "===".slice((text.length + 3) % 4);
+  const binary = atob(b64);
+  const bytes = new Uint8Array(binary.length);
+  for (let i = 0; i < binary.length; i += 1) bytes[i] = binary.charCodeAt(i);
+  return bytes;
+}
+
+/**
+ * The fragment text (without "#") for a state object.
+ *
+ * @param {object} state  as from collectState(); its "v" is the version written
+ * @returns {string}  e.g. "s=1.eyJ2IjoxLC..."
+ */
+export function encodeState(state) {
+  const version = Number.isInteger(state?.v) ? state.v : STATE_VERSION;
+  const json = JSON.stringify({ ...state, v: version });
+  return `s=${version}.${toBase64Url(new TextEncoder().encode(json))}`;
+}
+
+/** Migrations: MIGRATIONS[n] turns a version-n state into a version-(n+1) state. */
+const MIGRATIONS = {
+  0: (old) => {
+    const notes = [];
+    const out = { v: 1 };
+    const dist = {};
+    if (typeof old.acid === "string") dist.acid = old.acid;
+    if (typeof old.pka === "string") {
+      const parts = old.pka.split(",").map((p) => Number(p.trim()));
+      if (parts.length && parts.every((p) => Number.isFinite(p))) dist.pKa = parts;
+      else notes.push(`the old link's pKa list "${old.pka}" is not a list of numbers`);
+    }
+    if (old.z !== undefined) dist.charge = old.z;
+    if (old.c !== undefined) dist.total_M = old.c;
+    if (old.ph !== undefined) dist.pH = old.ph;
+    out.distribution = dist;
+    notes.push("an older link (format 0) was brought up to date");
+    return { state: out, notes };
+  },
+};
+
+/**
+ * Bring a state object of any known version up to STATE_VERSION.
+ *
+ * @param {object} obj  a parsed state object (version in "v", or "version" for format 0)
+ * @returns {{state: object, notes: string[]}}  the migrated state and what was changed
+ * @throws {Error} when the version is missing, unknown or newer than this page reads
+ */
+export function migrate(obj) {
+  let version = obj.v ?? obj.version;
+  if (!Number.isInteger(version) || version < 0) {
+    throw new Error(`its format version ${JSON.stringify(version)?.slice(0, 20) ?? "(none)"} is not a whole number`);
+  }
+  if (version > STATE_VERSION) {
+    throw new Error(`it was made by a newer Acidscape (format ${version}); this copy reads formats up to ${STATE_VERSION}`);
+  }
+  let state = obj;
+  const notes = [];
+  while (version < STATE_VERSION) {
+    const step = MIGRATIONS[version];
+    if (!step) throw new Error(`format ${version} is not one this page knows`);
+    const next = step(state);
+    state = next.state;
+    notes.push(...next.notes);
+    version += 1;
+  }
+  return { state, notes };
+}
+
+function describe(value) {
+  if (typeof value === "string") return `text of ${value.length} characters`;
+  if (typeof value === "number") return String(value);
+  return Array.isArray(value) ? "a list" : typeof value;
+}
+
+/**
+ * Copy a JSON value keeping only what a state may hold; note everything dropped.
+ *
+ * @param {any} value  parsed JSON from outside
+ * @param {string} path  where it sits, for the notes (e.g. "water.scenario.systems[0]")
+ * @param {string[]} notes  receives one note per dropped value
+ * @param {number} [depth]  current nesting depth
+ * @returns {any}  the clean copy, or undefined when the value itself is dropped
+ */
+export function sanitize(value, path, notes, depth = 0) {
+  if (value === null || typeof value === "boolean") return value;
+  if (typeof value === "number") {
+    if (!Number.isFinite(value) || Math.abs(value) > LIMITS.magnitude) {
+      notes.push(`${path}: the number ${String(value).slice(0, 24)} is too large`);
+      return undefined;
+    }
+    return value;
+  }
+  if (typeof value === "string") {
+    if (value.length > LIMITS.stringLength) {
+      notes.push(`${path}: text of ${value.length} characters is too long (at most ${LIMITS.stringLength})`);
+      return undefined;
+    }
+    return value;
+  }
+  if (depth >= LIMITS.depth) {
+    notes.push(`${path}: nested too deeply`);
+    return undefined;
+  }
+  if (Array.isArray(value)) {
+    if (value.length > LIMITS.arrayLength) {
+      notes.push(`${path}: a list of ${value.length} items is too long (at most ${LIMITS.arrayLength})`);
+      return undefined;
+    }
+    const out = [];
+    for (const [i, item] of value.entries()) {
+      const clean = sanitize(item, `${path}[${i}]`, notes, depth + 1);
+      out.push(clean === undefined ? null : clean);
+    }
+    return out;
+  }
+  if (typeof value === "object") {
+    const keys = Object.keys(value);
+    if (keys.length > LIMITS.keys) {
+      notes.push(`${path}: ${keys.length} entries is too many (at most ${LIMITS.keys})`);
+      return undefined;
+    }
+    const out = {};
+    for (const key of keys) {
+      if (FORBIDDEN_KEYS.has(key)) {
+        notes.push(`${path}: the entry named "${key}" is not allowed`);
+        continue;
+      }
+      const clean = sanitize(value[key], path ? `${path}.${key}` : key, notes, depth + 1);
+      if (clean !== undefined) out[key] = clean;
+    }
+    return out;
+  }
+  notes.push(`${path}: ${describe(value)} is not allowed`);
+  return undefined;
+}
+
+/**
+ * Check a migrated state: plain object, known sections only, each section an object.
+ *
+ * @param {any} obj  a state object (already migrated)
+ * @param {string[]} sections  the section names the page has registered
+ * @returns {{state: object, notes: string[]}}  the usable part and what was ignored
+ * @throws {Error} when the whole thing is not a state object
+ */
+export function validateState(obj, sections) {
+  if (obj === null || typeof obj !== "object" || Array.isArray(obj)) {
+    throw new Error(`it does not hold a scenario (found ${obj === null ? "null" : describe(obj)})`);
+  }
+  const notes = [];
+  const state = { v: STATE_VERSION };
+  for (const key of Object.keys(obj)) {
+    if (key === "v") continue;
+    if (FORBIDDEN_KEYS.has(key)) {
+      notes.push(`the entry named "${key}" is not allowed`);
+      continue;
+    }
+    if (!sections.includes(key)) {
+      notes.push(`"${key.slice(0, 40)}" is not a part of this page, so it was ignored`);
+      continue;
+    }
+    const section = obj[key];
+    if (section === null || typeof section !== "object" || Array.isArray(section)) {
+      notes.push(`${key}: expected a group of inputs, found ${section === null ? "null" : describe(section)}`);
+      continue;
+    }
+    const clean = sanitize(section, key, notes, 1);
+    if (clean !== undefined) state[key] = clean;
+  }
+  return { state, notes };
+}
+
+/**
+ * Read a JSON text (a saved file, or a decoded link) into a state the page can apply.
+ *
+ * @param {string} json  the text
+ * @param {string[]} sections  the registered section names
+ * @returns {{state: object, notes: string[]}}
+ * @throws {Error} with the reason when nothing usable is in it
+ */
+export function readStateJson(json, sections) {
+  if (typeof json !== "string") throw new Error("it is not text");
+  if (json.length > MAX_LINK_CHARS * 4) throw new Error(`it is too long (${json.length} characters)`);
+  let parsed;
+  try {
+    parsed = JSON.parse(json);
+  } catch {
+    throw new Error("it is not valid JSON (it may be cut short or changed by hand)");
+  }
+  if (parsed === null || typeof parsed !== "object" || Array.isArray(parsed)) {
+    throw new Error(`it does not hold a scenario (found ${parsed === null ? "null" : describe(parsed)})`);
+  }
+  const { state, notes } = migrate(parsed);
+  const checked = validateState(state, sections);
+  return { state: checked.state, notes: [...notes, ...checked.notes] };
+}
+
+/**
+ * Read a URL fragment.
+ *
+ * @param {string} hash  location.hash (with or without the leading "#")
+ * @param {string[]} sections  the registered section names
+ * @returns {{kind: "none"} | {kind: "preset", id: string} | {kind: "state", state: object,
+ *           notes: string[]} | {kind: "error", reason: string}}
+ */
+export function readFragment(hash, sections) {
+  const text = String(hash || "").replace(/^#/, "");
+  if (!text) return { kind: "none" };
+  if (text.length > MAX_LINK_CHARS) {
+    return { kind: "error", reason: `the link is too long (${text.length.toLocaleString("en")} characters; at most ${MAX_LINK_CHARS.toLocaleString("en")})` };
+  }
+  if (text.startsWith("preset=")) {
+    const id = text.slice(7);
+    if (!/^[a-z0-9-]{1,60}$/.test(id)) return { kind: "error", reason: "the example it names is not a valid name" };
+    return { kind: "preset", id };
+  }
+  if (!text.startsWith("s=")) return { kind: "none" };
+  const body = text.slice(2);
+  const dot = body.indexOf(".");
+  if (dot < 1) return { kind: "error", reason: "it has no format version (expected s=<version>.<data>)" };
+  const prefix = body.slice(0, dot);
+  if (!/^\d{1,3}$/.test(prefix)) return { kind: "error", reason: "its format version is not a number" };
+  try {
+    const bytes = fromBase64Url(body.slice(dot + 1));
+    let json;
+    try {
+      json = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
+    } catch {
+      throw new Error("it is damaged (not valid text after decoding; it may be cut short)");
+    }
+    let parsed;
+    try {
+      parsed = JSON.parse(json);
+    } catch {
+      throw new Error("it is damaged (the scenario inside is incomplete; it may be cut short)");
+    }
+    if (parsed === null || typeof parsed !== "object" || Array.isArray(parsed)) {
+      throw new Error(`it does not hold a scenario (found ${parsed === null ? "null" : describe(parsed)})`);
+    }
+    const inner = parsed.v ?? parsed.version;
+    if (inner !== Number(prefix)) {
+      throw new Error(`its two version marks disagree (${prefix} and ${JSON.stringify(inner)?.slice(0, 12)}); it was changed by hand`);
+    }
+    const { state, notes } = migrate(parsed);
+    const checked = validateState(state, sections);
+    return { kind: "state", state: checked.state, notes: [...notes, ...checked.notes] };
+  } catch (error) {
+    return { kind: "error", reason: String(error?.message || error) };
+  }
+}
