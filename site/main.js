@@ -6,6 +6,9 @@ import { AboutView, DistributionView, StatusView } from "./view.js";
 import { mountDistribution } from "./distribution.js";
 import { mountWater } from "./water.js";
 import { WaterView, embedWaterPlots } from "./water-view.js";
+import { embedBufferPlot, embedTitrationPlot } from "./plot.js";
+import { mountTreatment } from "./treatment.js";
+import { TreatmentView } from "./treatment-view.js";
 
 const status = new StatusView(document);
 const about = new AboutView(document);
@@ -38,6 +41,20 @@ try {
     palette: plotHandles.palette,
     systems: waterLibrary.systems,
     ions: waterLibrary.ions,
+  });
+  // Section "treatment" (treatment.js): titration, buffer intensity and dose, on that water.
+  const [chemicalList, titrationPlot, bufferPlot] = await Promise.all([
+    py.call("chemicals").then((r) => r.chemicals),
+    embedTitrationPlot("plot-titration"),
+    embedBufferPlot("plot-buffer"),
+  ]);
+  mountTreatment({
+    py,
+    view: new TreatmentView(document),
+    plots: { titration: titrationPlot, buffer: bufferPlot },
+    water,
+    chemicals: chemicalList,
+    systems: library,
   });
   status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
   await distribution.refresh();

@@ -1,0 +1,408 @@
+// Section "treatment": what to do with the user's water. Three blocks share that water:
+//   titration   pH against titrant volume (lab) or dose (plant), end points marked and tabled;
+//   buffer      buffer intensity against pH, its value at the water's pH, capacity between two pH;
+//   dose        the dose of a chemical to a target pH, product feed at the plant's flow,
+//               the water before and after.
+// The water comes from the "water" section's handle: {scenario(), onSolved(cb)}; every
+// successful solve of the water recomputes all three blocks. Each block keeps its own request
+// counter so a slow answer never overwrites a newer one.
+
+import { CoreError } from "./py.js";
+import { notifyInputChange, registerSection } from "./state.js";
+import { fixed, prettyFormula } from "./format.js";
+import { FLOW_UNITS } from "./treatment-view.js";
+
+const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
+const DEBOUNCE_MS = 120;
+const BUFFER_RANGE = { pH_min: 2, pH_max: 12, points: 241 };
+
+// Core error fields -> input ids, per block.
+const TITRATION_FIELDS = {
+  titrant: "titrant-select",
+  titrant_M: "titrant-conc",
+  sample_mL: "sample-volume",
+  to_pH: "titration-end-ph",
+};
+const DOSE_FIELDS = {
+  chemical: "dose-chemical",
+  target_pH: "dose-target-ph",
+  strength_pct: "dose-strength",
+  density_kg_per_L: "dose-density",
+  flow: "dose-flow",
+  flow_unit: "dose-flow-unit",
+};
+const BUFFER_FIELDS = { "capacity.from_pH": "capacity-from-ph", "capacity.to_pH": "capacity-to-ph" };
+
+// Core field names -> the words beside the inputs, so messages start with the label a user sees.
+const FIELD_LABEL = {
+  titrant_M: "Titrant concentration",
+  sample_mL: "Sample volume",
+  to_pH: "End pH",
+  target_pH: "Target pH",
+  strength_pct: "Product strength",
+  density_kg_per_L: "Product density",
+  flow: "Plant flow",
+  flow_unit: "Flow unit",
+  "capacity.from_pH": "From pH",
+  "capacity.to_pH": "To pH",
+};
+
+function readable(message, field) {
+  const label = FIELD_LABEL[field];
+  return label && message.startsWith(field) ? label + message.slice(field.length) : message;
+}
+
+/**
+ * Parse an input's text.
+ *
+ * @param {string} text  what the user typed
+ * @param {{what: string, optional?: boolean}} opts  how to name the value in a message
+ * @returns {{value?: number|null, error?: string}}  null for an empty optional field
+ */
+function parseNumber(text, { what, optional = false }) {
+  const t = String(text ?? "").trim().replace(/\u2212/g, "-");
+  if (!t) return optional ? { value: null } : { error: `Enter ${what}.` };
+  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.` };
+  return { value: Number(t) };
+}
+
+/** The number a state object holds for a text field: the number, null when blank, else the text. */
+function stateNumber(text) {
+  const t = String(text ?? "").trim();
+  if (!t) return null;
+  return NUMBER.test(t.replace(/\u2212/g, "-")) ? Number(t.replace(/\u2212/g, "-")) : t;
+}
+
+/**
+ * Mount the section.
+ *
+ * @param {object} deps
+ * @param {{call: (method: string, params?: object) => Promise<any>}} deps.py  the core
+ * @param {import("./treatment-view.js").TreatmentView} deps.view  its DOM
+ * @param {{titration: object, buffer: object}} deps.plots  from embedTitrationPlot / embedBufferPlot
+ * @param {{scenario: () => object|null, onSolved: (cb: (scenario: object, result: object) => void) => void}} deps.water
+ *        the water section's handle
+ * @param {{id: string, name: string, example_strength_pct?: number, example_density_kg_per_L?: number,
+ *          example_source?: string, note?: string}[]} deps.chemicals  from the core's "chemicals" method
+ * @param {{id: string, name: string, species: {charge: number}[]}[]|null} deps.systems  library systems
+ * @returns {{refresh: () => Promise<void>}}
+ */
+export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
+  const chemById = new Map(chemicals.map((c) => [c.id, c]));
+  const libraryTitrants = (systems || []).filter((s) => (s.species || []).some((sp) => sp.charge === 0));
+  view.setChemicals(chemicals, libraryTitrants);
+  // An alkalinity titration with strong acid is the everyday lab case; NaOH is the usual dose.
+  if (chemById.has("HCl")) view.write("titrant-select", "HCl");
+  if (chemById.has("NaOH")) view.write("dose-chemical", "NaOH");
+  const seq = { titration: 0, buffer: 0, dose: 0 };
+  const timers = {};
+  let current = { scenario: null, result: null };
+  let lastTitration = null;
+
+  // -- inputs ------------------------------------------------------------------------------
+  function collectTitration() {
+    const raw = view.read();
+    const errors = {};
+    const params = { titrant: raw["titrant-select"] };
+    const chem = chemById.get(params.titrant);
+    const gas = params.titrant === "CO2";
+    const conc = parseNumber(raw["titrant-conc"], { what: "the titrant concentration in mol/L, e.g. 0.02" });
+    if (conc.error) errors["titrant-conc"] = conc.error;
+    else params.titrant_M = conc.value;
+    const vol = parseNumber(raw["sample-volume"], { what: "the sample volume in mL, e.g. 100" });
+    if (vol.error) errors["sample-volume"] = vol.error;
+    else params.sample_mL = vol.value;
+    const end = parseNumber(raw["titration-end-ph"], { what: "an end pH, or leave it empty", optional: true });
+    if (end.error) errors["titration-end-ph"] = end.error;
+    else if (end.value !== null) params.to_pH = end.value;
+    if (gas) delete params.titrant_M; // a gas has no titrant volume; the core ignores it anyway
+    return { params, errors, chem };
+  }
+
+  function collectDose() {
+    const raw = view.read();
+    const errors = {};
+    const params = { chemical: raw["dose-chemical"] };
+    const target = parseNumber(raw["dose-target-ph"], { what: "the target pH, e.g. 8" });
+    if (target.error) errors["dose-target-ph"] = target.error;
+    else params.target_pH = target.value;
+    const opt = [
+      ["dose-strength", "strength_pct", "the product strength in % w/w, e.g. 50, or leave it empty"],
+      ["dose-density", "density_kg_per_L", "the product density in kg/L, e.g. 1.5, or leave it empty"],
+      ["dose-flow", "flow", "the plant flow, or leave it empty"],
+    ];
+    for (const [id, key, what] of opt) {
+      const v = parseNumber(raw[id], { what, optional: true });
+      if (v.error) errors[id] = v.error;
+      else if (v.value !== null) params[key] = v.value;
+    }
+    if (params.flow !== undefined) params.flow_unit = raw["dose-flow-unit"];
+    if (params.density_kg_per_L !== undefined && params.strength_pct === undefined && !errors["dose-strength"]) {
+      errors["dose-strength"] = "Give the product strength too: the density alone does not set the feed.";
+    }
+    return { params, errors };
+  }
+
+  function collectCapacity() {
+    const raw = view.read();
+    const a = parseNumber(raw["capacity-from-ph"], { what: "a pH, or leave both empty", optional: true });
+    const b = parseNumber(raw["capacity-to-ph"], { what: "a pH, or leave both empty", optional: true });
+    const errors = {};
+    if (a.error) errors["capacity-from-ph"] = a.error;
+    if (b.error) errors["capacity-to-ph"] = b.error;
+    if (!a.error && !b.error && (a.value === null) !== (b.value === null)) {
+      errors[a.value === null ? "capacity-from-ph" : "capacity-to-ph"] = "Give both pH values (or neither).";
+    }
+    const capacity = a.value !== null && b.value !== null && !a.error && !b.error
+      ? { from_pH: a.value, to_pH: b.value } : null;
+    return { capacity, errors };
+  }
+
+  function coreMessage(error, fields, block) {
+    if (!(error instanceof CoreError)) return { block: String(error?.message || error) };
+    const id = fields[error.field];
+    const text = readable(error.message, error.field);
+    if (id) return { [id]: text };
+    // Anything else concerns the water itself (e.g. "scenario" or "systems[0].total").
+    const about = error.field && error.field !== "scenario" ? ` (${error.field})` : "";
+    return { block: `${block}: the water above could not be used${about}: ${text}` };
+  }
+
+  // -- titration ---------------------------------------------------------------------------
+  function drawTitration(result) {
+    // The axis is read now, not when the request left, so a quick axis change is honoured.
+    const volumes = result.volumes_apply && view.read()["titration-axis"] === "volume";
+    const xOf = (p) => (volumes ? p.titrant_mL : p.dose_mg_per_L);
+    const pts = result.points;
+    const id = prettyFormula(result.titrant.id);
+    const label = volumes
+      ? `${id} added (mL)`
+      : `${id} dose (mg/L as pure ${id})`;
+    const marks = [];
+    result.equivalence_points.forEach((p, i) => marks.push({ x: xOf(p), pH: p.pH, label: `equivalence ${i + 1}` }));
+    result.half_equivalence_points.forEach((p, i) => marks.push({ x: xOf(p), pH: p.pH, label: `half-equivalence ${i + 1}` }));
+    plots.titration.setCurve(pts.map(xOf), pts.map((p) => p.pH), marks, label);
+    const rows = [
+      ...result.equivalence_points.map((p, i) => ({ key: "equivalence", kind: `Equivalence ${i + 1}`, p })),
+      ...result.half_equivalence_points.map((p, i) => ({ key: "half-equivalence", kind: `Half-equivalence ${i + 1}`, p })),
+      ...result.fixed_end_points.map((p) => ({
+        key: "fixed", kind: `pH ${fixed(p.pH, 1)} (${p.name})`, p,
+      })),
+    ].map(({ key, kind, p }) => ({
+      key, kind, pH: p.pH, mL: result.volumes_apply ? p.titrant_mL : null, mmol: p.dose_mmol_per_L, mg: p.dose_mg_per_L,
+    }));
+    rows.sort((a, b) => a.mmol - b.mmol);
+    const strength = result.volumes_apply
+      ? `, ${Number(result.titrant.concentration_M.toPrecision(4))} mol/L into ${Number(result.sample_mL.toPrecision(6))} mL of sample`
+      : "";
+    view.renderEquivalence(rows, `End points: ${result.titrant.name}${strength}, pH ${fixed(result.initial_pH, 2)} to ${fixed(result.to_pH, 2)}`);
+    view.setTitrationWarning([...result.warnings]);
+    view.markDrawn("titration");
+  }
+
+  async function refreshTitration() {
+    const { params, errors, chem } = collectTitration();
+    const n = ++seq.titration;
+    view.setTitrantHint(titrantHint(chem, params.titrant));
+    if (Object.keys(errors).length || !current.scenario) {
+      view.showErrors("titration", errors);
+      view.setStale("titration", Boolean(lastTitration));
+      return false;
+    }
+    view.setBusy("titration", true);
+    try {
+      const result = await py.call("titrate", { scenario: current.scenario, ...params });
+      if (n !== seq.titration) return false;
+      view.showErrors("titration", {});
+      view.setStale("titration", false);
+      lastTitration = result;
+      drawTitration(result);
+      return true;
+    } catch (error) {
+      if (n !== seq.titration) return false;
+      const messages = coreMessage(error, TITRATION_FIELDS, "Titration");
+      view.showErrors("titration", messages);
+      // The curve no longer answers the question asked: remove it rather than leave it standing.
+      lastTitration = null;
+      plots.titration.setCurve([], [], [], "titrant added");
+      view.clearEquivalence();
+      view.setStale("titration", false);
+      view.setTitrationWarning([`No curve: ${Object.values(messages)[0]}`]);
+      return false;
+    } finally {
+      if (n === seq.titration) view.setBusy("titration", false);
+    }
+  }
+
+  function titrantHint(chem, id) {
+    if (id === "CO2") return "A gas: the concentration and sample volume do not apply; the curve is against dose.";
+    if (chem?.note) return chem.note.charAt(0).toUpperCase() + chem.note.slice(1) + ".";
+    if (!chem) return "Added as its neutral form; its concentration is in mol/L.";
+    return "";
+  }
+
+  // -- buffer ------------------------------------------------------------------------------
+  async function refreshBuffer() {
+    const { capacity, errors } = collectCapacity();
+    const n = ++seq.buffer;
+    view.showErrors("buffer", errors);
+    if (!current.scenario) return false;
+    view.setBusy("buffer", true);
+    try {
+      const params = { scenario: current.scenario, ...BUFFER_RANGE };
+      if (capacity) params.capacity = capacity;
+      const r = await py.call("buffer", params);
+      if (n !== seq.buffer) return false;
+      plots.buffer.setCurve(r.pH, r.beta_mmol_per_L_per_pH, r.water_pH);
+      view.setBufferAtPH(r.beta_at_water_pH_eq_per_L_per_pH, r.water_pH);
+      view.setCapacity(r.capacity);
+      view.setStale("buffer", false);
+      view.markDrawn("buffer");
+      return true;
+    } catch (error) {
+      if (n !== seq.buffer) return false;
+      view.showErrors("buffer", { ...errors, ...coreMessage(error, BUFFER_FIELDS, "Buffer intensity") });
+      view.setCapacity(null);
+      view.setStale("buffer", true);
+      return false;
+    } finally {
+      if (n === seq.buffer) view.setBusy("buffer", false);
+    }
+  }
+
+  // -- dose --------------------------------------------------------------------------------
+  function doseHint(id) {
+    const c = chemById.get(id);
+    if (!c) return "";
+    const parts = [];
+    if (c.example_strength_pct) {
+      const density = c.example_density_kg_per_L ? `, about ${c.example_density_kg_per_L} kg/L` : "";
+      const source = c.example_source ? ` (source: ${c.example_source.replace(/ \((from memory)\)$/, ", $1")})` : "";
+      parts.push(`A common grade is ${c.example_strength_pct} % w/w${density}${source}; ` +
+        "enter the figures of the product you actually use.");
+    }
+    if (c.note) parts.push(c.note.charAt(0).toUpperCase() + c.note.slice(1) + ".");
+    return parts.join(" ");
+  }
+
+  async function refreshDose() {
+    const { params, errors } = collectDose();
+    const n = ++seq.dose;
+    view.setDoseHint(doseHint(params.chemical));
+    if (Object.keys(errors).length || !current.scenario) {
+      view.showErrors("dose", errors);
+      view.renderDose(null); // no number beside a question that is not complete
+      return false;
+    }
+    view.setBusy("dose", true);
+    try {
+      const r = await py.call("dose", { scenario: current.scenario, ...params });
+      if (n !== seq.dose) return false;
+      view.showErrors("dose", {});
+      view.renderDose(r);
+      view.markDrawn("dose");
+      return true;
+    } catch (error) {
+      if (n !== seq.dose) return false;
+      view.showErrors("dose", coreMessage(error, DOSE_FIELDS, "Dose"));
+      view.renderDose(null);
+      return false;
+    } finally {
+      if (n === seq.dose) view.setBusy("dose", false);
+    }
+  }
+
+  // -- wiring ------------------------------------------------------------------------------
+  const refreshers = { titration: refreshTitration, buffer: refreshBuffer, dose: refreshDose };
+
+  function describeWater(result) {
+    if (!result) return "Describe the water above; this section works on it.";
+    const alk = result.alkalinity?.equivalence_point?.total_mg_per_L_as_CaCO3;
+    const alkText = Number.isFinite(alk) ? `, total alkalinity ${fixed(alk, 1)} mg/L as CaCO₃` : "";
+    return `Working on the water above: pH ${fixed(result.pH, 2)}${alkText}, ` +
+      `${fixed(result.temperature_C, 1)} °C.`;
+  }
+
+  async function refresh() {
+    await Promise.all([refreshTitration(), refreshBuffer(), refreshDose()]);
+  }
+
+  water.onSolved((scenario, result) => {
+    current = { scenario, result };
+    view.setWater(describeWater(result));
+    refresh();
+  });
+
+  view.bindChange((block, id) => {
+    if (id === "titrant-select") {
+      const gas = view.read()["titrant-select"] === "CO2";
+      for (const other of ["titrant-conc", "sample-volume", "titration-axis"]) view.inputs[other].disabled = gas;
+    }
+    notifyInputChange("treatment");
+    if (id === "titration-axis" && lastTitration) {
+      drawTitration(lastTitration); // same curve, other unit: no need to ask the core again
+      return;
+    }
+    clearTimeout(timers[block]);
+    const immediate = view.inputs[id].tagName === "SELECT";
+    timers[block] = setTimeout(refreshers[block], immediate ? 0 : DEBOUNCE_MS);
+  });
+
+  registerSection("treatment", {
+    get() {
+      const raw = view.read();
+      return {
+        titration: {
+          titrant: raw["titrant-select"],
+          titrant_M: stateNumber(raw["titrant-conc"]),
+          sample_mL: stateNumber(raw["sample-volume"]),
+          to_pH: stateNumber(raw["titration-end-ph"]),
+          axis: raw["titration-axis"],
+        },
+        dose: {
+          chemical: raw["dose-chemical"],
+          target_pH: stateNumber(raw["dose-target-ph"]),
+          strength_pct: stateNumber(raw["dose-strength"]),
+          density_kg_per_L: stateNumber(raw["dose-density"]),
+          flow: stateNumber(raw["dose-flow"]),
+          flow_unit: raw["dose-flow-unit"],
+        },
+      };
+    },
+    set(obj) {
+      const messages = [];
+      if (!obj || typeof obj !== "object") return ["treatment: not an object; ignored"];
+      const put = (id, value, name) => {
+        if (value === undefined) return;
+        const text = value === null ? "" : String(value);
+        if (!view.write(id, text)) messages.push(`treatment: ${name} ${JSON.stringify(value)} is not offered here; kept ${view.read()[id]}`);
+      };
+      const t = obj.titration || {};
+      put("titrant-select", t.titrant, "titrant");
+      put("titrant-conc", t.titrant_M, "titrant concentration");
+      put("sample-volume", t.sample_mL, "sample volume");
+      put("titration-end-ph", t.to_pH, "end pH");
+      put("titration-axis", t.axis, "axis");
+      const d = obj.dose || {};
+      put("dose-chemical", d.chemical, "chemical");
+      put("dose-target-ph", d.target_pH, "target pH");
+      put("dose-strength", d.strength_pct, "strength");
+      put("dose-density", d.density_kg_per_L, "density");
+      put("dose-flow", d.flow, "flow");
+      if (d.flow_unit !== undefined && !FLOW_UNITS.some(([u]) => u === d.flow_unit)) {
+        messages.push(`treatment: flow unit ${JSON.stringify(d.flow_unit)} is not known; kept ${view.read()["dose-flow-unit"]}`);
+      } else {
+        put("dose-flow-unit", d.flow_unit, "flow unit");
+      }
+      const gas = view.read()["titrant-select"] === "CO2";
+      for (const other of ["titrant-conc", "sample-volume", "titration-axis"]) view.inputs[other].disabled = gas;
+      return messages;
+    },
+    refresh,
+  });
+
+  const initial = water.scenario?.();
+  if (initial) current.scenario = initial;
+  view.setWater(describeWater(null));
+  return { refresh };
+}
