@@ -1,0 +1,198 @@
+"""End-to-end: the treatment section (titration, buffer intensity, dose) in headless Chromium.
+
+The oracle is ``acidscape.api`` run in this test process on the page's own water (read from
+the page's input-state registry, the same scenario the water section solves): the page runs
+the same package in Pyodide, so numbers agree to round-off (1e-9 relative).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from playwright.sync_api import Page, expect
+
+from acidscape import api
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 60_000
+
+STATE = "async () => (await import('./state.js')).collectState()"
+
+READ_TITRATION = """() => {
+  for (const doc of Bokeh.documents) {
+    const curve = doc.get_model_by_name('titr_src');
+    if (!curve) continue;
+    const get = (m) => (m.data instanceof Map ? Object.fromEntries(m.data) : m.data);
+    const c = get(curve), e = get(doc.get_model_by_name('titr_eq_src'));
+    return {x: Array.from(c.x), pH: Array.from(c.pH), ex: Array.from(e.x), epH: Array.from(e.pH),
+            labels: Array.from(e.label), axis: doc.get_model_by_name('titr_xaxis').axis_label};
+  }
+  return null;
+}"""
+
+
+def core(method: str, params: dict) -> dict:
+    reply = json.loads(api.handle(method, json.dumps(params)))
+    assert reply["ok"], reply
+    return reply["result"]
+
+
+def core_error(method: str, params: dict) -> dict:
+    reply = json.loads(api.handle(method, json.dumps(params)))
+    assert not reply["ok"], reply
+    return reply["error"]
+
+
+def count(page: Page, block: str) -> int:
+    return int(page.evaluate(f"() => Number(document.querySelector('#treatment-section').dataset.{block}Drawn || 0)"))
+
+
+def open_page(page: Page) -> None:
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    for block in ("titration", "buffer", "dose"):
+        page.wait_for_function(
+            f"() => Number(document.querySelector('#treatment-section').dataset.{block}Drawn || 0) > 0",
+            timeout=BOOT_MS)
+
+
+def redrawn(page: Page, block: str, before: int) -> None:
+    page.wait_for_function(
+        f"(n) => Number(document.querySelector('#treatment-section').dataset.{block}Drawn || 0) > n",
+        arg=before, timeout=15_000)
+
+
+def page_state(page: Page) -> dict:
+    return page.evaluate(STATE)
+
+
+def close(a: float, b: float, rel: float = 1e-9) -> bool:
+    return math.isclose(a, b, rel_tol=rel, abs_tol=1e-12)
+
+
+def value(page: Page, selector: str) -> str:
+    return page.locator(selector).get_attribute("data-value") or ""
+
+
+def test_dose_and_feed_equal_the_core_and_cautions_show(page: Page, watch):
+    open_page(page)
+    expect(page.locator("#dose-cautions")).to_be_visible()
+    for words in ("burn skin and eyes", "acid slowly into water", "jar or bench test", "overfeed",
+                  "licensed operators"):
+        expect(page.locator("#dose-cautions")).to_contain_text(words)
+    before = count(page, "dose")
+    page.fill("#dose-strength", "50")
+    page.fill("#dose-density", "1.525")
+    page.select_option("#dose-flow-unit", "MGD")
+    page.fill("#dose-flow", "2.5")
+    page.wait_for_function("() => document.querySelector('#dose-feed-kg-per-d').dataset.value !== ''",
+                           timeout=15_000)
+    assert count(page, "dose") > before
+    state = page_state(page)
+    d = state["treatment"]["dose"]
+    assert d == {"chemical": "NaOH", "target_pH": 8, "strength_pct": 50, "density_kg_per_L": 1.525,
+                 "flow": 2.5, "flow_unit": "MGD"}
+    want = core("dose", {"scenario": state["water"]["scenario"], **d})
+    assert close(float(value(page, "#dose-result-mmol")), want["dose_mmol_per_L"])
+    assert close(float(value(page, "#dose-result-mg")), want["dose_mg_per_L"])
+    assert close(float(value(page, "#dose-feed-kg-per-d")), want["product"]["feed_kg_per_d"])
+    assert close(float(value(page, "#dose-feed-L-per-h")), want["product"]["feed_L_per_h"])
+    assert close(float(value(page, "#dose-feed-gal-per-d")), want["product"]["feed_gal_per_d"])
+    rows = page.evaluate("""() => Object.fromEntries(Array.from(
+        document.querySelectorAll('#dose-before-after tbody tr'), (tr) => [tr.dataset.key,
+        Object.fromEntries(Array.from(tr.querySelectorAll('td'), (td) => [td.dataset.key, Number(td.dataset.value)]))]))""")
+    assert set(rows) == set(want["change"])
+    for key, c in want["change"].items():
+        for part in ("before", "after"):
+            assert close(rows[key][part], c[part]), (key, part)
+        assert math.isclose(rows[key]["change"], c["change"], rel_tol=1e-9, abs_tol=1e-9 * abs(c["after"]))
+
+
+def test_bad_dose_inputs_show_messages_beside_their_fields(page: Page, watch):
+    open_page(page)
+    scenario = page_state(page)["water"]["scenario"]
+    # NaHCO3 cannot raise a water past about pH 8.3 (pKa1 + pKa2)/2 (carbonate chemistry,
+    # common practice): the core's own message must appear beside the target, not a number.
+    page.select_option("#dose-chemical", "NaHCO3")
+    page.fill("#dose-target-ph", "9.5")
+    err = core_error("dose", {"scenario": scenario, "chemical": "NaHCO3", "target_pH": 9.5})
+    assert err["field"] == "target_pH"
+    expect(page.locator("#dose-target-ph-error")).to_have_text(err["message"], timeout=15_000)
+    expect(page.locator("#dose-target-ph")).to_have_attribute("aria-invalid", "true")
+    assert value(page, "#dose-result-mg") == "" and value(page, "#dose-result-mmol") == ""
+    expect(page.locator("#dose-result-mg")).to_have_text("—")
+    # strength over 100 % and a negative flow: messages beside those fields
+    page.select_option("#dose-chemical", "NaOH")
+    page.fill("#dose-target-ph", "8")
+    page.fill("#dose-strength", "150")
+    expect(page.locator("#dose-strength-error")).to_contain_text("Product strength = 150", timeout=15_000)
+    page.fill("#dose-strength", "50")
+    page.fill("#dose-flow", "-3")
+    expect(page.locator("#dose-flow-error")).to_contain_text("negative", timeout=15_000)
+    assert value(page, "#dose-feed-kg-per-d") == ""
+    page.fill("#dose-flow", "abc")
+    expect(page.locator("#dose-flow-error")).to_contain_text('"abc" is not a number')
+    expect(page.locator("#dose-cautions")).to_be_visible()
+
+
+def test_titration_curve_equals_the_core_and_unsuited_titrant_is_explained(page: Page, watch):
+    open_page(page)
+    state = page_state(page)
+    t = state["treatment"]["titration"]
+    assert t["titrant"] == "HCl" and t["axis"] == "volume"
+    params = {"scenario": state["water"]["scenario"], "titrant": t["titrant"], "titrant_M": t["titrant_M"],
+              "sample_mL": t["sample_mL"]}
+    want = core("titrate", params)
+    got = page.evaluate(READ_TITRATION)
+    assert len(got["x"]) == len(want["points"])
+    for x, y, p in zip(got["x"], got["pH"], want["points"]):
+        assert close(x, p["titrant_mL"]) and close(y, p["pH"])
+    marks = want["equivalence_points"] + want["half_equivalence_points"]
+    assert len(got["ex"]) == len(marks) >= 1
+    for x, p in zip(got["ex"], marks):
+        assert close(x, p["titrant_mL"])
+    eq_rows = page.locator("#equivalence-table tbody tr[data-kind='equivalence'] td[data-key='titrant_mL']")
+    assert eq_rows.count() == len(want["equivalence_points"])
+    for k, p in enumerate(want["equivalence_points"]):
+        assert close(float(eq_rows.nth(k).get_attribute("data-value")), p["titrant_mL"])
+    # plant axis: same curve in mg/L of pure chemical, without a new core call
+    page.select_option("#titration-axis", "dose")
+    got = page.evaluate(READ_TITRATION)
+    assert "mg/L" in got["axis"]
+    for x, p in zip(got["x"], want["points"]):
+        assert close(x, p["dose_mg_per_L"])
+    # an acid cannot raise the pH: the core's message beside the end pH and on the warning line
+    page.fill("#titration-end-ph", "10")
+    err = core_error("titrate", {**params, "to_pH": 10})
+    assert err["field"] == "to_pH"
+    expect(page.locator("#titration-end-ph-error")).to_have_text(err["message"], timeout=15_000)
+    expect(page.locator("#titration-warning")).to_contain_text(err["message"])
+    assert page.evaluate(READ_TITRATION)["x"] == []
+    # a base to pH 10 works again, with its own curve
+    before = count(page, "titration")
+    page.select_option("#titrant-select", "NaOH")
+    redrawn(page, "titration", before)
+    want = core("titrate", {**params, "titrant": "NaOH", "to_pH": 10})
+    got = page.evaluate(READ_TITRATION)
+    for x, p in zip(got["x"], want["points"]):
+        assert close(x, p["dose_mg_per_L"])
+    expect(page.locator("#titration-warning")).to_be_hidden()
+
+
+def test_buffer_intensity_equals_the_core(page: Page, watch):
+    open_page(page)
+    scenario = page_state(page)["water"]["scenario"]
+    want = core("buffer", {"scenario": scenario, "pH_min": 2, "pH_max": 12, "points": 241})
+    assert close(float(value(page, "#buffer-at-ph")), want["beta_at_water_pH_eq_per_L_per_pH"])
+    assert close(want["beta_at_water_pH_eq_per_L_per_pH"], core("solve", scenario)["buffer_intensity_eq_per_L_per_pH"])
+    before = count(page, "buffer")
+    page.fill("#capacity-from-ph", "7")
+    page.fill("#capacity-to-ph", "4.5")
+    redrawn(page, "buffer", before)
+    page.wait_for_function("() => document.querySelector('#buffer-capacity').dataset.value !== ''")
+    cap = core("buffer", {"scenario": scenario, "points": 2, "capacity": {"from_pH": 7, "to_pH": 4.5}})["capacity"]
+    assert close(float(value(page, "#buffer-capacity")), cap["base_meq_per_L"])
+    expect(page.locator("#buffer-capacity")).to_contain_text("strong acid")
