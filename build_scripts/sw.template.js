@@ -17,6 +17,12 @@ self.addEventListener("install", (event) => {
   );
 });
 
+// The page's "new version" notice (site/share-view.js watchForUpdates) may ask a waiting
+// worker to take over at once; the page then reloads on "controllerchange".
+self.addEventListener("message", (event) => {
+  if (event.data && event.data.type === "skip-waiting") self.skipWaiting();
+});
+
 self.addEventListener("activate", (event) => {
   event.waitUntil(
     caches

@@ -5,6 +5,7 @@
 
 import { CoreError } from "./py.js";
 import { prettyFormula } from "./format.js";
+import { notifyInputChange, registerSection } from "./state.js";
 
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
 const INTEGER = /^[+-]?\d+$/;
@@ -169,7 +170,56 @@ export function mountDistribution({ py, view, plots, status, systems }) {
     if (what === "values" && view.read().acid !== "custom") view.setAcid("custom");
     clearTimeout(timer);
     timer = setTimeout(refresh, what === "acid" ? 0 : DEBOUNCE_MS);
+    notifyInputChange("distribution");
   });
+
+  // Input state for links, presets and saved files: {acid, pKa, charge, total_M, pH}. Each value
+  // is the parsed number (or list) when the field reads as one, else the raw text, so a half-typed
+  // field still travels as typed.
+  function getState() {
+    const raw = view.read();
+    const pick = (parsed, text) => (parsed.error ? text : parsed.value);
+    return {
+      acid: raw.acid,
+      pKa: pick(parsePkaList(raw.pka), raw.pka),
+      charge: pick(parseCharge(raw.charge), raw.charge),
+      total_M: pick(parseNumber(raw.total, ""), raw.total),
+      pH: pick(parseNumber(raw.ph, ""), raw.ph),
+    };
+  }
+
+  function setState(obj) {
+    const notes = [];
+    const asText = (value, key, isList) => {
+      if (typeof value === "string") return value;
+      if (typeof value === "number" && Number.isFinite(value)) return String(value);
+      if (isList && Array.isArray(value) && value.length && value.every((v) => typeof v === "number")) {
+        return value.join(", ");
+      }
+      notes.push(`distribution.${key}: ${JSON.stringify(value)?.slice(0, 40)} is not usable here, so it was ignored`);
+      return undefined;
+    };
+    if (obj.acid !== undefined) {
+      if (obj.acid === "custom" || library.has(obj.acid)) view.setAcid(obj.acid);
+      else notes.push(`distribution.acid: "${String(obj.acid).slice(0, 40)}" is not an acid this page knows, so it was ignored`);
+    }
+    if (view.read().acid !== "custom") {
+      fillFromLibrary(view.read().acid); // library acids carry their own pKa and charge
+    } else {
+      const pka = obj.pKa === undefined ? undefined : asText(obj.pKa, "pKa", true);
+      const charge = obj.charge === undefined ? undefined : asText(obj.charge, "charge", false);
+      view.setAcid("custom", { pka, charge });
+    }
+    const fields = { total_M: "total-input", pH: "ph-input" };
+    for (const [key, id] of Object.entries(fields)) {
+      if (obj[key] === undefined) continue;
+      const text = asText(obj[key], key, false);
+      if (text !== undefined) view.inputs[id].value = text;
+    }
+    return notes;
+  }
+
+  registerSection("distribution", { get: getState, set: setState, refresh });
 
   return { refresh };
 }

@@ -9,6 +9,10 @@ import { WaterView, embedWaterPlots } from "./water-view.js";
 import { embedBufferPlot, embedTitrationPlot } from "./plot.js";
 import { mountTreatment } from "./treatment.js";
 import { TreatmentView } from "./treatment-view.js";
+import { ShareView, mountShare, watchForUpdates } from "./share-view.js";
+import { loadPresets } from "./presets.js";
+import { mountBatch } from "./batch.js";
+import { BatchView } from "./batch-view.js";
 
 const status = new StatusView(document);
 const about = new AboutView(document);
@@ -59,12 +63,24 @@ try {
   status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
   await distribution.refresh();
   await water.refresh();
+  // Keep and share (share-view.js): the URL's link or example is applied once the defaults are drawn.
+  mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });
+  await mountShare({
+    py,
+    view: new ShareView(document),
+    presets: await loadPresets("./presets.json"),
+    manifest: fetch("./manifest.json").then((r) => (r.ok ? r.json() : null)).catch(() => null),
+    versions,
+    win: window,
+  });
 } catch (error) {
   status.fatal(String(error?.message || error));
 }
 
 if ("serviceWorker" in navigator && window.isSecureContext) {
-  navigator.serviceWorker.register("./sw.js", { scope: "./" }).catch((error) => {
-    console.warn("offline copy unavailable:", error.message);
-  });
+  navigator.serviceWorker.register("./sw.js", { scope: "./" })
+    .then((registration) => watchForUpdates(document, navigator.serviceWorker, registration))
+    .catch((error) => {
+      console.warn("offline copy unavailable:", error.message);
+    });
 }
