@@ -452,6 +452,9 @@ export class WaterView {
     const unit = display.unit;
     byId(this.doc, "water-conc-unit").textContent = `(${unit === "mg/L" ? "mg/L of the species" : unit})`;
     const scale = unit === "mmol/L" ? 1e3 : 1;
+    // Activities in the molar unit shown (mmol/L beside mg/L, which has no activity form).
+    const activityScale = unit === "mol/L" ? 1 : 1e3;
+    byId(this.doc, "water-activity-unit").textContent = `(${unit === "mol/L" ? "mol/L" : "mmol/L"})`;
     const shown = (c, mm) => (unit === "mg/L" ? (mm ? c * mm * 1e3 : null) : c * scale);
     const rows = [];
     const add = (s, systemName, slot, percent) => {
@@ -475,7 +478,7 @@ export class WaterView {
         this.cell(systemName, null, "system", "col-system"),
         this.cell(s.charge > 0 ? `+${s.charge}` : fixed(s.charge, 0), s.charge, "charge", "num col-charge"),
         this.cell(sciNumber(value, 4), value, "concentration", "num"),
-        this.cell(sciNumber(s.activity_M, 4), s.activity_M, "activity_M", "num"),
+        this.cell(sciNumber(s.activity_M * activityScale, 4), s.activity_M, "activity_M", "num"),
         this.cell(fixed(s.activity_coefficient, 4), s.activity_coefficient, "activity_coefficient", "num"),
         this.cell(percent === null ? "—" : fixed(percent, 2), percent, "percent", "num"),
       );

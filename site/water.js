@@ -112,6 +112,7 @@ function readable(message, label) {
       }
     }
   }
+  text = text.replace(/; known: .*$/, "; choose one from the list");
   return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
@@ -214,8 +215,8 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       }
       entry.total = take(`${base}-total`, parseNumber(row.total, "the total, e.g. 1 (empty rows are not allowed; remove the row instead)"));
       entry.unit = row.unit;
-      const allowed = row.id === "custom" ? CUSTOM_SYSTEM_UNITS : library.get(row.id)?.units || [];
-      if (!allowed.includes(row.unit)) {
+      const allowed = row.id === "custom" ? CUSTOM_SYSTEM_UNITS : library.get(row.id)?.units;
+      if (allowed && !allowed.includes(row.unit)) { // an unknown system is the core's to explain
         errors[`${base}-unit`] = `The unit ${row.unit} does not fit this system; choose one of ${allowed.map((u) => unitLabel(u)).join(", ")}.`;
       }
       systemRow.push(i);
@@ -237,7 +238,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       entry.total = take(`${base}-total`, parseNumber(row.total, "the concentration, e.g. 1 (empty rows are not allowed; remove the row instead)"));
       entry.unit = row.unit;
       const allowed = unitsFor("ion", i, row).units.map(([u]) => u);
-      if (!allowed.includes(row.unit)) {
+      if ((row.id === "custom" || ionLibrary.has(row.id)) && !allowed.includes(row.unit)) {
         errors[`${base}-unit`] = `The unit ${row.unit} does not fit this ion; choose one of ${allowed.map((u) => unitLabel(u)).join(", ")}.`;
       }
       return entry;
