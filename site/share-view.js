@@ -148,6 +148,7 @@ export async function mountShare({ py, view, presets, manifest, versions, win })
   let urlTimer = null;
   let recentTimer = null;
   let currentPreset = null;
+  let applying = false; // sections may report changes while a link is being applied: not edits
 
   view.setPresets(presets);
   view.setRecent(recent.list());
@@ -169,6 +170,7 @@ export async function mountShare({ py, view, presets, manifest, versions, win })
   }
 
   onInputChange(() => {
+    if (applying) return;
     currentPreset = null;
     view.showPreset(null);
     clearTimeout(urlTimer);
@@ -177,8 +179,12 @@ export async function mountShare({ py, view, presets, manifest, versions, win })
   });
 
   async function applyChecked(state, notes, what) {
-    const messages = [...notes, ...(await applyState(state))];
-    return messages;
+    applying = true;
+    try {
+      return [...notes, ...(await applyState(state))];
+    } finally {
+      applying = false;
+    }
   }
 
   async function openPreset(id, { fromUrl = false } = {}) {

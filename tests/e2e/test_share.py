@@ -1,0 +1,212 @@
+"""End-to-end: worked examples, links, files, recent list and the printed report.
+
+The oracle for every number is ``acidscape.api`` run in this process (the page runs the same
+wheel in Pyodide). The examples are invented waters: they are only checked for agreeing with
+the core, never against a chemistry value of their own.
+"""
+
+from __future__ import annotations
+
+import base64
+import json
+import math
+from pathlib import Path
+
+import pytest
+from playwright.sync_api import Page, expect
+
+from acidscape import api
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 90_000
+PRESETS = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text())["presets"]
+
+
+def open_at(page: Page, fragment: str = "") -> None:
+    page.goto("/" + (f"#{fragment}" if fragment else ""))
+    expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
+
+
+def water_ph(page: Page, want: float) -> float:
+    """Wait until the water section shows ``want`` (to round-off) and return the shown value."""
+    page.wait_for_function(
+        "(w) => { const v = Number(document.getElementById('water-ph').dataset.value);"
+        " return Math.abs(v - w) <= 1e-9 * Math.max(1, Math.abs(w)); }", arg=want, timeout=20_000)
+    return float(page.get_attribute("#water-ph", "data-value"))
+
+
+def state_of(fragment: str) -> dict:
+    assert fragment.startswith("#s=1."), fragment[:40]
+    payload = fragment[5:]
+    return json.loads(base64.urlsafe_b64decode(payload + "=" * (-len(payload) % 4)).decode("utf-8"))
+
+
+def link_for(state) -> str:
+    raw = json.dumps(state).encode() if not isinstance(state, bytes) else state
+    return "s=1." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
+
+
+def test_each_example_opens_from_the_menu_and_as_a_link_and_matches_the_core(page: Page, watch):
+    open_at(page, f"preset={PRESETS[0]['id']}")
+    for i, preset in enumerate(PRESETS):
+        if i:
+            page.select_option("#preset-select", preset["id"])
+        want = api.solve(preset["state"]["water"]["scenario"])
+        got = water_ph(page, want["pH"])
+        assert math.isclose(got, want["pH"], rel_tol=1e-12)
+        ionic = float(page.get_attribute("#water-ionic-strength", "data-value"))
+        assert math.isclose(ionic, want["ionic_strength_M"], rel_tol=1e-12)
+        expect(page.locator("#preset-summary")).to_contain_text("Example — invented")
+        page.wait_for_function("(h) => location.hash === h", arg=f"#preset={preset['id']}")
+        # The species section shows the example's acid at its pH, as the core computes it.
+        d = preset["state"]["distribution"]
+        page.wait_for_function("(id) => document.getElementById('acid-select').value === id", arg=d["acid"])
+        expect(page.locator("#species-caption")).to_contain_text(f"{d['pH']:.2f}")
+
+
+def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, watch):
+    open_at(page, "preset=hatchery-tank")
+    water_ph(page, api.solve(PRESETS[-1]["state"]["water"]["scenario"])["pH"])
+    page.fill("#ph-input", "6.85")
+    page.wait_for_function("() => location.hash.startsWith('#s=1.')")
+    page.wait_for_timeout(400)
+    first = state_of(page.evaluate("location.hash"))
+    assert first["distribution"]["pH"] == 6.85
+    assert first["water"]["scenario"]["temperature_C"] == 12.0
+    shown = page.input_value("#share-url")
+    assert shown == page.evaluate("location.href")
+    species = page.eval_on_selector_all("#species-table td", "tds => tds.map((td) => td.dataset.value)")
+    ph = page.get_attribute("#water-ph", "data-value")
+
+    other = context.new_page()
+    other.goto(shown)
+    expect(other.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
+    water_ph(other, float(ph))
+    other.wait_for_function("() => document.getElementById('ph-input').value === '6.85'")
+    other.wait_for_timeout(300)
+    assert state_of(other.evaluate("location.hash")) == first
+    assert other.get_attribute("#water-ph", "data-value") == ph
+    assert other.eval_on_selector_all("#species-table td", "tds => tds.map((td) => td.dataset.value)") == species
+    expect(other.locator("#share-message")).to_have_text("Opened the scenario from the link.")
+    other.close()
+
+
+OLD_FORMAT = base64.urlsafe_b64encode(json.dumps(
+    {"version": 0, "acid": "custom", "pka": "4.76", "z": 0, "c": 0.01, "ph": 5}).encode()).decode().rstrip("=")
+GOOD = link_for({"v": 1, "distribution": {"acid": "custom", "pKa": [4.2], "charge": 0, "total_M": 0.002, "pH": 5}})
+
+# (fragment, words the message must hold); every payload tries to run code or break the parser.
+HOSTILE = [
+    (link_for({"v": 1, "distribution": {"acid": "<img src=x onerror=\"window.__pwned=1\">"}}), "not an acid this page knows"),
+    (link_for({"v": 1, "water": {"scenario": {"systems": [{"custom": {"name": "<script>window.__pwned=1</script>",
+                                                                      "pKa": [4.0]}, "total": 1}]}}}), ""),
+    ("preset=javascript:window.__pwned=1", "not a valid name"),
+    (link_for({"v": 1, "distribution": {"acid": "javascript:window.__pwned=1"}}), "not an acid this page knows"),
+    (link_for(b'{"v":1,"distribution":{"total_M":1e999}}'), "too large"),
+    (link_for({"v": 1, "distribution": {"pH": 1e300}}), "too large"),
+    (link_for({"v": 1, "distribution": "abc"}), "expected a group of inputs"),
+    (link_for({"v": 1, "distribution": {"pH": {"x": 1}, "charge": [1, 2]}}), "not usable here"),
+    (GOOD[:-9], "cut short"),
+    ("s=7." + link_for({"v": 7, "distribution": {}})[4:], "newer Acidscape (format 7)"),
+    ("s=0." + GOOD[4:], "version marks disagree"),
+    ("s=1." + "QUFB" * 25_000, "too long"),
+    (link_for(b'{"v":1,"__proto__":{"polluted":1},"distribution":{"constructor":{"x":1},"pH":6}}'), "is not allowed"),
+    (link_for(b"[1,2,3]"), "does not hold a scenario"),
+    ("s=1.%3Cscript%3E", "characters"),
+    (link_for({"v": 1, "spreadsheet": {"a": 1}}), "not a part of this page"),
+]
+
+
+def test_hostile_and_broken_links_are_refused_with_a_message_and_run_nothing(page: Page, watch):
+    dialogs = []
+    page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
+    open_at(page, HOSTILE[0][0])
+    for i, (fragment, words) in enumerate(HOSTILE):
+        if i:
+            page.evaluate("(h) => { location.hash = h; }", fragment)
+        message = page.locator("#share-message")
+        expect(message).to_be_visible()
+        if words:
+            expect(message).to_contain_text(words, timeout=10_000)
+        page.wait_for_timeout(150)
+        assert page.evaluate("() => window.__pwned") is None, fragment[:60]
+        assert page.evaluate("() => ({}).polluted === undefined && Object.prototype.polluted === undefined")
+        assert page.locator("img[src='x'], main script").count() == 0
+    assert dialogs == []
+    # The page still computes after all that: a good link opens and its numbers are the core's.
+    page.evaluate("(h) => { location.hash = h; }", GOOD)
+    expect(page.locator("#share-message")).to_have_text("Opened the scenario from the link.")
+    want = api.distribution({"pKa": [4.2], "charge_most_protonated": 0, "total_M": 0.002, "pH": 5})
+    page.wait_for_function("() => document.getElementById('pka-input').value === '4.2'")
+    page.wait_for_function(
+        "(f) => { const td = document.querySelector('#species-table td[data-key=fraction]');"
+        " return td && Math.abs(Number(td.dataset.value) - f) < 1e-12; }", arg=want["table"]["rows"][0]["fraction"])
+
+
+def test_a_format_0_link_opens_migrated(page: Page, watch):
+    open_at(page, f"s=0.{OLD_FORMAT}")
+    expect(page.locator("#share-message")).to_contain_text("an older link (format 0) was brought up to date")
+    page.wait_for_function("() => document.getElementById('pka-input').value === '4.76'")
+    assert page.input_value("#total-input") == "0.01" and page.input_value("#ph-input") == "5"
+    page.wait_for_function("() => location.hash.startsWith('#s=1.')")
+    assert state_of(page.evaluate("location.hash"))["distribution"] == {
+        "acid": "custom", "pKa": [4.76], "charge": 0, "total_M": 0.01, "pH": 5}
+
+
+def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
+    open_at(page, "preset=co2-well")
+    water_ph(page, api.solve(PRESETS[1]["state"]["water"]["scenario"])["pH"])
+    # Copy link: the clipboard (granted here) or the selected-text fallback; either says so.
+    context.grant_permissions(["clipboard-read", "clipboard-write"])
+    page.click("#share-copy")
+    expect(page.locator("#share-message")).to_contain_text("Link copied")
+    assert page.evaluate("() => navigator.clipboard.readText()") == page.evaluate("location.href")
+
+    # Save to a file and open it again: same state.
+    with page.expect_download() as info:
+        page.click("#save-json")
+    saved = tmp_path / "scenario.json"
+    info.value.save_as(saved)
+    state = json.loads(saved.read_text())
+    # The water section writes an empty list where the example leaves a key out.
+    assert {k: v for k, v in state["water"]["scenario"].items() if v != []} == PRESETS[1]["state"]["water"]["scenario"]
+    page.fill("#ph-input", "3.3")
+    page.set_input_files("#load-json", str(saved))
+    expect(page.locator("#share-message")).to_contain_text('Opened the scenario from the file "scenario.json"')
+    page.wait_for_function("(v) => document.getElementById('ph-input').value === v", arg=str(state["distribution"]["pH"]))
+    bad = tmp_path / "bad.json"
+    bad.write_text('{"v": 1, "distribution": ')
+    page.set_input_files("#load-json", str(bad))
+    expect(page.locator("#share-message")).to_contain_text('"bad.json" could not be opened: it is not valid JSON')
+
+    # Recent scenarios: kept in localStorage only, listed, and cleared by the button.
+    page.wait_for_function("() => document.querySelectorAll('#recent-select option').length > 1", timeout=10_000)
+    assert page.evaluate("() => JSON.parse(localStorage.getItem('acidscape.recent.v1')).length") >= 1
+    page.click("#recent-clear")
+    assert page.evaluate("() => localStorage.getItem('acidscape.recent.v1')") is None
+    expect(page.locator("#recent-select option")).to_have_count(1)
+
+    # Printed report: inputs, results, trail, cautions, date and versions; print() is stubbed.
+    page.evaluate("() => { window.__printed = 0; window.print = () => { window.__printed += 1; }; }")
+    page.click("#print-report")
+    page.wait_for_function("() => window.__printed === 1")
+    report = page.locator("#report")
+    for words in ("Acidscape report", "Tool version", "Acidscape 0.", "Constants version", "sha256",
+                  "Cautions", "never pour water into acid", "temperature_C"):
+        expect(report).to_contain_text(words)
+    assert report.locator("table").count() >= 3
+    assert page.locator("#report [id]").count() == 0  # copies carry no duplicate ids
+
+    # Exports: a table as CSV with the full-precision numbers, and a plot as a PNG.
+    page.click(".share-exports summary")
+    page.select_option("#export-table-select", label=page.eval_on_selector(
+        "#export-table-select", "s => [...s.options].find(o => o.text.startsWith('Species at')).text"))
+    with page.expect_download() as info:
+        page.click("#export-table-csv")
+    csv_text = Path(info.value.path()).read_text()
+    first_value = page.get_attribute("#water-species-table tbody td[data-value]:not([data-value=''])", "data-value")
+    assert first_value in csv_text
+    with page.expect_download() as info:
+        page.click("#export-plot-png")
+    assert Path(info.value.path()).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
