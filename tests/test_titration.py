@@ -203,3 +203,22 @@ def test_cli_titrate_bad_input(tmp_path):
     assert "error [to_pH]" in r.stderr and "acid" in r.stderr
     r = run_cli("titrate", str(f), "--titrant", "NaOCl")
     assert r.returncode == 2 and "error [titrant]" in r.stderr and "not a known chemical" in r.stderr
+
+
+def test_co2_curve_stops_at_saturation_under_one_atmosphere():
+    # A bicarbonate water sparged with pure CO2 reaches at most [H2CO3*] = K_H x 1 atm
+    # (Henry's law; K_H 10^-1.468 mol/(L atm) at 25 °C, Plummer & Busenberg 1982, from memory);
+    # Henderson-Hasselbalch then gives pH = pKa1 + log10([HCO3-]/[H2CO3*]) (common practice).
+    import math
+
+    from acidscape.errors import UnreachableError
+    from acidscape.titration import titration_curve
+
+    sc = {"activity": "ideal", "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
+          "ions": [{"id": "Na+", "total": 2, "unit": "mmol/L"}]}
+    out = titration_curve(sc, "CO2", points=30)
+    expected = 6.352 + math.log10(2e-3 / 10**-1.468)
+    assert out["to_pH"] == pytest.approx(expected, abs=0.01)
+    assert any("1 atm" in w for w in out["warnings"])
+    with pytest.raises(UnreachableError, match="saturated with CO2"):
+        titration_curve(sc, "CO2", points=30, to_pH=4.0)

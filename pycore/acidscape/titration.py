@@ -370,6 +370,37 @@ def _golden_min(f, a, b, tol=1e-7):
     return 0.5 * (a + b)
 
 
+def _co2_saturation_pH(engine, parsed, pH0, I0, to_pH):
+    """pH between pH0 and to_pH at which dissolved H2CO3* reaches saturation under 1 atm of CO2.
+
+    None if the curve never gets there. The amount dissolved at each pH follows from the
+    explicit formula, so the condition (C_T0 + d(pH)) alpha0(pH) = K_H x 1 atm is solved by
+    bisection in pH (it rises monotonically as CO2 is added and the pH falls).
+    """
+    from .dosing import _a0_carbonate
+    from .temperature import log10_KH_CO2
+
+    sat = 10.0 ** log10_KH_CO2(parsed.T)
+    C0 = sum(c.total_M for c in parsed.components if c.key == "carbonate")
+
+    def excess(pH):
+        d, I, _ = engine.amount(pH, I0)
+        return (C0 + d) * _a0_carbonate(engine, pH, I) - sat
+
+    if excess(to_pH) <= 0.0:
+        return None
+    hi, lo = pH0, to_pH  # excess(hi) < 0 < excess(lo)
+    if excess(hi) >= 0.0:
+        return pH0
+    for _ in range(60):
+        mid = 0.5 * (hi + lo)
+        if excess(mid) > 0.0:
+            lo = mid
+        else:
+            hi = mid
+    return hi
+
+
 def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0.1, sample_mL: float = 100.0,
                     to_pH: float | None = None, points: int = DEFAULT_POINTS) -> dict:
     """Titration curve of a water with a titrant, by the explicit (de Levie) formulation.
@@ -442,6 +473,7 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
         raise UnreachableError(f"{chem.id} does not change this water's pH", field="titrant")
     upward = g0 > 0
     limit = engine.limit_pH(pH0, I0, upward)
+    given_to_pH = to_pH is not None
     if to_pH is None:
         to_pH = 11.0 if upward else 3.5
         if limit is not None and ((upward and to_pH > limit - 0.2) or (not upward and to_pH < limit + 0.2)):
@@ -458,6 +490,16 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
         raise UnreachableError(
             f"pH {to_pH:g} is beyond what {chem.id}{f' at {titrant_M:g} mol/L' if volumes else ''} can give: "
             f"however much is added the pH only approaches {limit:.2f}", field="to_pH")
+    if chem.is_gas:
+        sat_pH = _co2_saturation_pH(engine, p, pH0, I0, to_pH)
+        if sat_pH is not None:
+            if given_to_pH:
+                raise UnreachableError(
+                    f"pH {to_pH:g} is beyond what {chem.id} can give: the water is saturated with CO2 under "
+                    f"1 atm at pH {sat_pH:.2f}, and more does not dissolve", field="to_pH")
+            to_pH = sat_pH
+            warnings.append(f"curve ends at pH {sat_pH:.2f}, where the water holds as much CO2 as 1 atm of pure "
+                            "CO2 dissolves")
     Vs = sample_mL
     mm = chem.molar_mass_g_per_mol
 
