@@ -11,6 +11,9 @@ Usage:  .venv/bin/python build_scripts/bench.py [--repeats N] [--chromium PATH]
   (generated into a temp folder beside a copy of vendor/pyodide/);
   ``first_result_over_bare_boot``: the ratio of the two medians.
 - ``warm_recompute_ms``: median of 20 pH edits, from the keystroke to the redrawn result.
+- ``water6_recompute_ms``: median of 20 edits of a six-system water in the water section, from
+  the input event to the drawn result (with the 120 ms debounce); ``water6_core_call_ms`` and
+  ``water6_draw_ms`` split the work after the debounce into the core round trip and the redraw.
 
 Needs a built dist/ (python build_scripts/build.py) and /usr/bin/chromium.
 """
@@ -105,6 +108,7 @@ def browser_timings(chromium: str, runs: int) -> dict:
                     page.fill("#ph-input", text)
                     page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=before)
                     recompute_ms.append((time.perf_counter() - t0) * 1e3)
+                water_figures = water_recompute_timings(page)
                 context.close()
                 browser.close()
         finally:
@@ -119,6 +123,74 @@ def browser_timings(chromium: str, runs: int) -> dict:
         "first_result_over_bare_boot": round(page_med / bare_med, 3),
         "warm_recompute_ms": round(statistics.median(recompute_ms), 1),
         "warm_recompute_note": "includes the page's input debounce (120 ms) and the plot/table redraw",
+        **water_figures,
+    }
+
+# A six-system water for the water-section figure (invented for the benchmark, not a sample).
+WATER_6 = {
+    "temperature_C": 18, "activity": "davies",
+    "systems": [
+        {"id": "carbonate", "total": 2, "unit": "mmol/L"},
+        {"id": "phosphate", "total": 0.05, "unit": "mmol/L"},
+        {"id": "ammonium", "total": 0.1, "unit": "mmol/L"},
+        {"id": "silicic", "total": 0.2, "unit": "mmol/L"},
+        {"id": "boric", "total": 0.03, "unit": "mmol/L"},
+        {"id": "hypochlorous", "total": 0.01, "unit": "mmol/L"},
+    ],
+    "ions": [{"id": "Na+", "total": 1.5, "unit": "mmol/L"}, {"id": "Ca+2", "total": 0.5, "unit": "mmol/L"},
+             {"id": "Cl-", "total": 0.8, "unit": "mmol/L"}],
+}
+
+# One edit of the first system's total, timed inside the page: from the input event to the
+# section's data-drawn change (the result drawn), and to the next animation frame after it.
+WATER_EDIT_JS = """async (text) => {
+  const section = document.querySelector('#water-section');
+  const input = document.querySelector('#water-system-0-total');
+  const before = section.dataset.drawn;
+  const drawn = new Promise((resolve) => {
+    const watch = new MutationObserver(() => {
+      if (section.dataset.drawn !== before) { watch.disconnect(); resolve(performance.now()); }
+    });
+    watch.observe(section, {attributes: true, attributeFilter: ['data-drawn']});
+  });
+  const t0 = performance.now();
+  input.value = text;
+  input.dispatchEvent(new Event('input', {bubbles: true}));
+  const t1 = await drawn;
+  await new Promise((resolve) => requestAnimationFrame(() => resolve()));
+  return [t1 - t0, performance.now() - t0];
+}"""
+
+
+def water_recompute_timings(page, edits: int = 20) -> dict:
+    """Median time from an edit of a six-system water to its drawn result [ms].
+
+    The page must be booted. Between edits the page is left idle (1.5 s) so the sections
+    that follow the water (treatment) finish their own work first.
+    """
+    page.evaluate(
+        "(sc) => import('./state.js').then((m) => m.applyState({v: 1, water: {scenario: sc, display: {unit: 'mmol/L'}}}))",
+        WATER_6,
+    )
+    page.wait_for_timeout(2000)
+    page.evaluate("() => performance.clearMeasures()")
+    drawn, framed = [], []
+    for i in range(edits):
+        t_drawn, t_frame = page.evaluate(WATER_EDIT_JS, f"{2 + 0.05 * (i + 1):.2f}")
+        drawn.append(t_drawn)
+        framed.append(t_frame)
+        page.wait_for_timeout(1500)
+    split = page.evaluate(
+        "() => ['water:core', 'water:draw'].map((n) => performance.getEntriesByName(n).map((e) => e.duration))"
+    )
+    return {
+        "water6_core_call_ms": round(statistics.median(split[0][-edits:]), 1),
+        "water6_draw_ms": round(statistics.median(split[1][-edits:]), 1),
+        "water6_recompute_ms": round(statistics.median(drawn), 1),
+        "water6_recompute_to_frame_ms": round(statistics.median(framed), 1),
+        "water6_recompute_runs_ms": [round(v, 1) for v in drawn],
+        "water6_recompute_note": "6 systems + 3 ions, Davies, 281-point curves; from the input event to "
+                                 "the drawn result (table, both plots), including the 120 ms input debounce",
     }
 
 

@@ -345,10 +345,15 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
     }
     view.setBusy(true);
     try {
+      const t0 = performance.now();
       const out = await py.call("water", { ...scenario, curve: CURVE });
       if (seq !== latest) return false; // a newer request is on its way
+      const t1 = performance.now();
       view.showErrors({});
       draw(out);
+      // Timings for build_scripts/bench.py: the core round trip, then the table and plots.
+      performance.measure("water:core", { start: t0, end: t1 });
+      performance.measure("water:draw", { start: t1, end: performance.now() });
       lastScenario = JSON.parse(JSON.stringify(scenario));
       for (const cb of solvedListeners) {
         try {
