@@ -181,7 +181,7 @@ export class WaterView {
       `${base}-id`,
       isSystem ? this.systemOptions : this.ionOptions,
       row.id,
-      isSystem ? "Your own acid (enter its pKa values)" : "Your own ion",
+      isSystem ? "Your own acid" : "Your own ion",
     );
     const remove = this.doc.createElement("button");
     remove.type = "button";
