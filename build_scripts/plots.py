@@ -10,6 +10,8 @@ model name                 what the page puts in it
 =========================  ==========================================================
 ``fraction_src``           ColumnDataSource: ``xs`` (pH lists), ``ys`` (alpha
                            fraction lists), ``label`` (species formula), ``slot``
+                           (colour index, cycling through the palette), ``dash`` (a
+                           Bokeh dash name: solid for the first cycle, then dashed, dotted)
                            (0..n, picks the colour)
 ``fraction_marker``        Span: ``location`` = the pH of the species table
 ``logc_src``               ColumnDataSource as ``fraction_src`` with ``ys`` =
@@ -72,7 +74,7 @@ _FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, sans-serif"
 
 
 def _empty_source(name: str) -> ColumnDataSource:
-    return ColumnDataSource(data={"xs": [], "ys": [], "label": [], "slot": []}, name=name)
+    return ColumnDataSource(data={"xs": [], "ys": [], "label": [], "slot": [], "dash": []}, name=name)
 
 
 #: Height of a plot without its legend [px]; plot.js adds LEGEND_ROW_PX per legend row.
@@ -124,6 +126,7 @@ def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: s
         source=source,
         line_width=2.6,
         line_color=transform("slot", mapper),
+        line_dash="dash",
         line_alpha=0.95,
         hover_line_width=4.0,
         hover_line_color=transform("slot", mapper),

@@ -32,10 +32,10 @@ export function sciNumber(value, digits = 3) {
   if (value === null || value === undefined || !Number.isFinite(value)) return "—";
   if (value === 0) return "0";
   const magnitude = Math.abs(value);
-  if (magnitude >= 1e-3 && magnitude < 1e3) return Number(value.toPrecision(digits)).toString();
+  if (magnitude >= 1e-3 && magnitude < 1e3) return Number(value.toPrecision(digits)).toString().replace("-", "−");
   const [mantissa, exponent] = value.toExponential(digits - 1).split("e");
   const power = [...String(Number(exponent))].map((c) => SUP[c] ?? c).join("");
-  return `${mantissa} × 10${power}`;
+  return `${mantissa.replace("-", "−")} × 10${power}`;
 }
 
 /**

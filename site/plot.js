@@ -6,6 +6,9 @@ function bokeh() {
   return globalThis.Bokeh;
 }
 
+const PALETTE_SIZE = 13; // colours in build_scripts/plots.py PALETTE
+const DASHES = ["solid", "dashed", "dotted", "dashdot"];
+
 function findModel(name, doc = null) {
   for (const d of doc ? [doc] : bokeh().documents) {
     const model = d.get_model_by_name(name);
@@ -94,7 +97,9 @@ class SpeciesPlot {
       xs: ys.map(() => x),
       ys,
       label: labels,
-      slot: labels.map((_, i) => i),
+      slot: labels.map((_, i) => i % PALETTE_SIZE),
+      // past the palette's length, colours repeat with another dash pattern
+      dash: labels.map((_, i) => DASHES[Math.floor(i / PALETTE_SIZE) % DASHES.length]),
     };
   }
 

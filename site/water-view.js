@@ -467,7 +467,7 @@ export class WaterView {
       if (slot !== null) {
         const swatch = this.doc.createElement("span");
         swatch.className = "swatch";
-        swatch.style.background = palette[Math.min(slot, palette.length - 1)];
+        swatch.style.background = palette[slot % palette.length];
         swatch.setAttribute("aria-hidden", "true");
         name.append(swatch);
       }
