@@ -1,0 +1,156 @@
+"""Timings of sharing and batch work (a benchmark, not a test). Prints one JSON object.
+
+Usage:  .venv/bin/python build_scripts/bench_share.py [--rows N] [--runs N] [--chromium PATH]
+
+- ``cpython_batch_rows_per_s``: acidscape.batch.run_rows on N generated samples (pH, temperature,
+  alkalinity, phosphate) on the host CPython.
+- ``browser_batch_rows_per_s``: the same CSV through the page's batch section (chunks of 250
+  streamed to the Pyodide worker), from the click to the last chunk, as the page reports it.
+- ``bare_pyodide_boot_ms``: navigation to the end of loadPyodide() on an empty page;
+  ``preset_link_first_result_ms``: navigation to ``#preset=<id>`` until that example's water pH
+  is on screen (link decoded and applied, every section recomputed);
+  ``preset_link_over_bare_boot``: the ratio of the medians. Fresh context per run, service
+  workers blocked (a first visit), the two pages alternated.
+
+Needs a built dist/ (python build_scripts/build.py) and /usr/bin/chromium.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import platform
+import random
+import shutil
+import statistics
+import sys
+import tempfile
+import threading
+import time
+from pathlib import Path
+
+REPO = Path(__file__).resolve().parent.parent
+DIST = REPO / "dist"
+sys.path.insert(0, str(REPO / "build_scripts"))
+sys.path.insert(0, str(REPO / "pycore"))
+
+from bench import BARE_HTML, BARE_JS  # noqa: E402
+from serve import make_server  # noqa: E402
+
+MAPPING = {"id": "Sample", "pH": "pH", "temperature": {"column": "Temp C", "unit": "C"},
+           "alkalinity": {"column": "Alkalinity mg/L", "unit": "mg/L as CaCO3"},
+           "systems": [{"id": "phosphate", "column": "PO4-P mg/L", "unit": "mg/L as P"}]}
+PRESET = "orthophosphate-dose"
+
+
+def samples(n: int) -> str:
+    rnd = random.Random(1)
+    lines = ["Sample,pH,Temp C,Alkalinity mg/L,PO4-P mg/L"]
+    lines += [f"W{i},{rnd.uniform(6, 9.5):.2f},{rnd.uniform(2, 30):.1f},{rnd.uniform(5, 300):.1f},"
+              f"{rnd.uniform(0, 2):.3f}" for i in range(n)]
+    return "\n".join(lines) + "\n"
+
+
+def cpython_rate(text: str, n: int) -> float:
+    from acidscape.batch import run_rows
+
+    t0 = time.perf_counter()
+    run_rows(text, MAPPING)
+    return n / (time.perf_counter() - t0)
+
+
+def serve(folder: Path):
+    server = make_server(folder, 0, quiet=True)
+    threading.Thread(target=server.serve_forever, daemon=True).start()
+    host, port = server.server_address[:2]
+    return server, f"http://{host}:{port}/"
+
+
+def browser(chromium: str, text: str, n: int, runs: int) -> dict:
+    from playwright.sync_api import sync_playwright
+
+    sys.path.insert(0, str(REPO / "pycore"))
+    from acidscape import api
+
+    presets = json.loads((REPO / "site" / "presets.json").read_text())["presets"]
+    want_pH = api.solve(next(p for p in presets if p["id"] == PRESET)["state"]["water"]["scenario"])["pH"]
+    with tempfile.TemporaryDirectory() as tmp:
+        bare = Path(tmp)
+        shutil.copytree(DIST / "vendor" / "pyodide", bare / "vendor" / "pyodide")
+        (bare / "index.html").write_text(BARE_HTML)
+        (bare / "bare.js").write_text(BARE_JS)
+        (bare / "samples.csv").write_text(text)
+        site_server, site_url = serve(DIST)
+        bare_server, bare_url = serve(bare)
+        bare_ms, link_ms = [], []
+        try:
+            with sync_playwright() as p:
+                b = p.chromium.launch(executable_path=chromium, args=["--disable-gpu"])
+                for _ in range(runs):
+                    ctx = b.new_context(service_workers="block")
+                    page = ctx.new_page()
+                    t0 = time.perf_counter()
+                    page.goto(bare_url)
+                    page.wait_for_selector("body[data-ready]", state="attached", timeout=120_000)
+                    bare_ms.append((time.perf_counter() - t0) * 1e3)
+                    ctx.close()
+                    ctx = b.new_context(service_workers="block")
+                    page = ctx.new_page()
+                    t0 = time.perf_counter()
+                    page.goto(f"{site_url}#preset={PRESET}")
+                    page.wait_for_function(
+                        "(w) => Math.abs(Number(document.getElementById('water-ph').dataset.value) - w) < 1e-9",
+                        arg=want_pH, timeout=120_000, polling=20)
+                    link_ms.append((time.perf_counter() - t0) * 1e3)
+                    ctx.close()
+                ctx = b.new_context(service_workers="block")
+                page = ctx.new_page()
+                page.goto(site_url)
+                page.wait_for_selector("body[data-share-ready]", state="attached", timeout=120_000)
+                page.set_input_files("#batch-file", str(bare / "samples.csv"))
+                page.wait_for_function("() => !document.getElementById('batch-run').disabled")
+                page.click("#batch-add-total")
+                page.select_option("#batch-total-0-column", "PO4-P mg/L")
+                page.select_option("#batch-total-0-id", "system:phosphate")
+                page.select_option("#batch-total-0-unit", "mg/L as P")
+                page.click("#batch-run")
+                page.wait_for_selector("#batch-progress[data-state=finished]", state="attached", timeout=600_000)
+                seconds = float(page.get_attribute("#batch-progress", "data-seconds"))
+                ctx.close()
+                b.close()
+        finally:
+            site_server.shutdown()
+            bare_server.shutdown()
+    bm, lm = statistics.median(bare_ms), statistics.median(link_ms)
+    return {
+        "browser_batch_rows": n,
+        "browser_batch_seconds": round(seconds, 2),
+        "browser_batch_rows_per_s": round(n / seconds, 1),
+        "bare_pyodide_boot_ms": round(bm, 1),
+        "preset_link_first_result_ms": round(lm, 1),
+        "preset_link_runs_ms": [round(v, 1) for v in link_ms],
+        "preset_link_over_bare_boot": round(lm / bm, 3),
+    }
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description="Acidscape share/batch timings, printed as JSON.")
+    parser.add_argument("--rows", type=int, default=10_000, help="samples in the batch (default 10000)")
+    parser.add_argument("--runs", type=int, default=3, help="boots of each page (default 3)")
+    parser.add_argument("--chromium", default="/usr/bin/chromium", help="Chromium executable")
+    args = parser.parse_args(argv)
+    if not (DIST / "manifest.json").exists():
+        print("bench_share.py: build first: python build_scripts/build.py", file=sys.stderr)
+        return 1
+    text = samples(args.rows)
+    result = {
+        "machine": f"{platform.machine()}, {platform.python_implementation()} {platform.python_version()}",
+        "cpython_batch_rows_per_s": round(cpython_rate(text, args.rows), 1),
+    }
+    result.update(browser(args.chromium, text, args.rows, args.runs))
+    print(json.dumps(result, indent=2))
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
