@@ -179,12 +179,23 @@ def site_files(out: Path, skip: set[str]) -> list[str]:
     return sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file() and p.name not in skip)
 
 
+def constants_fingerprint() -> dict:
+    """The version of the cited constants: a hash over the data tables and constants.py."""
+    core = REPO / "pycore" / "acidscape"
+    tables = sorted((core / "data").glob("*.csv")) + [core / "constants.py"]
+    digest = hashlib.sha256()
+    for path in tables:
+        digest.update(path.name.encode() + b"\0" + path.read_bytes())
+    return {"sha256": digest.hexdigest(), "files": [p.relative_to(core).as_posix() for p in tables]}
+
+
 def write_manifest(out: Path, versions: dict, wheel: Path) -> dict:
     files = {rel: sha256_of(out / rel) for rel in site_files(out, {"manifest.json", "sw.js"})}
     manifest = {
         "name": "acidscape",
         "versions": versions,
         "wheel": wheel.relative_to(out).as_posix(),
+        "constants": constants_fingerprint(),
         "files": files,
     }
     (out / "manifest.json").write_text(json.dumps(manifest, indent=1, sort_keys=True) + "\n")

@@ -247,7 +247,9 @@ export function fillReport(doc, report, { state, link, versions, manifest }) {
   const metaRows = [
     ["Printed", new Date().toLocaleString()],
     ["Tool version", `Acidscape ${v.acidscape ?? "?"} (Python ${v.python ?? "?"} on Pyodide ${v.pyodide ?? "?"})`],
-    ["Constants version", wheel ? `core package with its cited data tables, sha256 ${wheel.slice(0, 16)} (${manifest.wheel})` : "unknown (no build manifest)"],
+    ["Constants version", manifest?.constants?.sha256
+      ? `cited data tables and constants, sha256 ${manifest.constants.sha256.slice(0, 16)}`
+      : wheel ? `core package with its cited data tables, sha256 ${wheel.slice(0, 16)} (${manifest.wheel})` : "unknown (no build manifest)"],
     ["Scenario link", link],
   ];
   for (const [k, text] of metaRows) meta.append(el(doc, "dt", k), el(doc, "dd", text));

@@ -95,3 +95,16 @@ def test_page_has_the_csp_and_no_inline_script(dist):
     for script in re.findall(r"<script\b[^>]*>(.*?)</script>", html, re.S):
         assert script.strip() == ""
     assert not re.search(r"\son[a-z]+=", html)  # no inline event handlers
+
+
+def test_manifest_carries_the_constants_fingerprint(dist):
+    # Recomputed here with hashlib over the same files: the report prints this as the
+    # version of the constants.
+    core = Path(__file__).resolve().parents[2] / "pycore" / "acidscape"
+    manifest = json.loads((dist / "manifest.json").read_text())
+    digest = hashlib.sha256()
+    for rel in manifest["constants"]["files"]:
+        path = core / rel
+        digest.update(path.name.encode() + b"\0" + path.read_bytes())
+    assert manifest["constants"]["sha256"] == digest.hexdigest()
+    assert any(rel.endswith("systems.csv") for rel in manifest["constants"]["files"])
