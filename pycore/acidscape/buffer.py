@@ -57,6 +57,7 @@ from collections.abc import Iterable, Sequence
 from .activity import DEFAULT_ION_SIZE_A, debye_huckel_A, debye_huckel_B
 from .errors import InputError
 from .speciation import _check_pH
+from .speciation import proton_moments as _moments
 
 _LN10 = math.log(10.0)
 _exp = math.exp
@@ -111,29 +112,6 @@ def gamma_function(T: float, model: str):
         return lg
     raise InputError(f"activity model {model!r} is not known; allowed: ideal, davies, extended-debye-huckel",
                      field="activity")
-
-
-def _moments(pH: float, cum: Sequence[float]) -> tuple[float, float]:
-    """Mean and variance of the number of protons released, at one pH."""
-    if len(cum) == 2:  # monoprotic: alpha1 = 1/(1 + 10^(pKa - pH)), variance alpha0 alpha1
-        d = (pH - cum[1]) * _LN10
-        if d > 0:
-            r = _exp(-d)
-            a1 = 1.0 / (1.0 + r)
-            return a1, r * a1 * a1
-        r = _exp(d)
-        a0 = 1.0 / (1.0 + r)
-        return r * a0, r * a0 * a0
-    logs = [i * pH - s for i, s in enumerate(cum)]
-    m = max(logs)
-    tot = mean = sq = 0.0
-    for i, x in enumerate(logs):
-        t = _exp((x - m) * _LN10)
-        tot += t
-        mean += i * t
-        sq += i * i * t
-    mean /= tot
-    return mean, max(sq / tot - mean * mean, 0.0)
 
 
 def _cum(pKa: Sequence[float]) -> list[float]:

@@ -47,6 +47,7 @@ from dataclasses import dataclass, field
 
 from .activity import log10_gamma
 from .errors import ConvergenceError, InputError
+from .speciation import proton_moments
 
 _LN10 = math.log(10.0)
 #: Bracket of the pH search: wide enough for pH -1..15 with every allowed total.
@@ -163,31 +164,8 @@ def _system_charge(pH: float, cum: list[float], z0: int, total: float, fixed_fir
             si2 += i * i * t
         # concentrations relative to the fixed species: c_i = fixed * t_i
         return fixed_first * (z0 * s - si), -fixed_first * si2 * _LN10 + fixed_first * z0 * si * _LN10
-    n = len(cum)
-    if n == 2:  # monoprotic: closed form
-        d = (pH - cum[1]) * _LN10
-        if d > 0:
-            r = exp(-d)
-            a1 = 1.0 / (1.0 + r)
-            a0 = r * a1
-        else:
-            r = exp(d)
-            a0 = 1.0 / (1.0 + r)
-            a1 = r * a0
-        return total * (z0 - a1), -total * _LN10 * a0 * a1
-    logs = [i * pH - c for i, c in enumerate(cum)]
-    m = max(logs)
-    s = si = si2 = 0.0
-    for i, x in enumerate(logs):
-        t = exp((x - m) * _LN10)
-        s += t
-        si += i * t
-        si2 += i * i * t
-    ibar = si / s
-    var = si2 / s - ibar * ibar
-    if var < 0.0:
-        var = 0.0
-    return total * (z0 - ibar), -total * _LN10 * var
+    mean, var = proton_moments(pH, cum)
+    return total * (z0 - mean), -total * _LN10 * var
 
 
 def _balance(pH, prepared, strong_charge, lgH, lgOH, pKw):

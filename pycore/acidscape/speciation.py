@@ -261,3 +261,55 @@ def mean_charge(pH: float, pKa: Sequence[float], z0: int) -> float:
     0.9943
     """
     return z0 - mean_protons_released(pH, pKa)
+
+
+def proton_moments(pH: float, cum: Sequence[float]) -> tuple[float, float]:
+    r"""Mean and variance of the number of protons released per mole, at one pH.
+
+    .. math::
+
+        \bar{i} = \sum_i i\,\alpha_i, \qquad
+        \sigma^2 = \sum_i i^2 \alpha_i - \bar{i}^2 = \frac{1}{\ln 10}\frac{d\bar{i}}{d\mathrm{pH}}
+
+    The mean gives a system's charge (z0 - mean), the variance its buffer intensity
+    (ln10 C_T variance) and the slope of the charge balance.
+
+    Parameters
+    ----------
+    pH : float
+        pH on the scale of the constants [-] (not validated: an inner-loop helper)
+    cum : sequence of float
+        Cumulative pKa sums 0, pKa1, pKa1 + pKa2, ... [-]
+
+    Returns
+    -------
+    tuple of float
+        (mean, variance) [-]
+
+    Examples
+    --------
+    A monoprotic acid at pH = pKa: half dissociated, variance 1/4 (Van Slyke 1922).
+
+    >>> proton_moments(4.756, [0.0, 4.756])
+    (0.5, 0.25)
+    """
+    exp = math.exp
+    if len(cum) == 2:  # monoprotic: alpha1 = 1/(1 + 10^(pKa - pH)), variance alpha0 alpha1
+        d = (pH - cum[1]) * _LN10
+        if d > 0:
+            r = exp(-d)
+            a1 = 1.0 / (1.0 + r)
+            return a1, r * a1 * a1
+        r = exp(d)
+        a0 = 1.0 / (1.0 + r)
+        return r * a0, r * a0 * a0
+    logs = [i * pH - s for i, s in enumerate(cum)]
+    m = max(logs)
+    tot = mean = sq = 0.0
+    for i, x in enumerate(logs):
+        t = exp((x - m) * _LN10)
+        tot += t
+        mean += i * t
+        sq += i * i * t
+    mean /= tot
+    return mean, max(sq / tot - mean * mean, 0.0)
