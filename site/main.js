@@ -1,6 +1,6 @@
 // Composition root: start Python, embed the plots, mount the sections, go offline-capable.
 
-import { startPython } from "./py.js";
+import { onBootProgress, sharedPython } from "./py.js";
 import { embedPlots } from "./plot.js";
 import { AboutView, DistributionView, StatusView } from "./view.js";
 import { mountDistribution } from "./distribution.js";
@@ -22,13 +22,15 @@ fetch("./manifest.json")
   .then((manifest) => about.render(manifest?.versions))
   .catch(() => about.render(null));
 
-const py = startPython({ onProgress: (step) => status.progress(step) });
+const py = sharedPython(); // already started by boot.js
+onBootProgress((step) => status.progress(step));
 const plots = embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });
 
 try {
   const [versions, plotHandles] = await Promise.all([py.ready, plots]);
   about.render(versions);
-  const library = await py.call("systems").then((r) => r.systems, () => null);
+  const waterLibrary = await py.call("systems").catch(() => ({ systems: [], ions: [] }));
+  const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
   const distribution = mountDistribution({
     py,
     view: new DistributionView(document),
@@ -36,8 +38,9 @@ try {
     status,
     systems: library,
   });
+  // Draw the first result before mounting the rest: it is what the user waits for.
+  await distribution.refresh();
   // Section "Equilibrium of a whole water" (water.js); its handle feeds later sections.
-  const waterLibrary = await py.call("systems").catch(() => ({ systems: [], ions: [] }));
   const water = mountWater({
     py,
     view: new WaterView(document),
@@ -61,7 +64,6 @@ try {
     systems: library,
   });
   status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
-  await distribution.refresh();
   await water.refresh();
   // Keep and share (share-view.js): the URL's link or example is applied once the defaults are drawn.
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });

@@ -92,3 +92,35 @@ export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = 
 
   return { ready, call, terminate: () => worker.terminate() };
 }
+
+let shared = null;
+let lastProgress = null;
+const progressListeners = new Set();
+
+/**
+ * The page's one Python worker, started on first use. `boot.js` calls this before BokehJS
+ * is parsed so that Pyodide starts loading at once; main.js gets the same instance.
+ *
+ * @returns {{ready: Promise<object>, call: (method: string, params?: object) => Promise<any>,
+ *            terminate: () => void}}
+ */
+export function sharedPython() {
+  if (!shared) {
+    shared = startPython({
+      onProgress: (step) => {
+        lastProgress = step;
+        for (const listener of progressListeners) listener(step);
+      },
+    });
+  }
+  return shared;
+}
+
+/**
+ * @param {(p: {stage: string, fraction: number, text: string}) => void} listener  called with
+ *        the latest boot step at once (if any) and with every later one
+ */
+export function onBootProgress(listener) {
+  progressListeners.add(listener);
+  if (lastProgress) listener(lastProgress);
+}

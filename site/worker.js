@@ -18,18 +18,19 @@ async function fetchOk(url, what) {
 }
 
 async function boot() {
-  progress("manifest", 0.05, "Reading the build manifest…");
-  const manifest = await (await fetchOk(new URL("./manifest.json", import.meta.url), "manifest.json")).json();
-  if (!manifest.wheel) throw new Error("manifest.json names no wheel");
-  const wheelUrl = new URL(manifest.wheel, import.meta.url);
-  const wheel = fetchOk(wheelUrl, "the acidscape package").then((r) => r.arrayBuffer());
-
   progress("runtime", 0.15, "Loading the Python runtime (about 13 MB the first time)…");
-  const pyodide = await loadPyodide({
+  // The runtime, the manifest and the wheel load side by side.
+  const runtime = loadPyodide({
     indexURL: new URL("./vendor/pyodide/", import.meta.url).href,
     stdout: () => {},
     stderr: (line) => console.warn("[python]", line),
   });
+  runtime.catch(() => {}); // its failure is reported through the await below, not as unhandled
+  const manifest = await (await fetchOk(new URL("./manifest.json", import.meta.url), "manifest.json")).json();
+  if (!manifest.wheel) throw new Error("manifest.json names no wheel");
+  const wheelUrl = new URL(manifest.wheel, import.meta.url);
+  const wheel = fetchOk(wheelUrl, "the acidscape package").then((r) => r.arrayBuffer());
+  const pyodide = await runtime;
 
   progress("package", 0.85, "Installing the Acidscape core…");
   const sitePackages = pyodide.runPython("import site; site.getsitepackages()[0]");
