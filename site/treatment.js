@@ -367,6 +367,10 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
           flow: stateNumber(raw["dose-flow"]),
           flow_unit: raw["dose-flow-unit"],
         },
+        buffer: {
+          from_pH: stateNumber(raw["capacity-from-ph"]),
+          to_pH: stateNumber(raw["capacity-to-ph"]),
+        },
       };
     },
     set(obj) {
@@ -394,6 +398,9 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       } else {
         put("dose-flow-unit", d.flow_unit, "flow unit");
       }
+      const b = obj.buffer || {};
+      put("capacity-from-ph", b.from_pH, "buffer capacity from pH");
+      put("capacity-to-ph", b.to_pH, "buffer capacity to pH");
       const gas = view.read()["titrant-select"] === "CO2";
       for (const other of ["titrant-conc", "sample-volume", "titration-axis"]) view.inputs[other].disabled = gas;
       return messages;

@@ -48,7 +48,7 @@ def test_state_has_the_contract_shape(preset):
     assert set(state) <= {"v", "distribution", "water", "treatment"}
     assert set(state["water"]) == WATER_KEYS
     assert state["water"]["display"]["unit"] in ("mol/L", "mmol/L", "mg/L")
-    assert set(state["treatment"]) == {"titration", "dose"}
+    assert {"titration", "dose"} <= set(state["treatment"]) <= {"titration", "dose", "buffer"}
     assert set(state["treatment"]["titration"]) == TITRATION_KEYS
     assert state["treatment"]["titration"]["axis"] in ("volume", "dose")
     assert set(state["treatment"]["dose"]) == DOSE_KEYS
