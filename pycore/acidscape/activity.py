@@ -10,6 +10,8 @@ debye_huckel_A_molal(T), debye_huckel_B_molal(T)
     The same for ionic strength on the molal scale (mol/kg).
 log10_gamma(z, I, T, model, ion_size_A=None)
     log10 of the activity coefficient of an ion of charge ``z``.
+gamma_function(T, model)
+    The same equations as a closure lg(z, ion_size_A, I), A and B computed once.
 ionic_strength(concentrations_and_charges)
     I = 1/2 sum c z^2.
 ionic_strength_from_tds(tds_mg_per_L), ionic_strength_from_conductance(sc_uS_per_cm)
@@ -52,7 +54,7 @@ from .water import check_temperature_K, density_water
 __all__ = [
     "MODELS", "VALIDITY_I_M", "DEFAULT_ION_SIZE_A", "DH_A_PREFACTOR", "DH_B_PREFACTOR",
     "permittivity_water", "debye_huckel_A", "debye_huckel_B", "debye_huckel_A_molal",
-    "debye_huckel_B_molal", "log10_gamma", "ionic_strength", "ionic_strength_from_tds",
+    "debye_huckel_B_molal", "gamma_function", "log10_gamma", "ionic_strength", "ionic_strength_from_tds",
     "ionic_strength_from_conductance",
 ]
 
@@ -353,15 +355,60 @@ def log10_gamma(z, I, T, model, ion_size_A=None) -> float:
         a = _nonneg(ion_size_A, "ion_size_A", "ion size a [Å]")
         if a == 0.0:
             raise InputError(f"ion size a [Å] must be > 0, got {ion_size_A!r}", field="ion_size_A")
-    if model == "ideal" or z == 0 or I == 0.0:
-        return 0.0
-    sqrtI = math.sqrt(I)
+    return gamma_function(T, model)(z, ion_size_A, I)
+
+
+def gamma_function(T: float, model: str):
+    """log10 activity coefficient as a closure ``lg(z, ion_size_A, I)`` at one T and model.
+
+    The equations of :func:`log10_gamma` (which validates its inputs and calls this),
+    with the Debye-Hückel A(T) and B(T) computed once, for the inner loops of the
+    solver, titration curves and dosing. The closure does not validate its inputs:
+    callers pass checked values.
+
+    Parameters
+    ----------
+    T : float
+        Temperature [K]
+    model : str
+        One of :data:`MODELS` [-]
+
+    Returns
+    -------
+    callable
+        ``lg(z, ion_size_A, I) -> log10 gamma`` with z [-], ion_size_A [Å] or None
+        (:data:`DEFAULT_ION_SIZE_A` by |z|) and I [mol/L]
+
+    Examples
+    --------
+    >>> lg = gamma_function(298.15, "davies")
+    >>> round(10 ** lg(1, None, 0.1), 3)
+    0.781
+    """
+    if model == "ideal":
+        return lambda z, a, I: 0.0
+    if model not in MODELS:
+        raise UnknownIdError(
+            f"activity model {model!r} is not known; allowed: {', '.join(MODELS)}", field="activity"
+        )
     A = debye_huckel_A(T)
     if model == "davies":
-        return -A * z * z * (sqrtI / (1.0 + sqrtI) - 0.3 * I)
-    if ion_size_A is None:
-        a = DEFAULT_ION_SIZE_A[min(abs(z), 3)]
-    return -A * z * z * sqrtI / (1.0 + debye_huckel_B(T) * a * sqrtI)
+        def lg(z, a, I):
+            if z == 0 or I <= 0.0:
+                return 0.0
+            s = math.sqrt(I)
+            return -A * z * z * (s / (1.0 + s) - 0.3 * I)
+        return lg
+    B = debye_huckel_B(T)
+
+    def lg(z, a, I):
+        if z == 0 or I <= 0.0:
+            return 0.0
+        if a is None:
+            a = DEFAULT_ION_SIZE_A[min(abs(z), 3)]
+        s = math.sqrt(I)
+        return -A * z * z * s / (1.0 + B * a * s)
+    return lg
 
 
 def ionic_strength(concentrations_and_charges) -> float:

@@ -39,7 +39,7 @@ buffer_capacity_between(pH1, pH2, systems, ...)  base from pH1 to pH2 [eq/L]
 buffer_intensity(eq, pH=None)                    beta of a solved water (closed, fixed I)
 buffer_capacity(eq, pH1, pH2)                    the same from a solved water
 buffer_curve(eq, pH_values)                      beta over many pH values
-gamma_function(T, model)                         fast log10 gamma(z, a, I) with A(T), B(T) cached
+gamma_function(T, model)                         re-export of acidscape.activity.gamma_function
 
 References
 ----------
@@ -54,64 +54,13 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable, Sequence
 
-from .activity import DEFAULT_ION_SIZE_A, debye_huckel_A, debye_huckel_B
+from .activity import gamma_function  # noqa: F401  (re-exported: was defined here)
 from .errors import InputError
 from .speciation import _check_pH
 from .speciation import proton_moments as _moments
 
 _LN10 = math.log(10.0)
 _exp = math.exp
-
-
-def gamma_function(T: float, model: str):
-    """log10 activity coefficient as a fast closure ``lg(z, ion_size_A, I)``.
-
-    The same equations as :func:`acidscape.activity.log10_gamma` (Davies;
-    extended Debye-Hückel with Kielland ion sizes; ideal), with the
-    Debye-Hückel A(T) and B(T) computed once, for the inner loops of titration
-    curves. Inputs are not validated here: callers pass checked values.
-
-    Parameters
-    ----------
-    T : float
-        Temperature [K]
-    model : str
-        ``"ideal"``, ``"davies"`` or ``"extended-debye-huckel"`` [-]
-
-    Returns
-    -------
-    callable
-        ``lg(z, ion_size_A, I) -> log10 gamma`` with I in [mol/L]
-
-    Examples
-    --------
-    >>> lg = gamma_function(298.15, "davies")
-    >>> round(10 ** lg(1, None, 0.1), 3)
-    0.781
-    """
-    if model == "ideal":
-        return lambda z, a, I: 0.0
-    A = debye_huckel_A(T)
-    if model == "davies":
-        def lg(z, a, I):
-            if z == 0 or I <= 0.0:
-                return 0.0
-            s = math.sqrt(I)
-            return -A * z * z * (s / (1.0 + s) - 0.3 * I)
-        return lg
-    if model == "extended-debye-huckel":
-        B = debye_huckel_B(T)
-
-        def lg(z, a, I):
-            if z == 0 or I <= 0.0:
-                return 0.0
-            if a is None:
-                a = DEFAULT_ION_SIZE_A[min(abs(z), 3)]
-            s = math.sqrt(I)
-            return -A * z * z * s / (1.0 + B * a * s)
-        return lg
-    raise InputError(f"activity model {model!r} is not known; allowed: ideal, davies, extended-debye-huckel",
-                     field="activity")
 
 
 def _cum(pKa: Sequence[float]) -> list[float]:

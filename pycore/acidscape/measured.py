@@ -48,7 +48,7 @@ import math
 from dataclasses import dataclass, field
 
 from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
-from .buffer import gamma_function
+from .activity import gamma_function
 from .constants import ATOMIC_WEIGHT
 from .errors import ConvergenceError, InputError
 from .solver import ION_SIZE_H, ION_SIZE_OH

@@ -45,7 +45,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .activity import log10_gamma
+from .activity import gamma_function
 from .errors import ConvergenceError, InputError
 from .speciation import proton_moments
 
@@ -123,20 +123,23 @@ class Equilibrium:
 
 
 class _Gamma:
-    """Cache of log10 gamma by (charge, ion size) at one I, T and model."""
+    """Cache of log10 gamma by (charge, ion size) at one ionic strength.
 
-    __slots__ = ("I", "T", "model", "cache")
+    ``lg`` is :func:`acidscape.activity.gamma_function` at the water's T and model.
+    """
 
-    def __init__(self, I: float, T: float, model: str):
-        self.I, self.T, self.model, self.cache = I, T, model, {}
+    __slots__ = ("I", "lg", "cache")
+
+    def __init__(self, I: float, lg):
+        self.I, self.lg, self.cache = I, lg, {}
 
     def __call__(self, z: int, a: float | None) -> float:
-        if z == 0 or self.model == "ideal":
+        if z == 0:
             return 0.0
         key = (z, a)
         v = self.cache.get(key)
         if v is None:
-            v = log10_gamma(z, self.I, self.T, self.model, a)
+            v = self.lg(z, a, self.I)
             self.cache[key] = v
         return v
 
@@ -271,6 +274,7 @@ def equilibrate(
         pH, ionic strength, concentrations, activity coefficients and the charge-balance
         residual [eq/L] at the answer
     """
+    gamma_of = gamma_function(T, model)
     strong_charge = sum(ion.charge * ion.conc_M for ion in ions)
     strong_I = 0.5 * sum(ion.charge**2 * ion.conc_M for ion in ions)
     I = I_fixed if I_fixed is not None else strong_I
@@ -278,7 +282,7 @@ def equilibrate(
     total_iters = 0
     checked = False
     for outer in range(max_outer):
-        gamma = _Gamma(I, T, model)
+        gamma = _Gamma(I, gamma_of)
         lgH = gamma(1, ION_SIZE_H)
         lgOH = gamma(-1, ION_SIZE_OH)
         prepared = []

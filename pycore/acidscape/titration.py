@@ -59,7 +59,7 @@ import math
 from dataclasses import dataclass
 from operator import mul as _mul
 
-from .buffer import gamma_function
+from .activity import gamma_function
 from .errors import ConvergenceError, InputError, UnreachableError
 from .solver import ION_SIZE_H, ION_SIZE_OH
 
