@@ -20,7 +20,7 @@ from collections.abc import Callable
 from . import __version__
 from .checks import number, whole
 from .errors import AcidscapeError, InputError, UnknownIdError
-from .speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions
+from .speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
 
 #: Version of the JSON message protocol between page and worker.
 PROTOCOL_VERSION = 1
@@ -44,24 +44,6 @@ def _number(params: dict, key: str, default=None, *, lo=None, hi=None, field=Non
 
 def _integer(params: dict, key: str, default=None, *, lo=None, hi=None) -> int:
     return whole(params.get(key, default), key, lo=lo, hi=hi)
-
-
-def generic_species_names(n: int, z0: int, base: str = "A") -> list[str]:
-    """Names H_nA .. A for a custom acid, with charges written after the formula.
-
-    >>> generic_species_names(2, 0)
-    ['H2A', 'HA-', 'A-2']
-    >>> generic_species_names(1, 1, "B")
-    ['HB+', 'B']
-    """
-    names = []
-    for i in range(n + 1):
-        h = n - i
-        z = z0 - i
-        hpart = "" if h == 0 else ("H" if h == 1 else f"H{h}")
-        zpart = "" if z == 0 else (("+" if z > 0 else "-") + (str(abs(z)) if abs(z) > 1 else ""))
-        names.append(f"{hpart}{base}{zpart}")
-    return names
 
 
 def _acid_from_params(params: dict) -> tuple[str, list[str], list[int], tuple[float, ...]]:

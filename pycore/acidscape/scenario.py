@@ -27,7 +27,7 @@ from .constants import T0
 from .checks import number
 from .errors import InputError, UnknownIdError
 from .solver import Component, Ion
-from .speciation import MAX_STEPS, _check_pKa
+from .speciation import MAX_STEPS, _check_pKa, generic_species_names
 from .units import to_molar
 
 #: At most this many acid-base systems in one water.
@@ -127,14 +127,25 @@ def _lookup(getter, key, path: str, what: str):
         raise
 
 
+def _custom(entry: dict, path: str, default_name: str) -> tuple[dict, str]:
+    """The ``custom`` object of an entry and its name."""
+    c = entry["custom"]
+    if not isinstance(c, dict):
+        raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
+    return c, _text(c.get("name", default_name), f"{path}.custom.name")
+
+
+def _molar_mass(c: dict, path: str) -> float | None:
+    """A custom entry's optional molar mass [g/mol]."""
+    mm = c.get("molar_mass_g_per_mol")
+    return None if mm is None else _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
+
+
 def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
     path = f"systems[{i}]"
     unit = entry.get("unit", "mol/L")
     if "custom" in entry:
-        c = entry["custom"]
-        if not isinstance(c, dict):
-            raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
-        name = _text(c.get("name", "custom acid"), f"{path}.custom.name")
+        c, name = _custom(entry, path, "custom acid")
         pKa_raw = c.get("pKa")
         if not isinstance(pKa_raw, list):
             raise InputError(f"{path}.custom.pKa must be a list of 1 to {MAX_STEPS} numbers, got {pKa_raw!r}",
@@ -146,12 +157,8 @@ def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
         if isinstance(z0, bool) or not isinstance(z0, int) or not -10 <= z0 <= 10:
             raise InputError(f"{path}.custom.charge_most_protonated must be a whole number -10..10, got {z0!r}",
                              field=f"{path}.custom.charge_most_protonated")
-        mm = c.get("molar_mass_g_per_mol")
-        if mm is not None:
-            mm = _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
+        mm = _molar_mass(c, path)
         src = CustomSystem(id=f"custom-{i}", name=name, mass_basis_g_per_mol=mm)
-        from .api import generic_species_names
-
         names = tuple(generic_species_names(len(pKa), z0))
         total = _total(entry, unit, src, path)
         if abs(T - 298.15) > 0.5:
@@ -177,17 +184,12 @@ def _read_ion(entry: dict, i: int):
     path = f"ions[{i}]"
     unit = entry.get("unit", "mol/L")
     if "custom" in entry:
-        c = entry["custom"]
-        if not isinstance(c, dict):
-            raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
-        name = _text(c.get("name", "custom ion"), f"{path}.custom.name")
+        c, name = _custom(entry, path, "custom ion")
         z = c.get("charge")
         if isinstance(z, bool) or not isinstance(z, int) or z == 0 or not -6 <= z <= 6:
             raise InputError(f"{path}.custom.charge must be a non-zero whole number -6..6, got {z!r}",
                              field=f"{path}.custom.charge")
-        mm = c.get("molar_mass_g_per_mol")
-        if mm is not None:
-            mm = _num(mm, f"{path}.custom.molar_mass_g_per_mol", lo=0.5, hi=5000)
+        mm = _molar_mass(c, path)
         src = CustomIon(id=f"custom-ion-{i}", name=name, charge=z, molar_mass_g_per_mol=mm)
         conc = _total(entry, unit, src, path)
         return Ion(key=src.id, name=name, charge=z, conc_M=conc), src

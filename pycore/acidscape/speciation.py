@@ -25,6 +25,8 @@ log10_alpha_fractions(pH, pKa)      their log10 (finite even when a fraction und
 alpha_curve(pH_values, pKa)         fractions over many pH values (plain lists)
 mean_charge(pH, pKa, z0)            average charge per mole of the system
 mean_protons_released(pH, pKa)      average number of protons released per mole
+proton_moments(pH, cum)             mean and variance of protons released (charge, buffer)
+generic_species_names(n, z0)        names H_nA .. A for an acid without a library entry
 
 ``pH`` here is whatever scale the constants are on: with thermodynamic pKa it
 is -log10 a(H+); with conditional ("mixed") constants from :mod:`acidscape.solver`
@@ -313,3 +315,21 @@ def proton_moments(pH: float, cum: Sequence[float]) -> tuple[float, float]:
         sq += i * i * t
     mean /= tot
     return mean, max(sq / tot - mean * mean, 0.0)
+
+
+def generic_species_names(n: int, z0: int, base: str = "A") -> list[str]:
+    """Names H_nA .. A for a custom acid, with charges written after the formula.
+
+    >>> generic_species_names(2, 0)
+    ['H2A', 'HA-', 'A-2']
+    >>> generic_species_names(1, 1, "B")
+    ['HB+', 'B']
+    """
+    names = []
+    for i in range(n + 1):
+        h = n - i
+        z = z0 - i
+        hpart = "" if h == 0 else ("H" if h == 1 else f"H{h}")
+        zpart = "" if z == 0 else (("+" if z > 0 else "-") + (str(abs(z)) if abs(z) > 1 else ""))
+        names.append(f"{hpart}{base}{zpart}")
+    return names
