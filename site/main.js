@@ -17,10 +17,11 @@ import { BatchView } from "./batch-view.js";
 const status = new StatusView(document);
 const about = new AboutView(document);
 
-fetch("./manifest.json")
+// The build manifest (versions, file hashes, constants fingerprint): fetched once, used twice.
+const manifest = fetch("./manifest.json")
   .then((r) => (r.ok ? r.json() : null))
-  .then((manifest) => about.render(manifest?.versions))
-  .catch(() => about.render(null));
+  .catch(() => null);
+manifest.then((m) => about.render(m?.versions));
 
 const py = sharedPython(); // already started by boot.js
 onBootProgress((step) => status.progress(step));
@@ -71,7 +72,7 @@ try {
     py,
     view: new ShareView(document),
     presets: await loadPresets("./presets.json"),
-    manifest: fetch("./manifest.json").then((r) => (r.ok ? r.json() : null)).catch(() => null),
+    manifest,
     versions,
     win: window,
   });
