@@ -52,22 +52,19 @@ References
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable
 
 from .activity import gamma_function  # noqa: F401  (re-exported: was defined here)
 from .errors import InputError
 from .speciation import _check_pH
+from .speciation import cumulative_pKa
 from .speciation import proton_moments as _moments
 
 _LN10 = math.log(10.0)
 _exp = math.exp
 
 
-def _cum(pKa: Sequence[float]) -> list[float]:
-    out = [0.0]
-    for v in pKa:
-        out.append(out[-1] + float(v))
-    return out
+_cum = cumulative_pKa  # alkalinity.py imports it under this name
 
 
 def _water(pH: float, pKw: float, lgH: float, lgOH: float) -> tuple[float, float]:

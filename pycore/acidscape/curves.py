@@ -26,6 +26,7 @@ import math
 
 from .errors import InputError
 from .solver import Equilibrium
+from .speciation import cumulative_pKa, log10_alpha_from_cumulative
 
 _LN10 = math.log(10.0)
 
@@ -44,13 +45,6 @@ def pH_grid(pH_min: float = 0.0, pH_max: float = 14.0, points: int = 281) -> lis
     grid = [pH_min + k * step for k in range(points)]
     grid[-1] = float(pH_max)
     return [float(v) for v in grid]
-
-
-def _log10_alphas(pH: float, cum: list[float]) -> list[float]:
-    logs = [i * pH - c for i, c in enumerate(cum)]
-    m = max(logs)
-    lse = m + math.log10(sum(math.exp((x - m) * _LN10) for x in logs))
-    return [x - lse for x in logs]
 
 
 def water_curves(eq: Equilibrium, grid: list[float]) -> dict:
@@ -78,16 +72,14 @@ def water_curves(eq: Equilibrium, grid: list[float]) -> dict:
     ]
     for st in eq.systems:
         comp = st.component
-        cum = [0.0]
-        for v in st.pKa_mixed:
-            cum.append(cum[-1] + v)
+        cum = cumulative_pKa(st.pKa_mixed)
         n1 = len(cum)
         fr = [[0.0] * len(grid) for _ in range(n1)]
         lc = [[0.0] * len(grid) for _ in range(n1)]
         fixed = comp.fixed_first_M
         log_total = math.log10(st.total_M) if fixed is None and st.total_M > 0 else None
         for k, p in enumerate(grid):
-            la = _log10_alphas(p, cum)
+            la = log10_alpha_from_cumulative(p, cum)
             for i in range(n1):
                 fr[i][k] = 10.0 ** la[i]
                 if fixed is not None:

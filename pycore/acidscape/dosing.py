@@ -48,6 +48,7 @@ from dataclasses import dataclass
 
 from .errors import InputError, UnknownIdError, UnreachableError
 from .titration import MAX_AMOUNT_M, PH_RANGE, Engine
+from .speciation import alpha_from_cumulative
 
 #: Litres per US gallon, exact by definition (NIST SP 811, from memory).
 L_PER_US_GALLON = 3.785411784
@@ -314,10 +315,7 @@ def _a0_carbonate(engine, pH, I):
     _, _, cums = engine._at(I)
     for s, cum in zip(engine.systems, cums):
         if s.key == "carbonate":
-            logs = [i * pH - c for i, c in enumerate(cum)]
-            m = max(logs)
-            t = [math.exp((x - m) * math.log(10.0)) for x in logs]
-            return t[0] / sum(t)
+            return alpha_from_cumulative(pH, cum)[0]
     return 0.0
 
 

@@ -52,6 +52,7 @@ from .activity import gamma_function
 from .constants import ATOMIC_WEIGHT
 from .errors import ConvergenceError, InputError
 from .solver import ION_SIZE_H, ION_SIZE_OH
+from .speciation import alpha_from_cumulative, cumulative_pKa
 
 _LN10 = math.log(10.0)
 #: Name of the ion that stands for the strong ions a description leaves out.
@@ -61,14 +62,7 @@ DEFINITIONS = ("end-point", "equivalence-point")
 
 
 def _alphas(pH: float, pKa_m) -> list[float]:
-    cum = [0.0]
-    for v in pKa_m:
-        cum.append(cum[-1] + v)
-    logs = [i * pH - c for i, c in enumerate(cum)]
-    m = max(logs)
-    t = [math.exp((x - m) * _LN10) for x in logs]
-    s = sum(t)
-    return [x / s for x in t]
+    return alpha_from_cumulative(pH, cumulative_pKa(pKa_m))
 
 
 def _num(value, field: str, lo=None, hi=None) -> float:

@@ -47,7 +47,7 @@ from dataclasses import dataclass, field
 
 from .activity import gamma_function
 from .errors import ConvergenceError, InputError
-from .speciation import proton_moments
+from .speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
 
 _LN10 = math.log(10.0)
 #: Bracket of the pH search: wide enough for pH -1..15 with every allowed total.
@@ -225,11 +225,7 @@ def _solve_pH(prepared, strong_charge, lgH, lgOH, pKw, guess: float) -> tuple[fl
 
 def _alphas(pH: float, cum: list[float], fixed_first: float | None, total: float) -> tuple[list[float], float]:
     """Fractions at pH and the system total (which follows pH in an open system)."""
-    logs = [i * pH - c for i, c in enumerate(cum)]
-    m = max(logs)
-    terms = [math.exp((x - m) * _LN10) for x in logs]
-    s = sum(terms)
-    alphas = [t / s for t in terms]
+    alphas = alpha_from_cumulative(pH, cum)
     if fixed_first is not None:
         total = fixed_first / alphas[0] if alphas[0] > 0 else math.inf
     return alphas, total
@@ -289,9 +285,7 @@ def equilibrate(
         mixed = []
         for comp in components:
             pKm, lg = _mixed_constants(comp, gamma)
-            cum = [0.0]
-            for v in pKm:
-                cum.append(cum[-1] + v)
+            cum = cumulative_pKa(pKm)
             prepared.append((cum, comp.charges[0], comp.total_M, comp.fixed_first_M))
             mixed.append((pKm, lg))
         if pH is None:

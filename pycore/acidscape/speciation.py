@@ -86,16 +86,33 @@ def _check_pH(pH: float, field: str = "pH") -> float:
     return value
 
 
-def _cumulative(pKa: Sequence[float]) -> list[float]:
-    """Cumulative sums s_i = pKa_1 + ... + pKa_i, with s_0 = 0."""
+def cumulative_pKa(pKa: Sequence[float]) -> list[float]:
+    """Cumulative sums s_i = pKa_1 + ... + pKa_i, with s_0 = 0 (the form every loop here uses).
+
+    >>> cumulative_pKa([2.0, 7.0])
+    [0.0, 2.0, 9.0]
+    """
     out = [0.0]
     for v in pKa:
         out.append(out[-1] + v)
     return out
 
 
-def _log_terms(pH: float, cum: Sequence[float]) -> list[float]:
-    return [i * pH - s for i, s in enumerate(cum)]
+def log10_alpha_from_cumulative(pH: float, cum: Sequence[float]) -> list[float]:
+    """log10 alpha_i from cumulative pKa sums, unchecked (inner loops; see log10_alpha_fractions)."""
+    logs = [i * pH - s for i, s in enumerate(cum)]
+    m = max(logs)
+    log_sum = m + math.log10(sum(math.exp((x - m) * _LN10) for x in logs))
+    return [x - log_sum for x in logs]
+
+
+def alpha_from_cumulative(pH: float, cum: Sequence[float]) -> list[float]:
+    """alpha_i from cumulative pKa sums, unchecked (inner loops; see alpha_fractions)."""
+    logs = [i * pH - s for i, s in enumerate(cum)]
+    m = max(logs)
+    terms = [math.exp((x - m) * _LN10) for x in logs]
+    total = sum(terms)
+    return [t / total for t in terms]
 
 
 def log10_alpha_fractions(pH: float, pKa: Sequence[float]) -> list[float]:
@@ -122,10 +139,7 @@ def log10_alpha_fractions(pH: float, pKa: Sequence[float]) -> list[float]:
     """
     pH = _check_pH(pH)
     pKa = _check_pKa(pKa)
-    logs = _log_terms(pH, _cumulative(pKa))
-    m = max(logs)
-    log_sum = m + math.log10(sum(math.exp((x - m) * _LN10) for x in logs))
-    return [x - log_sum for x in logs]
+    return log10_alpha_from_cumulative(pH, cumulative_pKa(pKa))
 
 
 def alpha_fractions(pH: float, pKa: Sequence[float]) -> list[float]:
@@ -162,15 +176,7 @@ def alpha_fractions(pH: float, pKa: Sequence[float]) -> list[float]:
     """
     pH = _check_pH(pH)
     pKa = _check_pKa(pKa)
-    return _alpha_unchecked(pH, _cumulative(pKa))
-
-
-def _alpha_unchecked(pH: float, cum: Sequence[float]) -> list[float]:
-    logs = [i * pH - s for i, s in enumerate(cum)]
-    m = max(logs)
-    terms = [math.exp((x - m) * _LN10) for x in logs]
-    total = sum(terms)
-    return [t / total for t in terms]
+    return alpha_from_cumulative(pH, cumulative_pKa(pKa))
 
 
 def alpha_curve(pH_values: Iterable[float], pKa: Sequence[float]) -> list[list[float]]:
@@ -196,7 +202,7 @@ def alpha_curve(pH_values: Iterable[float], pKa: Sequence[float]) -> list[list[f
     [0.00175, 0.99433, 1.0]
     """
     pKa = _check_pKa(pKa)
-    cum = _cumulative(pKa)
+    cum = cumulative_pKa(pKa)
     n1 = len(cum)
     out: list[list[float]] = [[] for _ in range(n1)]
     appends = [lst.append for lst in out]

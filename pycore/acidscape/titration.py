@@ -60,8 +60,9 @@ from dataclasses import dataclass
 from operator import mul as _mul
 
 from .activity import gamma_function
-from .errors import ConvergenceError, InputError, UnreachableError
+from .errors import InputError, UnreachableError
 from .solver import ION_SIZE_H, ION_SIZE_OH
+from .speciation import cumulative_pKa
 
 _LN10 = math.log(10.0)
 _exp = math.exp
@@ -347,11 +348,7 @@ class Engine:
         return 0.5 * (a + b)
 
 
-def _cum(pKa) -> list:
-    out = [0.0]
-    for v in pKa:
-        out.append(out[-1] + v)
-    return out
+_cum = cumulative_pKa
 
 
 def _golden_min(f, a, b, tol=1e-7):
