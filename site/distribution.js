@@ -5,10 +5,9 @@
 
 import { CoreError } from "./py.js";
 import { prettyFormula } from "./format.js";
+import { INTEGER, NUMBER, cleanNumberText, parseNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
-const INTEGER = /^[+-]?\d+$/;
 const DEBOUNCE_MS = 120;
 const LOG_SPAN = 12; // decades shown on the log-concentration axis
 
@@ -37,17 +36,6 @@ function inputForField(field) {
   if (!field) return "form";
   const base = String(field).replace(/\[\d+\]$/, "");
   return FIELD_INPUT[base] || "form";
-}
-
-function cleanNumberText(text) {
-  return String(text).trim().replace(/\u2212/g, "-"); // accept a typographic minus
-}
-
-function parseNumber(text, what) {
-  const t = cleanNumberText(text);
-  if (!t) return { error: `Enter ${what}.` };
-  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.` };
-  return { value: Number(t) };
 }
 
 function parsePkaList(text) {

@@ -11,8 +11,8 @@ import { CoreError } from "./py.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed, prettyFormula } from "./format.js";
 import { FLOW_UNITS } from "./treatment-view.js";
+import { NUMBER, cleanNumberText, parseNumber } from "./parse.js";
 
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
 const DEBOUNCE_MS = 120;
 const BUFFER_RANGE = { pH_min: 2, pH_max: 12, points: 241 };
 
@@ -52,25 +52,12 @@ function readable(message, field) {
   return label && message.startsWith(field) ? label + message.slice(field.length) : message;
 }
 
-/**
- * Parse an input's text.
- *
- * @param {string} text  what the user typed
- * @param {{what: string, optional?: boolean}} opts  how to name the value in a message
- * @returns {{value?: number|null, error?: string}}  null for an empty optional field
- */
-function parseNumber(text, { what, optional = false }) {
-  const t = String(text ?? "").trim().replace(/\u2212/g, "-");
-  if (!t) return optional ? { value: null } : { error: `Enter ${what}.` };
-  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.` };
-  return { value: Number(t) };
-}
-
 /** The number a state object holds for a text field: the number, null when blank, else the text. */
 function stateNumber(text) {
   const t = String(text ?? "").trim();
   if (!t) return null;
-  return NUMBER.test(t.replace(/\u2212/g, "-")) ? Number(t.replace(/\u2212/g, "-")) : t;
+  const n = cleanNumberText(t);
+  return NUMBER.test(n) ? Number(n) : t;
 }
 
 /**
@@ -106,13 +93,13 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     const params = { titrant: raw["titrant-select"] };
     const chem = chemById.get(params.titrant);
     const gas = params.titrant === "CO2";
-    const conc = parseNumber(raw["titrant-conc"], { what: "the titrant concentration in mol/L, e.g. 0.02" });
+    const conc = parseNumber(raw["titrant-conc"], "the titrant concentration in mol/L, e.g. 0.02");
     if (conc.error) errors["titrant-conc"] = conc.error;
     else params.titrant_M = conc.value;
-    const vol = parseNumber(raw["sample-volume"], { what: "the sample volume in mL, e.g. 100" });
+    const vol = parseNumber(raw["sample-volume"], "the sample volume in mL, e.g. 100");
     if (vol.error) errors["sample-volume"] = vol.error;
     else params.sample_mL = vol.value;
-    const end = parseNumber(raw["titration-end-ph"], { what: "an end pH, or leave it empty", optional: true });
+    const end = parseNumber(raw["titration-end-ph"], "an end pH, or leave it empty", { optional: true });
     if (end.error) errors["titration-end-ph"] = end.error;
     else if (end.value !== null) params.to_pH = end.value;
     if (gas) delete params.titrant_M; // a gas has no titrant volume; the core ignores it anyway
@@ -123,7 +110,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     const raw = view.read();
     const errors = {};
     const params = { chemical: raw["dose-chemical"] };
-    const target = parseNumber(raw["dose-target-ph"], { what: "the target pH, e.g. 8" });
+    const target = parseNumber(raw["dose-target-ph"], "the target pH, e.g. 8");
     if (target.error) errors["dose-target-ph"] = target.error;
     else params.target_pH = target.value;
     const opt = [
@@ -132,7 +119,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       ["dose-flow", "flow", "the plant flow, or leave it empty"],
     ];
     for (const [id, key, what] of opt) {
-      const v = parseNumber(raw[id], { what, optional: true });
+      const v = parseNumber(raw[id], what, { optional: true });
       if (v.error) errors[id] = v.error;
       else if (v.value !== null) params[key] = v.value;
     }
@@ -145,8 +132,8 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
 
   function collectCapacity() {
     const raw = view.read();
-    const a = parseNumber(raw["capacity-from-ph"], { what: "a pH, or leave both empty", optional: true });
-    const b = parseNumber(raw["capacity-to-ph"], { what: "a pH, or leave both empty", optional: true });
+    const a = parseNumber(raw["capacity-from-ph"], "a pH, or leave both empty", { optional: true });
+    const b = parseNumber(raw["capacity-to-ph"], "a pH, or leave both empty", { optional: true });
     const errors = {};
     if (a.error) errors["capacity-from-ph"] = a.error;
     if (b.error) errors["capacity-to-ph"] = b.error;

@@ -12,9 +12,8 @@ import { CoreError } from "./py.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { unitLabel } from "./water-view.js";
 import { prettyFormula } from "./format.js";
+import { INTEGER, NUMBER, cleanNumberText, parseNumber } from "./parse.js";
 
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
-const INTEGER = /^[+-]?\d+$/;
 const DEBOUNCE_MS = 120;
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
 const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
@@ -61,16 +60,7 @@ const ROW_FIELDS = {
   "custom.molar_mass_g_per_mol": ["mass", "Molar mass"],
 };
 
-function clean(text) {
-  return String(text ?? "").trim().replace(/\u2212/g, "-"); // accept a typographic minus
-}
-
-function parseNumber(text, what, { optional = false } = {}) {
-  const t = clean(text);
-  if (!t) return optional ? { value: null } : { error: `Enter ${what}.` };
-  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.`, raw: t };
-  return { value: Number(t) };
-}
+const clean = cleanNumberText;
 
 function parseInteger(text, what) {
   const t = clean(text);
