@@ -25,7 +25,6 @@ import shutil
 import statistics
 import sys
 import tempfile
-import threading
 import time
 from pathlib import Path
 
@@ -34,8 +33,7 @@ DIST = REPO / "dist"
 sys.path.insert(0, str(REPO / "build_scripts"))
 sys.path.insert(0, str(REPO / "pycore"))
 
-from bench import BARE_HTML, BARE_JS  # noqa: E402
-from serve import make_server  # noqa: E402
+from bench import BARE_HTML, BARE_JS, serve  # noqa: E402
 
 MAPPING = {"id": "Sample", "pH": "pH", "temperature": {"column": "Temp C", "unit": "C"},
            "alkalinity": {"column": "Alkalinity mg/L", "unit": "mg/L as CaCO3"},
@@ -57,13 +55,6 @@ def cpython_rate(text: str, n: int) -> float:
     t0 = time.perf_counter()
     run_rows(text, MAPPING)
     return n / (time.perf_counter() - t0)
-
-
-def serve(folder: Path):
-    server = make_server(folder, 0, quiet=True)
-    threading.Thread(target=server.serve_forever, daemon=True).start()
-    host, port = server.server_address[:2]
-    return server, f"http://{host}:{port}/"
 
 
 def browser(chromium: str, text: str, n: int, runs: int) -> dict:
