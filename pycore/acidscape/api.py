@@ -13,6 +13,7 @@ so that no traceback crosses into JavaScript.
 
 from __future__ import annotations
 
+import functools
 import json
 import math
 from collections.abc import Callable
@@ -357,40 +358,28 @@ def dose(params: dict) -> dict:
                       flow=opt["flow"], flow_unit=params.get("flow_unit"))
 
 
+@functools.cache
 def _methods() -> dict[str, Callable[[dict], dict]]:
-    methods: dict[str, Callable[[dict], dict]] = {
+    """The methods :func:`handle` dispatches to, built once on the first request."""
+    from . import library
+    from .batch import batch_chunk
+    from .buffer_api import buffer_curve_of_water
+    from .dosing import chemicals
+
+    return {
         "version": lambda params: version_info(),
         "distribution": distribution,
         "solve": solve,
         "water": water,
         "titrate": titrate,
         "dose": dose,
+        # many samples from a CSV, streamed in chunks by the page (site/batch.js)
+        "batch_chunk": batch_chunk,
+        # buffer-intensity curve of a water for the page's treatment section
+        "buffer": buffer_curve_of_water,
+        "chemicals": lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]},
+        "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()},
     }
-    try:  # many samples from a CSV, streamed in chunks by the page (site/batch.js)
-        from .batch import batch_chunk
-
-        methods["batch_chunk"] = batch_chunk
-    except ImportError:  # pragma: no cover - during bootstrap only
-        pass
-    try:  # buffer-intensity curve of a water for the page (issue 4)
-        from .buffer_api import buffer_curve_of_water
-
-        methods["buffer"] = buffer_curve_of_water
-    except ImportError:  # pragma: no cover - during bootstrap only
-        pass
-    try:
-        from .dosing import chemicals
-
-        methods["chemicals"] = lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]}
-    except ImportError:  # pragma: no cover - during bootstrap only
-        pass
-    try:  # modules that land later register here
-        from . import library
-
-        methods["systems"] = lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()}
-    except ImportError:  # pragma: no cover - during bootstrap only
-        pass
-    return methods
 
 
 def handle(method: str, params_json: str) -> str:
