@@ -19,6 +19,7 @@ read_scenario(scenario) -> Parsed    validated inputs for :func:`acidscape.solve
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass, field
 
@@ -170,14 +171,19 @@ def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
     total = _total(entry, unit, system, path)
     pKa, notes = temperature.pKa_at_with_notes(system, T)
     warnings.extend(notes)
-    comp = Component(
+    return _library_component(system, pKa, total), system
+
+
+def _library_component(system, pKa, total: float, fixed_first_M: float | None = None) -> Component:
+    """Solver input for a library system with its pKa at the water's temperature."""
+    return Component(
         key=system.id, name=system.name,
         species=tuple(s.formula for s in system.species),
         charges=tuple(s.charge for s in system.species),
         pKa=tuple(pKa), total_M=total,
         ion_sizes=tuple(s.ion_size_A for s in system.species),
+        fixed_first_M=fixed_first_M,
     )
-    return comp, system
 
 
 def _read_ion(entry: dict, i: int):
@@ -256,20 +262,14 @@ def read_scenario(scenario: dict) -> Parsed:
             idx = next((k for k, c in enumerate(components) if c.key == "carbonate"), None)
             if idx is None:
                 system = library.get_system("carbonate")
-                pKa = temperature.pKa_at(system, T)
-                components.append(Component(
-                    key="carbonate", name=system.name,
-                    species=tuple(s.formula for s in system.species),
-                    charges=tuple(s.charge for s in system.species), pKa=tuple(pKa), total_M=0.0,
-                    ion_sizes=tuple(s.ion_size_A for s in system.species), fixed_first_M=H2CO3))
+                components.append(_library_component(system, temperature.pKa_at(system, T), 0.0, H2CO3))
                 sources.append(system)
             else:
                 c = components[idx]
                 if c.total_M > 0:
                     warnings.append("carbonate total is set by the CO2 partial pressure (open system); "
                                     "the total given was not used")
-                components[idx] = Component(key=c.key, name=c.name, species=c.species, charges=c.charges,
-                                            pKa=c.pKa, total_M=0.0, ion_sizes=c.ion_sizes, fixed_first_M=H2CO3)
+                components[idx] = dataclasses.replace(c, total_M=0.0, fixed_first_M=H2CO3)
     pKw = water.pKw(T)
     return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
                   components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
