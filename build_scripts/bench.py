@@ -3,7 +3,7 @@
 Usage:  .venv/bin/python build_scripts/bench.py [--repeats N] [--chromium PATH]
 
 - ``cpython_alpha_curve_1000pt_8protic_ms``: median over repeats of
-  ``acidscape.speciation.alpha_curve`` for 1,000 pH values and an 8-step acid (pKa 1..15).
+  ``acidscape.science.speciation.alpha_curve`` for 1,000 pH values and an 8-step acid (pKa 1..15).
 - In headless Chromium (fresh browser context each run, service workers blocked so every file
   comes over loopback, as on a first visit), alternating the two pages in the same run:
   ``page_first_result_ms``: navigation to the first drawn result (body[data-ready]);
@@ -49,7 +49,7 @@ document.body.dataset.ready = "true";
 
 
 def cpython_alpha_curve(repeats: int) -> float:
-    from acidscape.speciation import alpha_curve
+    from acidscape.science.speciation import alpha_curve
 
     pKa = [1.0 + 2.0 * i for i in range(8)]  # 1, 3, ..., 15: an 8-step acid
     grid = [14.0 * k / 999 for k in range(1000)]

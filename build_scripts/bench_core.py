@@ -5,9 +5,9 @@ Cases (targets from issue 4 and the solver issue):
   Davies activities, equivalence and half-equivalence points included (target < 20 ms);
 * ``dose_inverse``: the dose of NaOH to a target pH for the same water, the explicit inverse
   alone (closing the water and solving for the dose; target < 2 ms);
-* ``dose_full``: the same through :func:`acidscape.dosing.dose_to_pH`, which also solves the
+* ``dose_full``: the same through :func:`acidscape.operations.dosing.dose_to_pH`, which also solves the
   water before and after and reports both (no target; for information);
-* ``solve_10_systems_davies``: :func:`acidscape.api.solve` of a 10-system water with Davies
+* ``solve_10_systems_davies``: :func:`acidscape.boundary.api.solve` of a 10-system water with Davies
   activities, including the alkalinity report and buffer intensity (target < 1 ms);
 * ``equilibrate_10_systems_davies``: the charge-balance solve alone, for comparison.
 
@@ -27,12 +27,12 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "pycore"))
 
-from acidscape.api import solve  # noqa: E402
-from acidscape.dosing import dose_amount, dose_to_pH, get_chemical  # noqa: E402
-from acidscape.measured import close_scenario  # noqa: E402
-from acidscape.scenario import read_scenario  # noqa: E402
-from acidscape.solver import equilibrate  # noqa: E402
-from acidscape.titration import titration_curve  # noqa: E402
+from acidscape.boundary.api import solve  # noqa: E402
+from acidscape.operations.dosing import dose_amount, dose_to_pH, get_chemical  # noqa: E402
+from acidscape.operations.closure import close_scenario  # noqa: E402
+from acidscape.boundary.scenario import read_scenario  # noqa: E402
+from acidscape.science.solver import equilibrate  # noqa: E402
+from acidscape.operations.titration import titration_curve  # noqa: E402
 
 MM = "mmol/L"
 WATER_6 = {

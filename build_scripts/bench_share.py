@@ -2,7 +2,7 @@
 
 Usage:  .venv/bin/python build_scripts/bench_share.py [--rows N] [--runs N] [--chromium PATH]
 
-- ``cpython_batch_rows_per_s``: acidscape.batch.run_rows on N generated samples (pH, temperature,
+- ``cpython_batch_rows_per_s``: acidscape.boundary.batch.run_rows on N generated samples (pH, temperature,
   alkalinity, phosphate) on the host CPython.
 - ``browser_batch_rows_per_s``: the same CSV through the page's batch section (chunks of 250
   streamed to the Pyodide worker), from the click to the last chunk, as the page reports it.
@@ -50,7 +50,7 @@ def samples(n: int) -> str:
 
 
 def cpython_rate(text: str, n: int) -> float:
-    from acidscape.batch import run_rows
+    from acidscape.boundary.batch import run_rows
 
     t0 = time.perf_counter()
     run_rows(text, MAPPING)

@@ -1,6 +1,6 @@
 // Run the core inside Pyodide (CPython 3.14, the browser's interpreter) under Node.js:
 // install the built wheel, run every module's doctests, and evaluate the scenarios given on
-// stdin with acidscape.api.handle. Prints one JSON object on stdout.
+// stdin with acidscape.boundary.api.handle. Prints one JSON object on stdout.
 //
 //   node build_scripts/pyodide_check.mjs dist/wheels/acidscape-*.whl < requests.json
 //
@@ -26,20 +26,20 @@ py.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir:
 
 const checker = py.runPython(`
 import doctest, importlib, json, pkgutil, sys
-import acidscape, acidscape.api
+import acidscape, acidscape.boundary.api
 
 def check(requests_json):
     failures, attempted, modules = 0, 0, []
-    for info in pkgutil.iter_modules(acidscape.__path__):
-        name = "acidscape." + info.name
-        if info.name == "__main__":
+    for info in pkgutil.walk_packages(acidscape.__path__, "acidscape."):
+        name = info.name
+        if name == "acidscape.__main__":
             continue
         mod = importlib.import_module(name)
         res = doctest.testmod(mod, verbose=False, report=False)
         failures += res.failed
         attempted += res.attempted
         modules.append(name)
-    answers = [json.loads(acidscape.api.handle(r["method"], json.dumps(r["params"])))
+    answers = [json.loads(acidscape.boundary.api.handle(r["method"], json.dumps(r["params"])))
                for r in json.loads(requests_json)]
     return json.dumps({"python": sys.version.split()[0], "modules": modules,
                        "doctests_attempted": attempted, "doctests_failed": failures,

@@ -1,8 +1,8 @@
 // Section "Many samples at once": reads a CSV (pasted or from a file), asks the core for its
-// columns, and streams the samples to the worker in chunks (acidscape.batch.batch_chunk), so a
+// columns, and streams the samples to the worker in chunks (acidscape.boundary.batch.batch_chunk), so a
 // file of 10,000 lines never blocks the page: between chunks the progress bar moves and the
 // first rows of the table appear. The downloaded CSV is the header plus the core's own CSV
-// lines of every chunk, so it is byte for byte what acidscape.batch.batch_csv gives.
+// lines of every chunk, so it is byte for byte what acidscape.boundary.batch.batch_csv gives.
 
 import { downloadBlob, stamp } from "./export.js";
 

@@ -15,7 +15,7 @@ export const TITRATION_INPUTS = ["titrant-select", "titrant-conc", "sample-volum
 export const BUFFER_INPUTS = ["capacity-from-ph", "capacity-to-ph"];
 export const DOSE_INPUTS = ["dose-chemical", "dose-target-ph", "dose-strength", "dose-density", "dose-flow", "dose-flow-unit"];
 
-/** Plant flow units the core accepts (acidscape.dosing.FLOW_UNITS), with the words shown. */
+/** Plant flow units the core accepts (acidscape.operations.dosing.FLOW_UNITS), with the words shown. */
 export const FLOW_UNITS = [
   ["m3/d", "m³/d"],
   ["m3/h", "m³/h"],

@@ -1,5 +1,5 @@
 // Module worker: boots Pyodide from ./vendor/pyodide/, installs the acidscape wheel named in
-// manifest.json and answers requests with acidscape.api.handle (JSON strings in and out, so no
+// manifest.json and answers requests with acidscape.boundary.api.handle (JSON strings in and out, so no
 // Python proxies cross over). Protocol: see py.js.
 
 import { loadPyodide } from "./vendor/pyodide/pyodide.mjs";
@@ -37,7 +37,7 @@ async function boot() {
   pyodide.unpackArchive(await wheel, "wheel", { extractDir: sitePackages });
 
   progress("import", 0.95, "Importing the Acidscape core…");
-  const api = pyodide.pyimport("acidscape.api");
+  const api = pyodide.pyimport("acidscape.boundary.api");
   const handle = api.handle; // kept for the worker's lifetime, like the module proxy
   const version = JSON.parse(handle("version", "{}"));
   return {

@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.optimize import brentq
 
-from acidscape.activity import DEFAULT_ION_SIZE_A, debye_huckel_A, debye_huckel_B
+from acidscape.science.activity import DEFAULT_ION_SIZE_A, debye_huckel_A, debye_huckel_B
 
 
 def log10_gamma_ref(z, I, T, model, size):

@@ -1,4 +1,4 @@
-"""Checks of acidscape.activity against CODATA (scipy.constants), the IAPWS permittivity
+"""Checks of acidscape.science.activity against CODATA (scipy.constants), the IAPWS permittivity
 (iapws), handbook tables and worked textbook examples."""
 
 from __future__ import annotations
@@ -12,8 +12,8 @@ from hypothesis import strategies as st
 
 import scipy.constants as sc
 
-from acidscape import activity
-from acidscape.activity import (
+from acidscape.science import activity
+from acidscape.science.activity import (
     DH_A_PREFACTOR,
     DH_B_PREFACTOR,
     MODELS,

@@ -7,14 +7,14 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.optimize import brentq
 
-from acidscape import library
-from acidscape.alkalinity import (
+from acidscape.data import library
+from acidscape.operations.alkalinity import (
     MG_CACO3_PER_MEQ,
     meq_to_mg_as_CaCO3,
     mg_as_CaCO3_to_meq,
     sm2320_split,
 )
-from acidscape.api import solve
+from acidscape.boundary.api import solve
 from acidscape.errors import InputError
 
 MM = "mmol/L"

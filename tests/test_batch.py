@@ -1,6 +1,6 @@
-"""Batch of CSV samples: each row agrees with acidscape.api.solve / dose run on its own scenario.
+"""Batch of CSV samples: each row agrees with acidscape.boundary.api.solve / dose run on its own scenario.
 
-The oracle is the core's single-water entry point (``acidscape.api.solve``), which the other
+The oracle is the core's single-water entry point (``acidscape.boundary.api.solve``), which the other
 test files check against published tables; here we check the CSV reading, the column mapping,
 unit handling, row numbering and error reporting around it. Sample values are generated, not
 taken from any real plant.
@@ -14,8 +14,8 @@ import random
 
 import pytest
 
-from acidscape import api
-from acidscape.batch import batch_chunk, batch_csv, read_header, run_rows
+from acidscape.boundary import api
+from acidscape.boundary.batch import batch_chunk, batch_csv, read_header, run_rows
 from acidscape.errors import InputError
 
 MAPPING = {

@@ -9,9 +9,9 @@ from hypothesis import strategies as st
 from scipy.integrate import quad
 from scipy.optimize import minimize_scalar
 
-from acidscape import activity
-from acidscape.api import solve
-from acidscape.buffer import buffer_capacity_between, buffer_intensity_at, gamma_function
+from acidscape.science import activity
+from acidscape.boundary.api import solve
+from acidscape.operations.buffer import buffer_capacity_between, buffer_intensity_at, gamma_function
 
 LN10 = math.log(10.0)
 

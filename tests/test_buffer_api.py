@@ -23,8 +23,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from acidscape import api
-from acidscape.buffer_api import buffer_curve_of_water
+from acidscape.boundary import api
+from acidscape.boundary.buffer_api import buffer_curve_of_water
 from reference import alphas_ref
 
 

@@ -4,8 +4,8 @@ import math
 
 import pytest
 
-from acidscape.api import solve, water
-from acidscape.curves import pH_grid, water_curves
+from acidscape.boundary.api import solve, water
+from acidscape.operations.curves import pH_grid, water_curves
 
 SCENARIO = {
     "temperature_C": 12,

@@ -9,9 +9,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from acidscape.constants import ATOMIC_WEIGHT as W
-from acidscape.dosing import FLOW_UNITS, chemicals, dose_amount, dose_to_pH, flow_L_per_d, get_chemical
+from acidscape.operations.dosing import FLOW_UNITS, chemicals, dose_amount, dose_to_pH, flow_L_per_d, get_chemical
 from acidscape.errors import InputError, UnknownIdError, UnreachableError
-from acidscape.measured import close_scenario
+from acidscape.operations.closure import close_scenario
 
 from test_titration import indep_pH
 

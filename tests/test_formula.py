@@ -1,4 +1,4 @@
-"""Tests of acidscape.formula: molar masses against printed handbook values.
+"""Tests of acidscape.data.formula: molar masses against printed handbook values.
 
 Reference molar masses are the values printed in the CRC Handbook of Chemistry
 and Physics (97th ed., 2016, "Physical constants of inorganic compounds"; from
@@ -14,7 +14,7 @@ from hypothesis import given, strategies as st
 
 from acidscape.constants import ATOMIC_WEIGHT
 from acidscape.errors import InputError
-from acidscape.formula import charge_of, composition, molar_mass, split_formula
+from acidscape.data.formula import charge_of, composition, molar_mass, split_formula
 
 # (formula, printed molar mass [g/mol], tolerance [g/mol], source)
 PRINTED = [

@@ -1,4 +1,4 @@
-"""Tests of acidscape.library: the data files' consistency, spot checks against
+"""Tests of acidscape.data.library: the data files' consistency, spot checks against
 printed values, the published temperature fits, and the parsers' error reports.
 
 Every printed value below is recalled from memory (no library access); the
@@ -14,10 +14,10 @@ from importlib.resources import files
 
 import pytest
 
-from acidscape import library as L
+from acidscape.data import library as L
 from acidscape.constants import R
 from acidscape.errors import UnknownIdError
-from acidscape.formula import charge_of, molar_mass
+from acidscape.data.formula import charge_of, molar_mass
 
 SYSTEMS = L.systems()
 IONS = L.ions()

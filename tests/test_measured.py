@@ -4,10 +4,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from acidscape.alkalinity import MG_CACO3_PER_MEQ
-from acidscape.api import solve
+from acidscape.operations.alkalinity import MG_CACO3_PER_MEQ
+from acidscape.boundary.api import solve
 from acidscape.errors import InputError
-from acidscape.measured import close_scenario, resolve_measured
+from acidscape.operations.closure import close_scenario, resolve_measured
 
 
 def test_textbook_DIC_from_pH_and_alkalinity():

@@ -18,7 +18,7 @@ from pathlib import Path
 
 import pytest
 
-from acidscape import api
+from acidscape.boundary import api
 
 SITE = Path(__file__).resolve().parents[1] / "site"
 PRESETS = json.loads((SITE / "presets.json").read_text(encoding="utf-8"))["presets"]

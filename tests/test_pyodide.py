@@ -13,7 +13,7 @@ from pathlib import Path
 
 import pytest
 
-from acidscape import api
+from acidscape.boundary import api
 
 ROOT = Path(__file__).resolve().parents[1]
 SCRIPT = ROOT / "build_scripts" / "pyodide_check.mjs"

@@ -7,8 +7,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from acidscape import library, temperature, water
-from acidscape.api import solve
+from acidscape.data import library
+from acidscape.science import temperature
+from acidscape.science import purewater as water
+from acidscape.boundary.api import solve
 from acidscape.errors import InputError, UnknownIdError
 
 from reference import solve_ref

@@ -8,7 +8,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from acidscape.errors import InputError
-from acidscape.speciation import (
+from acidscape.science.speciation import (
     alpha_curve,
     alpha_fractions,
     log10_alpha_fractions,

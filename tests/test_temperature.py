@@ -1,4 +1,4 @@
-"""Checks of acidscape.temperature against published tables (measurements by Harned and
+"""Checks of acidscape.science.temperature against published tables (measurements by Harned and
 co-workers, Emerson et al. 1975, Morris 1966), against an independent integration with
 scipy, and against thermodynamic consistency (Gibbs-Helmholtz with numpy.gradient).
 
@@ -19,7 +19,7 @@ from hypothesis import strategies as st
 from scipy.integrate import quad
 
 from acidscape.errors import InputError, UnknownIdError
-from acidscape.temperature import (
+from acidscape.science.temperature import (
     FIT_RANGE_K,
     TEMPERATURE_MODELS,
     ammonium_BP49,

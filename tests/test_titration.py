@@ -10,10 +10,13 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.optimize import brentq
 
-from acidscape import activity, library, temperature, water
-from acidscape.api import solve
+from acidscape.science import activity
+from acidscape.data import library
+from acidscape.science import temperature
+from acidscape.science import purewater as water
+from acidscape.boundary.api import solve
 from acidscape.errors import InputError, UnreachableError
-from acidscape.titration import titration_curve
+from acidscape.operations.titration import titration_curve
 
 KA_HARRIS = 1.8e-5  # acetic acid Ka used in the textbook worked example (Harris, from memory)
 
@@ -212,7 +215,7 @@ def test_co2_curve_stops_at_saturation_under_one_atmosphere():
     import math
 
     from acidscape.errors import UnreachableError
-    from acidscape.titration import titration_curve
+    from acidscape.operations.titration import titration_curve
 
     sc = {"activity": "ideal", "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
           "ions": [{"id": "Na+", "total": 2, "unit": "mmol/L"}]}

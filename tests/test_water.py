@@ -1,4 +1,4 @@
-"""Checks of acidscape.water against IAPWS releases (through the ``iapws`` package) and
+"""Checks of acidscape.science.purewater against IAPWS releases (through the ``iapws`` package) and
 published check values.
 
 Reference library: iapws 1.5.5 (J. J. Peñas). Its ``iapws._iapws._Kw(rho, T)`` is
@@ -23,7 +23,7 @@ from iapws import IAPWS95  # noqa: E402
 from iapws._iapws import _Kw  # noqa: E402
 
 from acidscape.errors import InputError  # noqa: E402
-from acidscape.water import check_temperature_K, density_water, pKw, pKw_from_density  # noqa: E402
+from acidscape.science.purewater import check_temperature_K, density_water, pKw, pKw_from_density  # noqa: E402
 
 P_ATM_MPA = 0.101325
 

@@ -1,11 +1,16 @@
 """Acidscape: acid-base speciation and equilibrium of natural and treated waters.
 
-A standard-library-only core: alpha fractions of polyprotic acids, the charge
-balance of a water with many acid-base systems and strong ions, temperature and
-activity corrections, alkalinity, buffer intensity, titration and dosing.
+A standard-library-only core in four layers, each importing only the ones before it:
+
+- :mod:`acidscape.data`: the cited constants and their loader;
+- :mod:`acidscape.science`: pure water, activity, temperature, speciation, the equilibrium model;
+- :mod:`acidscape.operations`: alkalinity, buffer, titration, dosing and the other jobs on a water;
+- :mod:`acidscape.boundary`: scenario reading, result shaping, the JSON api, CLI and batch.
+
+``errors``, ``checks``, ``constants`` and ``_version`` sit below all four.
 """
 
-__version__ = "0.1.0"
+from ._version import __version__
 
 from .errors import (  # noqa: E402
     AcidscapeError,
@@ -14,7 +19,8 @@ from .errors import (  # noqa: E402
     UnknownIdError,
     UnreachableError,
 )
-from .speciation import alpha_curve, alpha_fractions, log10_alpha_fractions  # noqa: E402
+from .science.speciation import alpha_curve, alpha_fractions, log10_alpha_fractions  # noqa: E402
+from .boundary.api import solve  # noqa: E402
 
 __all__ = [
     "AcidscapeError",
@@ -26,4 +32,5 @@ __all__ = [
     "alpha_curve",
     "alpha_fractions",
     "log10_alpha_fractions",
+    "solve",
 ]

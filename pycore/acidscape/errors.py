@@ -2,7 +2,7 @@
 
 Every exception carries ``field``: the scenario path of the input it concerns
 (``"systems[2].total"``, ``"temperature_C"``), or ``None`` when no single input
-is to blame. The boundary (:mod:`acidscape.api`) turns them into
+is to blame. The boundary (:mod:`acidscape.boundary.api`) turns them into
 ``{"error": {"type", "message", "field"}}``.
 
 Classes

@@ -1,6 +1,6 @@
 """End-to-end: the built page in headless Chromium, checked against the core under CPython.
 
-The oracle for every number on the page is ``acidscape.api`` run in this test process: the
+The oracle for every number on the page is ``acidscape.boundary.api`` run in this test process: the
 page runs the same wheel in Pyodide, so its table must agree to floating-point round-off.
 Each test boots Pyodide once (about 3 s).
 """
@@ -13,7 +13,7 @@ import math
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape import api
+from acidscape.boundary import api
 
 pytestmark = pytest.mark.e2e
 

@@ -1,7 +1,7 @@
 """End-to-end: 10,000 generated samples through the page's batch section.
 
 The page streams the CSV to the worker in chunks; its downloaded CSV must agree with
-``acidscape.batch.batch_csv`` run on the same text in this process (the core is the oracle:
+``acidscape.boundary.batch.batch_csv`` run on the same text in this process (the core is the oracle:
 same columns, rows, IDs and messages, numbers to round-off),
 bad rows must be listed by their spreadsheet row, and the page must keep answering while the
 batch runs. Sample values are generated at random, not taken from any real plant.
@@ -18,7 +18,7 @@ from pathlib import Path
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape.batch import batch_csv
+from acidscape.boundary.batch import batch_csv
 
 pytestmark = pytest.mark.e2e
 

@@ -1,7 +1,7 @@
 """End-to-end: the "Equilibrium of a whole water" section against the core run in this process.
 
 The page runs the same wheel in Pyodide, so every number it shows must agree with
-``acidscape.api.solve`` of the scenario typed into the editor (to 1e-9 relative on the raw
+``acidscape.boundary.api.solve`` of the scenario typed into the editor (to 1e-9 relative on the raw
 ``data-value`` attributes). The compositions below are invented for the test; the checks are
 agreement with the core (the oracle), electroneutrality of the charge-balance trail, and the
 page's behaviour with bad input.
@@ -15,7 +15,7 @@ import math
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape import api
+from acidscape.boundary import api
 
 pytestmark = pytest.mark.e2e
 

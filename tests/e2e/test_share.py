@@ -1,6 +1,6 @@
 """End-to-end: worked examples, links, files, recent list and the printed report.
 
-The oracle for every number is ``acidscape.api`` run in this process (the page runs the same
+The oracle for every number is ``acidscape.boundary.api`` run in this process (the page runs the same
 wheel in Pyodide). The examples are invented waters: they are only checked for agreeing with
 the core, never against a chemistry value of their own.
 """
@@ -15,7 +15,7 @@ from pathlib import Path
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape import api
+from acidscape.boundary import api
 
 pytestmark = pytest.mark.e2e
 

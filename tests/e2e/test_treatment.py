@@ -1,6 +1,6 @@
 """End-to-end: the treatment section (titration, buffer intensity, dose) in headless Chromium.
 
-The oracle is ``acidscape.api`` run in this test process on the page's own water (read from
+The oracle is ``acidscape.boundary.api`` run in this test process on the page's own water (read from
 the page's input-state registry, the same scenario the water section solves): the page runs
 the same package in Pyodide, so numbers agree to round-off (1e-9 relative).
 """
@@ -13,7 +13,7 @@ import math
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape import api
+from acidscape.boundary import api
 
 pytestmark = pytest.mark.e2e
 

@@ -18,10 +18,10 @@ import json
 import math
 from collections.abc import Callable
 
-from . import __version__
-from .checks import number, whole
-from .errors import AcidscapeError, InputError, UnknownIdError
-from .speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
+from .._version import __version__
+from ..checks import number, whole
+from ..errors import AcidscapeError, InputError, UnknownIdError
+from ..science.speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
 
 #: Version of the JSON message protocol between page and worker.
 PROTOCOL_VERSION = 1
@@ -50,7 +50,7 @@ def _integer(params: dict, key: str, default=None, *, lo=None, hi=None) -> int:
 def _acid_from_params(params: dict) -> tuple[str, list[str], list[int], tuple[float, ...]]:
     """Resolve ``{"system": id}`` or ``{"pKa": [...], "charge_most_protonated": z}``."""
     if params.get("system"):
-        from .library import get_system
+        from ..data.library import get_system
 
         system_id = params["system"]
         if not isinstance(system_id, str):
@@ -180,7 +180,7 @@ def _species_rows(eq, sources) -> list[dict]:
 def solve(scenario: dict, _state: dict | None = None) -> dict:
     """Equilibrium (or fixed-pH speciation) of a water described by a scenario.
 
-    See :mod:`acidscape.scenario` for the keys. The result holds ``pH``,
+    See :mod:`acidscape.boundary.scenario` for the keys. The result holds ``pH``,
     ``temperature_C``, ``ionic_strength_M``, ``pKw``, ``species`` (each system's
     species from most to least protonated with ``name``, ``system``, ``charge``,
     ``concentration_M``, ``activity_M``, ``activity_coefficient``, ``fraction``),
@@ -196,12 +196,12 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     >>> round(out["pH"], 2)
     3.91
     """
-    from .scenario import read_scenario
-    from .solver import charge_balance_terms, equilibrate
+    from ..boundary.scenario import read_scenario
+    from ..science.solver import charge_balance_terms, equilibrate
 
     inferred = None
     if isinstance(scenario, dict) and scenario.get("measured") is not None:
-        from .measured import resolve_measured  # pH + alkalinity -> carbonate total (issue 4)
+        from ..operations.closure import resolve_measured  # pH + alkalinity -> carbonate total (issue 4)
 
         scenario, inferred = resolve_measured(scenario)
     parsed = read_scenario(scenario)
@@ -212,7 +212,7 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     if _state is not None:  # callers inside the package may want the solved state too
         _state["parsed"], _state["eq"] = parsed, eq
     warnings = list(parsed.warnings)
-    from .activity import VALIDITY_I_M
+    from ..science.activity import VALIDITY_I_M
 
     limit = VALIDITY_I_M.get(parsed.model)
     if limit is not None and eq.I > limit:
@@ -260,8 +260,8 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     }
     if parsed.CO2_partial_pressure_atm is not None:
         result["CO2_partial_pressure_atm"] = parsed.CO2_partial_pressure_atm
-    from .alkalinity import alkalinity_report
-    from .buffer import buffer_intensity
+    from ..operations.alkalinity import alkalinity_report
+    from ..operations.buffer import buffer_intensity
 
     result["alkalinity"] = alkalinity_report(eq)
     result["buffer_intensity_eq_per_L_per_pH"] = buffer_intensity(eq)
@@ -275,7 +275,7 @@ def water(params: dict) -> dict:
     """A water's equilibrium plus its curves against pH (for the page's plots).
 
     ``params`` is a scenario plus optional ``curve`` ``{"pH_min", "pH_max", "points"}``.
-    Returns ``{"result": <solve result>, "curves": <acidscape.curves.water_curves>}``.
+    Returns ``{"result": <solve result>, "curves": <acidscape.operations.curves.water_curves>}``.
 
     Examples
     --------
@@ -283,7 +283,7 @@ def water(params: dict) -> dict:
     >>> out["curves"]["pH"]
     [0.0, 3.5, 7.0, 10.5, 14.0]
     """
-    from .curves import pH_grid, water_curves
+    from ..operations.curves import pH_grid, water_curves
 
     if not isinstance(params, dict):
         raise InputError("parameters must be a JSON object", field=None)
@@ -309,7 +309,7 @@ def _scenario_param(params: dict) -> dict:
 
 
 def titrate(params: dict) -> dict:
-    """Titration curve of a water (see :func:`acidscape.titration.titration_curve`).
+    """Titration curve of a water (see :func:`acidscape.operations.titration.titration_curve`).
 
     ``params``: ``scenario`` (object), ``titrant`` (id), optional ``titrant_M`` [mol/L]
     (default 0.1), ``sample_mL`` [mL] (default 100), ``to_pH`` [-], ``points`` (default 400).
@@ -321,7 +321,7 @@ def titrate(params: dict) -> dict:
     >>> round(out["equivalence_points"][0]["titrant_mL"], 2)
     10.0
     """
-    from .titration import DEFAULT_POINTS, titration_curve
+    from ..operations.titration import DEFAULT_POINTS, titration_curve
 
     if not isinstance(params, dict):
         raise InputError("parameters must be a JSON object", field=None)
@@ -339,12 +339,12 @@ def titrate(params: dict) -> dict:
 
 
 def dose(params: dict) -> dict:
-    """Dose to a target pH (see :func:`acidscape.dosing.dose_to_pH`).
+    """Dose to a target pH (see :func:`acidscape.operations.dosing.dose_to_pH`).
 
     ``params``: ``scenario``, ``chemical`` (id), ``target_pH``, optional ``strength_pct`` [% w/w],
     ``density_kg_per_L`` [kg/L], ``flow`` and ``flow_unit`` (m3/d, m3/h, L/s, L/min, MGD, gpm).
     """
-    from .dosing import dose_to_pH
+    from ..operations.dosing import dose_to_pH
 
     if not isinstance(params, dict):
         raise InputError("parameters must be a JSON object", field=None)
@@ -361,10 +361,10 @@ def dose(params: dict) -> dict:
 @functools.cache
 def _methods() -> dict[str, Callable[[dict], dict]]:
     """The methods :func:`handle` dispatches to, built once on the first request."""
-    from . import library
-    from .batch import batch_chunk
-    from .buffer_api import buffer_curve_of_water
-    from .dosing import chemicals
+    from ..data import library
+    from ..boundary.batch import batch_chunk
+    from ..boundary.buffer_api import buffer_curve_of_water
+    from ..operations.dosing import chemicals
 
     return {
         "version": lambda params: version_info(),

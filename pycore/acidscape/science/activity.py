@@ -47,9 +47,9 @@ from __future__ import annotations
 
 import math
 
-from .constants import LN10, N_A, e, epsilon_0, k_B
-from .errors import InputError, UnknownIdError
-from .water import check_temperature_K, density_water
+from ..constants import LN10, N_A, e, epsilon_0, k_B
+from ..errors import InputError, UnknownIdError
+from ..science.purewater import check_temperature_K, density_water
 
 __all__ = [
     "MODELS", "VALIDITY_I_M", "DEFAULT_ION_SIZE_A", "DH_A_PREFACTOR", "DH_B_PREFACTOR",
@@ -232,7 +232,7 @@ def debye_huckel_A_molal(T) -> float:
 
     Notes
     -----
-    Density from :func:`acidscape.water.density_water`.
+    Density from :func:`acidscape.science.purewater.density_water`.
 
     Examples
     --------

@@ -19,7 +19,7 @@ so at any chosen pH the volume follows without a root search,
 
 (de Levie [1]_ [2]_, from memory). ``S`` are strong-ion charges [eq/L], ``C_s``
 the sample's system totals, ``n`` the moles of each system and strong ion one
-mole of chemical brings (:mod:`acidscape.dosing`), and ``zbar`` each system's
+mole of chemical brings (:mod:`acidscape.operations.dosing`), and ``zbar`` each system's
 mean charge at that pH. A dose without dilution (a gas such as CO2, or plant
 dosing per litre of water) is the same relation without the titrant's water
 term: d = -N / (S_t + sum n zbar).
@@ -59,10 +59,10 @@ import math
 from dataclasses import dataclass
 from operator import mul as _mul
 
-from .activity import gamma_function
-from .errors import InputError, UnreachableError
-from .solver import ION_SIZE_H, ION_SIZE_OH
-from .speciation import cumulative_pKa
+from ..science.activity import gamma_function
+from ..errors import InputError, UnreachableError
+from ..science.solver import ION_SIZE_H, ION_SIZE_OH
+from ..science.speciation import cumulative_pKa
 
 _LN10 = math.log(10.0)
 _exp = math.exp
@@ -102,9 +102,9 @@ class Engine:
 
     Parameters
     ----------
-    components : list of acidscape.solver.Component
+    components : list of acidscape.science.solver.Component
         The sample's systems (closed; ``fixed_first_M`` must be None)
-    ions : list of acidscape.solver.Ion
+    ions : list of acidscape.science.solver.Ion
         The sample's strong ions
     T : float
         Temperature [K]
@@ -114,7 +114,7 @@ class Engine:
         Activity model [-]
     I_fixed : float or None
         Ionic strength held fixed [mol/L] (None: computed per point)
-    chemical : acidscape.dosing.Chemical
+    chemical : acidscape.operations.dosing.Chemical
         What is added
     added_components : dict
         Component for each system the chemical adds that the sample lacks, by key
@@ -289,7 +289,7 @@ class Engine:
         reached can pass through a maximum as the dose grows, so two doses may give the same
         pH: the smaller is returned.
         """
-        from .activity import VALIDITY_I_M
+        from ..science.activity import VALIDITY_I_M
 
         I_top = VALIDITY_I_M.get(self.model, 0.5)
 
@@ -374,8 +374,8 @@ def _co2_saturation_pH(engine, parsed, pH0, I0, to_pH):
     explicit formula, so the condition (C_T0 + d(pH)) alpha0(pH) = K_H x 1 atm is solved by
     bisection in pH (it rises monotonically as CO2 is added and the pH falls).
     """
-    from .dosing import _a0_carbonate
-    from .temperature import log10_KH_CO2
+    from ..operations.dosing import _a0_carbonate
+    from ..science.temperature import log10_KH_CO2
 
     sat = 10.0 ** log10_KH_CO2(parsed.T)
     C0 = sum(c.total_M for c in parsed.components if c.key == "carbonate")
@@ -405,8 +405,8 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
     Parameters
     ----------
     scenario : dict
-        The water (see :mod:`acidscape.scenario`; ``measured``, ``pH`` and ``gas`` are turned
-        into the equivalent closed water by :func:`acidscape.measured.close_scenario`)
+        The water (see :mod:`acidscape.boundary.scenario`; ``measured``, ``pH`` and ``gas`` are turned
+        into the equivalent closed water by :func:`acidscape.operations.closure.close_scenario`)
     titrant : str
         Chemical id (``NaOH``, ``HCl``, ``H2SO4``, ``Ca(OH)2``, ``Na2CO3``, ``NaHCO3``, ``CO2``)
         or a library system id (its neutral species is added) [-]
@@ -447,8 +447,8 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
     >>> round(out["half_equivalence_points"][0]["pH"], 2)
     4.76
     """
-    from .dosing import get_chemical
-    from .measured import close_scenario
+    from ..operations.dosing import get_chemical
+    from ..operations.closure import close_scenario
 
     if isinstance(points, bool) or not isinstance(points, int) or not 3 <= points <= MAX_POINTS:
         raise InputError(f"points = {points!r} must be a whole number 3..{MAX_POINTS}", field="points")

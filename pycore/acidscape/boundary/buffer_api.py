@@ -1,8 +1,8 @@
 """Buffer intensity of a whole water against pH, and its buffer capacity between two pH values.
 
 The page's buffer plot needs beta over a pH range for the user's water; this
-module wraps :mod:`acidscape.buffer` for the JSON boundary. The water is
-solved first (:func:`acidscape.api.solve`), then treated as a closed sample at
+module wraps :mod:`acidscape.operations.buffer` for the JSON boundary. The water is
+solved first (:func:`acidscape.boundary.api.solve`), then treated as a closed sample at
 its equilibrium ionic strength with the mixed (conditional) constants the
 solver used, so that the curve passes exactly through the value ``solve``
 reports at the water's own pH:
@@ -20,7 +20,7 @@ strength, dilution neglected:
 
 Functions
 ---------
-buffer_curve_of_water(params) -> dict      the ``buffer`` method of :func:`acidscape.api.handle`
+buffer_curve_of_water(params) -> dict      the ``buffer`` method of :func:`acidscape.boundary.api.handle`
 
 References
 ----------
@@ -32,7 +32,7 @@ References
 
 from __future__ import annotations
 
-from .errors import InputError
+from ..errors import InputError
 
 #: Default pH range and number of points of the curve.
 DEFAULT_RANGE = (2.0, 12.0)
@@ -50,7 +50,7 @@ def buffer_curve_of_water(params: dict) -> dict:
     Parameters
     ----------
     params : dict
-        ``scenario`` : the water (as :func:`acidscape.api.solve` accepts it) [-];
+        ``scenario`` : the water (as :func:`acidscape.boundary.api.solve` accepts it) [-];
         ``pH_min``, ``pH_max`` : range of the curve, default 2..12 [-];
         ``points`` : number of pH values, 2..5001, default 241 [-];
         ``capacity`` : optional ``{"from_pH", "to_pH"}`` [-]
@@ -68,8 +68,8 @@ def buffer_curve_of_water(params: dict) -> dict:
     Notes
     -----
     A water open to CO2 is treated as the closed sample at its current carbonate total,
-    as in a lab beaker (see :func:`acidscape.buffer.buffer_intensity`). mg/L as CaCO3 =
-    meq/L x 50.04 (:func:`acidscape.alkalinity.meq_to_mg_as_CaCO3`).
+    as in a lab beaker (see :func:`acidscape.operations.buffer.buffer_intensity`). mg/L as CaCO3 =
+    meq/L x 50.04 (:func:`acidscape.operations.alkalinity.meq_to_mg_as_CaCO3`).
 
     Examples
     --------
@@ -83,10 +83,10 @@ def buffer_curve_of_water(params: dict) -> dict:
     >>> out["pH"]
     [2.0, 7.0, 12.0]
     """
-    from .alkalinity import meq_to_mg_as_CaCO3
-    from .api import _integer, _number, _scenario_param, solve
-    from .buffer import buffer_capacity, buffer_curve, buffer_intensity
-    from .curves import pH_grid
+    from ..operations.alkalinity import meq_to_mg_as_CaCO3
+    from ..boundary.api import _integer, _number, _scenario_param, solve
+    from ..operations.buffer import buffer_capacity, buffer_curve, buffer_intensity
+    from ..operations.curves import pH_grid
 
     if not isinstance(params, dict):
         raise InputError("parameters must be a JSON object", field=None)

@@ -65,8 +65,8 @@ from dataclasses import dataclass
 from importlib.resources import files
 from pathlib import Path
 
-from .errors import AcidscapeError, InputError, UnknownIdError
-from .formula import charge_of, molar_mass
+from ..errors import AcidscapeError, InputError, UnknownIdError
+from ..data.formula import charge_of, molar_mass
 
 __all__ = [
     "Source", "Species", "AcidSystem", "StrongIon", "LibraryDataError", "TEMPERATURE_MODELS",
@@ -74,7 +74,7 @@ __all__ = [
     "library_as_json", "ions_as_json", "parse_sources", "parse_ions", "parse_systems",
 ]
 
-#: Temperature models a system may name (implemented in :mod:`acidscape.temperature`).
+#: Temperature models a system may name (implemented in :mod:`acidscape.science.temperature`).
 TEMPERATURE_MODELS = ("vant-hoff", "carbonate-PB82", "ammonium-BP49", "hypochlorous-M66")
 
 _SYSTEM_ID_RE = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
@@ -636,7 +636,7 @@ def accepted_units(system_or_ion) -> list[str]:
 
     Notes
     -----
-    The rule is that of :func:`acidscape.units.accepted_units`, which this
+    The rule is that of :func:`acidscape.boundary.units.accepted_units`, which this
     function calls so that both always agree.
 
     Examples
@@ -646,7 +646,7 @@ def accepted_units(system_or_ion) -> list[str]:
     >>> accepted_units("Ca+2")
     ['mol/L', 'mmol/L', 'umol/L', 'mg/L', 'mg/L as CaCO3', 'meq/L']
     """
-    from . import units
+    from ..boundary import units
 
     item = system_or_ion
     if isinstance(item, str):

@@ -15,10 +15,10 @@ A *column mapping* says which column holds what (every key optional except as no
      "dose": {"chemical": "NaOH", "target_pH": 8.0},   # optional: dose to a target per row
      "delimiter": "auto"}          # ",", ";", "\\t" or "auto" (whichever the header holds most)
 
-Each row becomes an ordinary scenario (see :mod:`acidscape.scenario`):
+Each row becomes an ordinary scenario (see :mod:`acidscape.boundary.scenario`):
 
 - pH and alkalinity given (mode "measured") -> ``measured`` (the carbonate total follows from
-  them, :mod:`acidscape.measured`);
+  them, :mod:`acidscape.operations.closure`);
 - pH without alkalinity (mode "measured") -> ``pH``: speciation at the measured pH;
 - mode "equilibrium" -> no pH: the charge balance of the given totals and ions sets it.
 
@@ -34,8 +34,8 @@ run_rows(text, mapping, start=0, stop=None, row_offset=0) -> dict   results of s
 batch_chunk(params) -> dict                          the same from a JSON request (api method)
 batch_csv(text, mapping) -> str                      every sample's results as CSV text
 
-Data sources: none of its own; each row is computed by :func:`acidscape.api.solve` and
-:func:`acidscape.api.dose`.
+Data sources: none of its own; each row is computed by :func:`acidscape.boundary.api.solve` and
+:func:`acidscape.boundary.api.dose`.
 """
 
 from __future__ import annotations
@@ -44,7 +44,7 @@ import csv
 import io
 import math
 
-from .errors import AcidscapeError, InputError
+from ..errors import AcidscapeError, InputError
 
 #: Largest CSV text accepted in one request [characters].
 MAX_TEXT = 20_000_000
@@ -160,8 +160,8 @@ class _Plan:
     """A mapping checked against the header and the library, ready to build scenarios."""
 
     def __init__(self, header: list[str], mapping: dict):
-        from . import library
-        from .units import accepted_units
+        from ..data import library
+        from ..boundary.units import accepted_units
 
         if not isinstance(mapping, dict):
             raise InputError("mapping must be an object naming the columns", field="mapping")
@@ -215,7 +215,7 @@ class _Plan:
         if dose:
             if not isinstance(dose, dict) or not isinstance(dose.get("chemical"), str):
                 raise InputError("mapping.dose must be {chemical, target_pH}", field="mapping.dose")
-            from .dosing import get_chemical
+            from ..operations.dosing import get_chemical
 
             get_chemical(dose["chemical"])
             self.dose = (dose["chemical"], _finite(dose.get("target_pH"), "mapping.dose.target_pH", 0.0, 14.0))
@@ -286,7 +286,7 @@ def row_scenario(plan: _Plan, cells: list[str]) -> tuple[dict, float | None]:
 
 
 def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> dict:
-    from .api import dose, solve
+    from ..boundary.api import dose, solve
 
     out = solve(sc)
     alk = out["alkalinity"]

@@ -5,7 +5,7 @@ Two definitions are computed and labelled, because labs and textbooks use both:
 *Fixed end point* (what a lab titration to a set pH reports, Standard Methods
 2320 B [1]_): the strong acid, per litre of sample, that brings the water to
 pH 4.5 (total alkalinity, "T") or pH 8.3 (phenolphthalein alkalinity, "P").
-It is computed exactly from the charge terms (see :mod:`acidscape.buffer`),
+It is computed exactly from the charge terms (see :mod:`acidscape.operations.buffer`),
 
 .. math::
 
@@ -68,9 +68,9 @@ from collections.abc import Sequence
 
 _LN10 = math.log(10.0)
 
-from .buffer import _cum, _moments, proton_level
-from .constants import M_CaCO3
-from .errors import ConvergenceError, InputError
+from ..operations.buffer import _cum, _moments, proton_level
+from ..constants import M_CaCO3
+from ..errors import ConvergenceError, InputError
 
 #: mg of CaCO3 per meq: half the molar mass of CaCO3 (IUPAC 2021 weights) [mg/meq].
 MG_CACO3_PER_MEQ = M_CaCO3 / 2.0
@@ -282,7 +282,7 @@ def alkalinity_report(eq) -> dict:
 
     Parameters
     ----------
-    eq : acidscape.solver.Equilibrium
+    eq : acidscape.science.solver.Equilibrium
         A solved (or fixed-pH) water; its totals, mixed constants and ionic strength are used
 
     Returns
@@ -296,7 +296,7 @@ def alkalinity_report(eq) -> dict:
 
     Examples
     --------
-    >>> from acidscape.solver import Component, Ion, equilibrate
+    >>> from acidscape.science.solver import Component, Ion, equilibrate
     >>> c = Component("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 2e-3)
     >>> eq = equilibrate([c], [Ion("Na+", "Na+", 1, 2e-3)], T=298.15, pKw=13.995, model="ideal")
     >>> rep = alkalinity_report(eq)

@@ -14,7 +14,7 @@ A scenario is a dict with these keys (all optional except as noted):
 
 Functions
 ---------
-read_scenario(scenario) -> Parsed    validated inputs for :func:`acidscape.solver.equilibrate`
+read_scenario(scenario) -> Parsed    validated inputs for :func:`acidscape.science.solver.equilibrate`
 """
 
 from __future__ import annotations
@@ -23,13 +23,16 @@ import dataclasses
 import math
 from dataclasses import dataclass, field
 
-from . import activity, library, temperature, water
-from .constants import T0
-from .checks import number
-from .errors import InputError, UnknownIdError
-from .solver import Component, Ion
-from .speciation import MAX_STEPS, _check_pKa, generic_species_names
-from .units import to_molar
+from ..science import activity
+from ..data import library
+from ..science import temperature
+from ..science import purewater
+from ..constants import T0
+from ..checks import number
+from ..errors import InputError, UnknownIdError
+from ..science.solver import Component, Ion
+from ..science.speciation import MAX_STEPS, _check_pKa, generic_species_names
+from ..boundary.units import to_molar
 
 #: At most this many acid-base systems in one water.
 MAX_SYSTEMS = 40
@@ -270,7 +273,7 @@ def read_scenario(scenario: dict) -> Parsed:
                     warnings.append("carbonate total is set by the CO2 partial pressure (open system); "
                                     "the total given was not used")
                 components[idx] = dataclasses.replace(c, total_M=0.0, fixed_first_M=H2CO3)
-    pKw = water.pKw(T)
+    pKw = purewater.pKw(T)
     return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
                   components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
                   CO2_partial_pressure_atm=pCO2, warnings=warnings)

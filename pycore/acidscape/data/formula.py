@@ -38,8 +38,8 @@ from __future__ import annotations
 
 import re
 
-from .constants import ATOMIC_WEIGHT
-from .errors import InputError
+from ..constants import ATOMIC_WEIGHT
+from ..errors import InputError
 
 __all__ = ["composition", "molar_mass", "charge_of", "split_formula"]
 

@@ -16,7 +16,7 @@ the dissolved inorganic carbon C_T (DIC) and C_T follows explicitly:
                  + \\big(\\text{same at } \\mathrm{pH}_e\\big)}
                {(\\alpha_1 + 2\\alpha_2)(\\mathrm{pH}) - (\\alpha_1 + 2\\alpha_2)(\\mathrm{pH}_e)}
 
-(the proton reference level of :mod:`acidscape.alkalinity`; for the
+(the proton reference level of :mod:`acidscape.operations.alkalinity`; for the
 equivalence-point definition the terms at the end point pH_e are dropped).
 The strong ions not given are then represented by one monovalent "balancing"
 ion whose concentration closes the charge balance at the measured pH. Both
@@ -47,12 +47,12 @@ import copy
 import math
 from dataclasses import dataclass, field
 
-from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
-from .activity import gamma_function
-from .constants import ATOMIC_WEIGHT
-from .errors import ConvergenceError, InputError
-from .solver import ION_SIZE_H, ION_SIZE_OH
-from .speciation import alpha_from_cumulative, cumulative_pKa
+from ..operations.alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
+from ..science.activity import gamma_function
+from ..constants import ATOMIC_WEIGHT
+from ..errors import ConvergenceError, InputError
+from ..science.solver import ION_SIZE_H, ION_SIZE_OH
+from ..science.speciation import alpha_from_cumulative, cumulative_pKa
 
 _LN10 = math.log(10.0)
 #: Name of the ion that stands for the strong ions a description leaves out.
@@ -195,8 +195,8 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
     >>> round(info["DIC_M"] * 1e3, 2)
     2.03
     """
-    from . import library
-    from .scenario import read_scenario
+    from ..data import library
+    from ..boundary.scenario import read_scenario
 
     m = scenario.get("measured")
     if not isinstance(m, dict):
@@ -278,8 +278,8 @@ def close_scenario(scenario: dict) -> Closed:
     ion so the water solves to that pH; a water open to CO2 is closed at its equilibrium
     carbonate total. Totals in the returned scenario are in mol/L.
     """
-    from .scenario import read_scenario
-    from .solver import equilibrate
+    from ..boundary.scenario import read_scenario
+    from ..science.solver import equilibrate
 
     if not isinstance(scenario, dict):
         raise InputError("the scenario must be a JSON object", field="scenario")

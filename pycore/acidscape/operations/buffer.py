@@ -2,7 +2,7 @@
 
 Buffer intensity is the strong base needed per unit rise of pH,
 beta = dC_B/dpH (Van Slyke [1]_). For a closed water at fixed ionic strength,
-differentiating the charge balance of :mod:`acidscape.solver` gives the
+differentiating the charge balance of :mod:`acidscape.science.solver` gives the
 analytic sum
 
 .. math::
@@ -39,7 +39,7 @@ buffer_capacity_between(pH1, pH2, systems, ...)  base from pH1 to pH2 [eq/L]
 buffer_intensity(eq, pH=None)                    beta of a solved water (closed, fixed I)
 buffer_capacity(eq, pH1, pH2)                    the same from a solved water
 buffer_curve(eq, pH_values)                      beta over many pH values
-gamma_function(T, model)                         re-export of acidscape.activity.gamma_function
+gamma_function(T, model)                         re-export of acidscape.science.activity.gamma_function
 
 References
 ----------
@@ -54,11 +54,11 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-from .activity import gamma_function  # noqa: F401  (re-exported: was defined here)
-from .errors import InputError
-from .speciation import _check_pH
-from .speciation import cumulative_pKa
-from .speciation import proton_moments as _moments
+from ..science.activity import gamma_function  # noqa: F401  (re-exported: was defined here)
+from ..errors import InputError
+from ..science.speciation import _check_pH
+from ..science.speciation import cumulative_pKa
+from ..science.speciation import proton_moments as _moments
 
 _LN10 = math.log(10.0)
 _exp = math.exp
@@ -203,7 +203,7 @@ def _eq_systems(eq) -> list[tuple[tuple[float, ...], float]]:
 
 
 def buffer_intensity(eq, pH: float | None = None) -> float:
-    """Buffer intensity of a solved water (:class:`acidscape.solver.Equilibrium`).
+    """Buffer intensity of a solved water (:class:`acidscape.science.solver.Equilibrium`).
 
     Parameters
     ----------

@@ -22,8 +22,8 @@ to_molar(value, unit, item) -> float      value in mol/L
 from_molar(c, unit, item) -> float        value in ``unit``
 accepted_units(item) -> list[str]          units that fit a system or ion
 
-``item`` is an :class:`acidscape.library.AcidSystem`, a
-:class:`acidscape.library.StrongIon`, or any object with the attributes
+``item`` is an :class:`acidscape.data.library.AcidSystem`, a
+:class:`acidscape.data.library.StrongIon`, or any object with the attributes
 ``mass_basis`` / ``mass_basis_g_per_mol`` (or ``molar_mass_g_per_mol``),
 ``as_formula``, ``as_g_per_mol`` and, for ions, ``charge``.
 """
@@ -32,7 +32,7 @@ from __future__ import annotations
 
 import math
 
-from .errors import InputError, UnknownIdError
+from ..errors import InputError, UnknownIdError
 
 _SCALE = {"mol/L": 1.0, "mmol/L": 1e-3, "umol/L": 1e-6, "µmol/L": 1e-6, "μmol/L": 1e-6}
 

@@ -11,7 +11,7 @@ fraction is fixed, so the charge balance after dosing is linear in d:
     \\quad\\Rightarrow\\quad d = -N/M,
 
 solved explicitly (the same relation as the titration curves of
-:mod:`acidscape.titration`, without dilution: a plant dose is per litre of water
+:mod:`acidscape.operations.titration`, without dilution: a plant dose is per litre of water
 treated). With activity corrections the ionic strength after dosing depends on
 d, so (d, I) is iterated to a fixed point. The target cannot be reached when
 
@@ -22,7 +22,7 @@ d, so (d, I) is iterated to a fixed point. The target cannot be reached when
 * the dose exceeds 5 mol/L (beyond any treatment and the activity models);
 * for CO2, the dissolved H2CO3* after dosing would exceed its solubility under
   1 atm of pure CO2, K_H(T) x 1 atm (Plummer & Busenberg 1982 via
-  :func:`acidscape.temperature.log10_KH_CO2`): more cannot stay dissolved.
+  :func:`acidscape.science.temperature.log10_KH_CO2`): more cannot stay dissolved.
 
 Product feed: product dose = pure dose / (w/w strength); feed [kg/d] = product
 dose [mg/L] x flow [L/d] x 1e-6; volume = mass / density. 1 US gallon =
@@ -46,9 +46,9 @@ import functools
 import math
 from dataclasses import dataclass
 
-from .errors import InputError, UnknownIdError, UnreachableError
-from .titration import MAX_AMOUNT_M, PH_RANGE, Engine
-from .speciation import alpha_from_cumulative
+from ..errors import InputError, UnknownIdError, UnreachableError
+from ..operations.titration import MAX_AMOUNT_M, PH_RANGE, Engine
+from ..science.speciation import alpha_from_cumulative
 
 #: Litres per US gallon, exact by definition (NIST SP 811, from memory).
 L_PER_US_GALLON = 3.785411784
@@ -82,8 +82,9 @@ class Chemical:
 
     def components_at(self, T: float) -> dict:
         """Solver components of the systems this chemical adds, with pKa at T [K]."""
-        from . import library, temperature
-        from .solver import Component
+        from ..data import library
+        from ..science import temperature
+        from ..science.solver import Component
 
         out = {}
         for key, _ in self.systems:
@@ -116,8 +117,8 @@ def _pairs(text: str, where: str) -> tuple:
 
 
 def _alkalinity_per_mol(ion_pairs, system_pairs) -> float:
-    from . import library
-    from .alkalinity import TOTAL_END_POINT_PH, reference_index
+    from ..data import library
+    from ..operations.alkalinity import TOTAL_END_POINT_PH, reference_index
 
     a = sum(z * n for z, n in ion_pairs)
     for key, n in system_pairs:
@@ -144,8 +145,8 @@ def chemicals() -> dict:
     """
     from importlib.resources import files
 
-    from . import library
-    from .formula import molar_mass
+    from ..data import library
+    from ..data.formula import molar_mass
 
     name, rows = library._rows(files("acidscape") / "data" / "chemicals.csv",
                                ("id", "name", "molar_mass_g_per_mol", "strong_ions", "systems"))
@@ -178,7 +179,7 @@ def get_chemical(id: str, field: str = "chemical") -> Chemical:
     ----------
     id : str
         ``NaOH``, ``HCl``, ``H2SO4``, ``Ca(OH)2``, ``Na2CO3``, ``NaHCO3``, ``CO2``, or a system id
-        of :mod:`acidscape.library` (``acetic`` adds CH3COOH, ``ammonium`` adds NH3) [-]
+        of :mod:`acidscape.data.library` (``acetic`` adds CH3COOH, ``ammonium`` adds NH3) [-]
     field : str
         Input named in errors
 
@@ -193,7 +194,7 @@ def get_chemical(id: str, field: str = "chemical") -> Chemical:
     >>> c.name, c.alkalinity_eq_per_mol
     ('NH3 (Ammonium (NH4+/NH3))', 1.0)
     """
-    from . import library
+    from ..data import library
 
     table = chemicals()
     if isinstance(id, str) and id in table:
@@ -263,7 +264,7 @@ def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
 
     Raises :class:`UnreachableError` when the target cannot be reached (see module notes).
     """
-    from .temperature import log10_KH_CO2
+    from ..science.temperature import log10_KH_CO2
 
     p = closed.parsed
     engine = Engine(p.components, p.ions, T=p.T, pKw=p.pKw, model=p.model, I_fixed=p.I_fixed, chemical=chem,
@@ -350,7 +351,7 @@ def _after_scenario(closed, chem, d) -> dict:
 def _summary(res: dict) -> dict:
     carb = next((s for s in res["systems"] if s["id"] == "carbonate"), None)
     h2co3 = next((r for r in res["species"] if r["system"] == "carbonate" and r["charge"] == 0), None)
-    from .constants import ATOMIC_WEIGHT as W
+    from ..constants import ATOMIC_WEIGHT as W
 
     return {
         "pH": res["pH"],
@@ -370,7 +371,7 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
     ----------
     scenario : dict
         The water (``measured``, ``pH`` and ``gas`` are closed as in
-        :func:`acidscape.measured.close_scenario`)
+        :func:`acidscape.operations.closure.close_scenario`)
     chemical : str
         Chemical id (see :func:`get_chemical`) [-]
     target_pH : float
@@ -410,8 +411,8 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
     >>> round(out["dose_mmol_per_L"], 4)
     1.0
     """
-    from .api import solve
-    from .measured import close_scenario
+    from ..boundary.api import solve
+    from ..operations.closure import close_scenario
 
     chem = get_chemical(chemical, field="chemical")
     if isinstance(target_pH, bool) or not isinstance(target_pH, (int, float)) or not math.isfinite(target_pH):

@@ -24,9 +24,9 @@ from __future__ import annotations
 
 import math
 
-from .errors import InputError
-from .solver import Equilibrium
-from .speciation import cumulative_pKa, log10_alpha_from_cumulative
+from ..errors import InputError
+from ..science.solver import Equilibrium
+from ..science.speciation import cumulative_pKa, log10_alpha_from_cumulative
 
 _LN10 = math.log(10.0)
 

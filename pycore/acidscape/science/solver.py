@@ -45,9 +45,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .activity import gamma_function
-from .errors import ConvergenceError, InputError
-from .speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
+from ..science.activity import gamma_function
+from ..errors import ConvergenceError, InputError
+from ..science.speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
 
 _LN10 = math.log(10.0)
 #: Bracket of the pH search: wide enough for pH -1..15 with every allowed total.
@@ -125,7 +125,7 @@ class Equilibrium:
 class _Gamma:
     """Cache of log10 gamma by (charge, ion size) at one ionic strength.
 
-    ``lg`` is :func:`acidscape.activity.gamma_function` at the water's T and model.
+    ``lg`` is :func:`acidscape.science.activity.gamma_function` at the water's T and model.
     """
 
     __slots__ = ("I", "lg", "cache")
@@ -256,7 +256,7 @@ def equilibrate(
     pKw : float
         Ion product of water at ``T`` [-]
     model : str
-        Activity model, one of :data:`acidscape.activity.MODELS`
+        Activity model, one of :data:`acidscape.science.activity.MODELS`
     I_fixed : float, optional
         Ionic strength held fixed [mol/L]; if None it is computed from the composition
     pH : float, optional

@@ -29,7 +29,7 @@ from __future__ import annotations
 
 import math
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["T_MIN_K", "T_MAX_K", "check_temperature_K", "density_water", "pKw_from_density", "pKw"]
 

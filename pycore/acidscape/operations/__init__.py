@@ -1,0 +1,1 @@
+"""Layer 3, water operations: alkalinity, buffer, titration, dosing, closure, curves."""

@@ -1,0 +1,1 @@
+"""Layer 2, science: pure water, activity, temperature, speciation and the equilibrium model."""
