@@ -196,7 +196,7 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     >>> round(out["pH"], 2)
     3.91
     """
-    from ..boundary.scenario import read_scenario
+    from .scenario import read_scenario
     from ..science.solver import charge_balance_terms, equilibrate
 
     inferred = None
@@ -362,8 +362,8 @@ def dose(params: dict) -> dict:
 def _methods() -> dict[str, Callable[[dict], dict]]:
     """The methods :func:`handle` dispatches to, built once on the first request."""
     from ..data import library
-    from ..boundary.batch import batch_chunk
-    from ..boundary.buffer_api import buffer_curve_of_water
+    from .batch import batch_chunk
+    from .buffer_api import buffer_curve_of_water
     from ..operations.dosing import chemicals
 
     return {

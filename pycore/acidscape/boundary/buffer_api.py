@@ -84,7 +84,7 @@ def buffer_curve_of_water(params: dict) -> dict:
     [2.0, 7.0, 12.0]
     """
     from ..operations.alkalinity import meq_to_mg_as_CaCO3
-    from ..boundary.api import _integer, _number, _scenario_param, solve
+    from .api import _integer, _number, _scenario_param, solve
     from ..operations.buffer import buffer_capacity, buffer_curve, buffer_intensity
     from ..operations.curves import pH_grid
 

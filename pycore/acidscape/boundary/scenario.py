@@ -32,7 +32,7 @@ from ..checks import number
 from ..errors import InputError, UnknownIdError
 from ..science.solver import Component, Ion
 from ..science.speciation import MAX_STEPS, _check_pKa, generic_species_names
-from ..boundary.units import to_molar
+from .units import to_molar
 
 #: At most this many acid-base systems in one water.
 MAX_SYSTEMS = 40
@@ -43,7 +43,7 @@ MAX_TOTAL_M = 5.0
 
 KNOWN_KEYS = {
     "temperature_C", "activity", "ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm",
-    "pH", "systems", "ions", "gas", "measured", "name", "note", "version",
+    "pH", "systems", "ions", "gas", "measured", "name", "note", "version", "complexes", "precipitate",
 }
 
 
@@ -88,6 +88,8 @@ class Parsed:
     pKw: float
     CO2_partial_pressure_atm: float | None
     warnings: list[str] = field(default_factory=list)
+    complexes: bool = True
+    precipitate: tuple[str, ...] = ()
 
 
 def _num(value, field_name: str, *, lo=None, hi=None) -> float:

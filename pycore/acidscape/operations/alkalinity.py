@@ -68,7 +68,7 @@ from collections.abc import Sequence
 
 _LN10 = math.log(10.0)
 
-from ..operations.buffer import _cum, _moments, proton_level
+from .buffer import _cum, _moments, proton_level
 from ..constants import M_CaCO3
 from ..errors import ConvergenceError, InputError
 

@@ -47,7 +47,7 @@ import copy
 import math
 from dataclasses import dataclass, field
 
-from ..operations.alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
+from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
 from ..science.activity import gamma_function
 from ..constants import ATOMIC_WEIGHT
 from ..errors import ConvergenceError, InputError

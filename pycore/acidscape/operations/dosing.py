@@ -47,7 +47,7 @@ import math
 from dataclasses import dataclass
 
 from ..errors import InputError, UnknownIdError, UnreachableError
-from ..operations.titration import MAX_AMOUNT_M, PH_RANGE, Engine
+from .titration import MAX_AMOUNT_M, PH_RANGE, Engine
 from ..science.speciation import alpha_from_cumulative
 
 #: Litres per US gallon, exact by definition (NIST SP 811, from memory).
@@ -118,7 +118,7 @@ def _pairs(text: str, where: str) -> tuple:
 
 def _alkalinity_per_mol(ion_pairs, system_pairs) -> float:
     from ..data import library
-    from ..operations.alkalinity import TOTAL_END_POINT_PH, reference_index
+    from .alkalinity import TOTAL_END_POINT_PH, reference_index
 
     a = sum(z * n for z, n in ion_pairs)
     for key, n in system_pairs:
@@ -412,7 +412,7 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
     1.0
     """
     from ..boundary.api import solve
-    from ..operations.closure import close_scenario
+    from .closure import close_scenario
 
     chem = get_chemical(chemical, field="chemical")
     if isinstance(target_pH, bool) or not isinstance(target_pH, (int, float)) or not math.isfinite(target_pH):

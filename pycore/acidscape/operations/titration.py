@@ -374,7 +374,7 @@ def _co2_saturation_pH(engine, parsed, pH0, I0, to_pH):
     explicit formula, so the condition (C_T0 + d(pH)) alpha0(pH) = K_H x 1 atm is solved by
     bisection in pH (it rises monotonically as CO2 is added and the pH falls).
     """
-    from ..operations.dosing import _a0_carbonate
+    from .dosing import _a0_carbonate
     from ..science.temperature import log10_KH_CO2
 
     sat = 10.0 ** log10_KH_CO2(parsed.T)
@@ -447,8 +447,8 @@ def titration_curve(scenario: dict, titrant: str, *, titrant_M: float | None = 0
     >>> round(out["half_equivalence_points"][0]["pH"], 2)
     4.76
     """
-    from ..operations.dosing import get_chemical
-    from ..operations.closure import close_scenario
+    from .dosing import get_chemical
+    from .closure import close_scenario
 
     if isinstance(points, bool) or not isinstance(points, int) or not 3 <= points <= MAX_POINTS:
         raise InputError(f"points = {points!r} must be a whole number 3..{MAX_POINTS}", field="points")

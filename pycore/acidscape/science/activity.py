@@ -49,7 +49,7 @@ import math
 
 from ..constants import LN10, N_A, e, epsilon_0, k_B
 from ..errors import InputError, UnknownIdError
-from ..science.purewater import check_temperature_K, density_water
+from .purewater import check_temperature_K, density_water
 
 __all__ = [
     "MODELS", "VALIDITY_I_M", "DEFAULT_ION_SIZE_A", "DH_A_PREFACTOR", "DH_B_PREFACTOR",

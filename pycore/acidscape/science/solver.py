@@ -45,9 +45,10 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from ..science.activity import gamma_function
+from .activity import gamma_function
 from ..errors import ConvergenceError, InputError
-from ..science.speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
+from .speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
+from .tableau import ION_SIZE_H, ION_SIZE_OH, IonInput, SystemInput
 
 _LN10 = math.log(10.0)
 #: Bracket of the pH search: wide enough for pH -1..15 with every allowed total.
@@ -55,39 +56,12 @@ PH_BRACKET = (-4.0, 19.0)
 #: Convergence tolerance on pH [-] and relative tolerance on ionic strength.
 PH_TOL = 1e-10
 I_RTOL = 1e-10
-#: Default Kielland ion sizes of H+ and OH- [Å] (Kielland 1937, J. Am. Chem. Soc. 59, 1675; from memory).
-ION_SIZE_H = 9.0
-ION_SIZE_OH = 3.5
 
 
-@dataclass(frozen=True)
-class Component:
-    """An acid-base system in a water.
 
-    ``pKa`` are thermodynamic (I = 0) values at the water's temperature. If
-    ``fixed_first_M`` is set, the most protonated species is held at that
-    concentration [mol/L] (open system) and ``total_M`` is ignored.
-    """
-
-    key: str
-    name: str
-    species: tuple[str, ...]
-    charges: tuple[int, ...]
-    pKa: tuple[float, ...]
-    total_M: float
-    ion_sizes: tuple[float | None, ...] = ()
-    fixed_first_M: float | None = None
-
-
-@dataclass(frozen=True)
-class Ion:
-    """A strong (non-reacting) ion."""
-
-    key: str
-    name: str
-    charge: int
-    conc_M: float
-    ion_size_A: float | None = None
+# The inputs are shared with the general model (acidscape.science.tableau).
+Component = SystemInput
+Ion = IonInput
 
 
 @dataclass

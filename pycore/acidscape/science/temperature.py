@@ -47,7 +47,7 @@ import math
 
 from ..constants import LN10, R
 from ..errors import InputError, UnknownIdError
-from ..science.purewater import check_temperature_K
+from .purewater import check_temperature_K
 
 __all__ = [
     "TEMPERATURE_MODELS", "FIT_RANGE_K", "T_REF_K", "vant_hoff_pKa", "carbonate_PB82",

@@ -1,0 +1,200 @@
+"""A water as a component-species tableau, ready for :mod:`acidscape.science.model`.
+
+:class:`WaterModel` takes the water's acid-base systems and ions (their constants already
+at the water's temperature) and, when complexes are on, every complex and solid of the
+cited database whose components the water holds. It writes each as a species or solid of
+the tableau in the component basis:
+
+- components: H+, the fully deprotonated base of each acid-base system, each free ion;
+- the species H_pA of a system with p protons above its base: log10 K = the sum of its
+  last p pKa (so the tableau and the alpha fractions of :mod:`acidscape.science.speciation`
+  agree by construction);
+- a complex printed as ``sum(coef * ref) = complex`` with constant K: in the component
+  basis log10 K + sum(coef * log10 K_ref), where K_ref forms the reference species from the
+  components (H+ and free ions: 1; OH-: Kw; an acid species: its cumulative constant);
+- a solid printed as ``solid = sum(coef * ref)``: log10 Ksp - sum(coef * log10 K_ref).
+
+Classes
+-------
+SystemInput, IonInput     the water's systems and ions (constants at the water's temperature)
+WaterModel                the tableau, totals and bookkeeping; ``solve(...)`` -> model.Solution
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..data import library
+from . import temperature
+from .activity import gamma_function
+from .model import Solid, Species, Tableau, equilibrium
+
+#: Kielland ion sizes of H+ and OH- [Å] (Kielland 1937, J. Am. Chem. Soc. 59, 1675; from memory).
+ION_SIZE_H = 9.0
+ION_SIZE_OH = 3.5
+
+
+@dataclass(frozen=True)
+class SystemInput:
+    """An acid-base system in a water.
+
+    ``pKa`` are thermodynamic (I = 0) values at the water's temperature, ``species`` and
+    ``charges`` run from the most protonated species to the base. If ``fixed_first_M`` is set
+    the most protonated species is held at that concentration [mol/L] (open system) and
+    ``total_M`` is ignored.
+    """
+
+    key: str
+    name: str
+    species: tuple[str, ...]
+    charges: tuple[int, ...]
+    pKa: tuple[float, ...]
+    total_M: float
+    ion_sizes: tuple[float | None, ...] = ()
+    fixed_first_M: float | None = None
+
+
+@dataclass(frozen=True)
+class IonInput:
+    """A free ion (a metal, or an ion that forms no acid-base pair)."""
+
+    key: str
+    name: str
+    charge: int
+    conc_M: float
+    ion_size_A: float | None = None
+
+
+def _cumulative(pKa: tuple[float, ...], p: int) -> float:
+    """log10 K forming the species with p protons from the base: the sum of the last p pKa."""
+    return sum(pKa[len(pKa) - p:]) if p else 0.0
+
+
+class WaterModel:
+    """The tableau of one water at one temperature.
+
+    Attributes
+    ----------
+    tab : model.Tableau
+    totals : list of float
+        Total of each component [mol/L] (H+ entry 0: set by the charge balance or the pH)
+    system_species : dict
+        System key -> species indices, most protonated first
+    ion_species : dict
+        Ion key -> index of its free species
+    solid_info : list
+        Library solid object (or None) per tableau solid
+    notes : list of str
+        Temperature notes of the complexes and solids used
+    """
+
+    def __init__(self, systems: list[SystemInput], ions: list[IonInput], *, T: float, pKw: float,
+                 model: str = "davies", complexes: bool = True, I_fixed: float | None = None):
+        self.T, self.pKw, self.model, self.I_fixed = T, pKw, model, I_fixed
+        self.systems, self.ions = list(systems), list(ions)
+        self.complexes = complexes
+        self.gamma_of = gamma_function(T, model)
+        self.notes: list[str] = []
+        names = ["H+"]
+        charges = [1]
+        sizes: list[float | None] = [ION_SIZE_H]
+        totals = [0.0]
+        species = [Species("H+", ((0, 1),), 0.0, 1, ION_SIZE_H, "water"),
+                   Species("OH-", ((0, -1),), -pKw, -1, ION_SIZE_OH, "water")]
+        self.comp_index: dict[str, int] = {}
+        self.system_species: dict[str, list[int]] = {}
+        self.ion_species: dict[str, int] = {}
+        self.fixed_species: dict[int, float] = {}
+        # log10 K forming each reference species from the components, for complexes and solids
+        self._ref_logK: dict[tuple, tuple[tuple[tuple[int, int], ...], float]] = {
+            ("H+",): (((0, 1),), 0.0), ("OH-",): (((0, -1),), -pKw)}
+        for s in self.systems:
+            j = len(names)
+            self.comp_index[s.key] = j
+            n = len(s.pKa)
+            names.append(s.key)
+            charges.append(s.charges[-1])
+            sz = s.ion_sizes or (None,) * (n + 1)
+            sizes.append(sz[-1])
+            totals.append(0.0 if s.fixed_first_M is not None else s.total_M)
+            idx = []
+            for k in range(n + 1):
+                p = n - k
+                logK = _cumulative(s.pKa, p)
+                stoich = ((j, 1), (0, p)) if p else ((j, 1),)
+                idx.append(len(species))
+                species.append(Species(s.species[k], stoich, logK, s.charges[k], sz[k], "acid-base", s.key))
+                self._ref_logK[("system", s.key, p)] = (stoich, logK)
+            self.system_species[s.key] = idx
+            if s.fixed_first_M is not None:
+                self.fixed_species[idx[0]] = s.fixed_first_M
+        for ion in self.ions:
+            j = len(names)
+            self.comp_index[ion.key] = j
+            names.append(ion.key)
+            charges.append(ion.charge)
+            sizes.append(ion.ion_size_A)
+            totals.append(ion.conc_M)
+            self.ion_species[ion.key] = len(species)
+            species.append(Species(ion.name, ((j, 1),), 0.0, ion.charge, ion.ion_size_A, "free ion"))
+            self._ref_logK[("ion", ion.key)] = (((j, 1),), 0.0)
+        solids: list[Solid] = []
+        self.solid_info: list = []
+        self.complex_info: dict[int, object] = {}
+        if complexes:
+            for cx in library.complexes():
+                built = self._component_basis(cx.reactants, +1)
+                if built is None:
+                    continue
+                stoich, shift = built
+                logK, notes = temperature.log10_K_at(cx, T)
+                self.notes.extend(notes)
+                self.complex_info[len(species)] = cx
+                species.append(Species(cx.formula, stoich, logK + shift, cx.charge, cx.ion_size_A, "complex"))
+        for sd in library.solids():
+            built = self._component_basis(sd.reactants, -1)
+            if built is None:
+                continue
+            stoich, shift = built
+            logK, notes = temperature.log10_K_at(sd, T)
+            self.notes.extend(notes)
+            solids.append(Solid(sd.id, stoich, logK + shift))
+            self.solid_info.append(sd)
+        self.tab = Tableau(tuple(names), tuple(charges), tuple(sizes), tuple(species), tuple(solids))
+        self.totals = totals
+        self.solid_index = {s.id: k for k, s in enumerate(solids)}
+
+    def _component_basis(self, reactants, sign: int):
+        """(stoich, log10 K shift) of a reaction over reference species, or None if a component is absent.
+
+        ``sign`` +1 for a formation (complex), -1 for a dissolution (solid).
+        """
+        acc: dict[int, int] = {}
+        shift = 0.0
+        for ref, coef in reactants:
+            key = library.resolve_ref(ref)
+            if key[0] == "ion" and key not in self._ref_logK:
+                # an ion that is an acid-base system's base (sulfate) is that system's component
+                ion = library.get_ion(key[1])
+                if getattr(ion, "system", None):
+                    key = ("system", ion.system, 0)
+            found = self._ref_logK.get(key)
+            if found is None:
+                return None
+            stoich, logK = found
+            for j, a in stoich:
+                acc[j] = acc.get(j, 0) + coef * a
+            shift += sign * coef * logK
+        return tuple((j, a) for j, a in sorted(acc.items()) if a), shift
+
+    def solve(self, *, pH: float | None = None, totals: list[float] | None = None,
+              allow_solids: tuple[str, ...] = (), guess: dict | None = None):
+        """Equilibrium of this water (see :func:`acidscape.science.model.equilibrium`).
+
+        ``totals`` overrides the component totals [mol/L] (a dose or a titrant added);
+        ``allow_solids`` names solids (ids) that may precipitate or dissolve.
+        """
+        idx = tuple(self.solid_index[s] for s in allow_solids)
+        return equilibrium(self.tab, list(totals if totals is not None else self.totals), T=self.T,
+                           gamma_of=self.gamma_of, pH=pH, fixed_species=self.fixed_species,
+                           allow_solids=idx, I_fixed=self.I_fixed, guess=guess)
