@@ -233,8 +233,8 @@ def test_unknown_ids_name_the_id_and_suggest():
 
 
 def test_accepted_units():
-    assert L.accepted_units("phosphate") == ["mol/L", "mmol/L", "umol/L", "mg/L", "mg/L as P"]
-    assert L.accepted_units(SYSTEMS["acetic"]) == ["mol/L", "mmol/L", "umol/L", "mg/L"]
+    assert L.accepted_units("phosphate") == ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L", "mg/L as P"]
+    assert L.accepted_units(SYSTEMS["acetic"]) == ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L"]
     assert "meq/L" in L.accepted_units("Cl-")
     assert "mg/L as N" in L.accepted_units(IONS["NO3-"])
     with pytest.raises(UnknownIdError):

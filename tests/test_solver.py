@@ -146,8 +146,8 @@ def test_extremes_converge():
     rng = random.Random(20261201)
     ids = SYSTEM_IDS
     for k in range(60):
-        n = rng.randint(1, 40)
-        systems = [{"id": rng.choice(ids), "total": 10 ** rng.uniform(-12, math.log10(2 / n))} for _ in range(n)]
+        n = rng.randint(1, len(ids))  # each system once (a repeated system is refused)
+        systems = [{"id": i, "total": 10 ** rng.uniform(-12, math.log10(2 / n))} for i in rng.sample(ids, n)]
         ions = [{"id": NA, "total": 10 ** rng.uniform(-12, 0.3)}, {"id": CL, "total": 10 ** rng.uniform(-12, 0.3)}]
         out = solve({"activity": rng.choice(["ideal", "davies"]), "temperature_C": rng.uniform(0, 100),
                      "systems": systems, "ions": ions})

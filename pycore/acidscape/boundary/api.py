@@ -152,38 +152,44 @@ def distribution(params: dict) -> dict:
     }
 
 
-def _species_rows(eq, sources) -> list[dict]:
-    rows = []
-    for st, src in zip(eq.systems, sources):
-        comp = st.component
-        masses = [getattr(sp, "molar_mass_g_per_mol", None) for sp in getattr(src, "species", ())] or [None] * len(
-            comp.species
-        )
-        for name, z, a, lg, mm in zip(comp.species, comp.charges, st.fractions, st.log10_gammas, masses):
-            c = st.total_M * a
-            g = 10.0**lg
-            rows.append(
-                {
-                    "name": name,
-                    "system": comp.key,
-                    "charge": z,
-                    "concentration_M": c,
-                    "activity_M": g * c,
-                    "activity_coefficient": g,
-                    "fraction": a,
-                    "molar_mass_g_per_mol": mm,
-                }
-            )
-    return rows
+def _acid_base_view(parsed, wm, sol):
+    """The acid-base part of a solved water in the form the alkalinity, buffer and curve
+    functions read (each system's mixed constants, fractions of its total, gammas)."""
+    from ..science.solver import Equilibrium, SystemState
+
+    states = []
+    for comp in parsed.components:
+        idx = wm.system_species[comp.key]
+        lg = [sol.log10_gamma[i] for i in idx]
+        pKm = tuple(pk + lg[k + 1] - lg[k] for k, pk in enumerate(comp.pKa))
+        tot = sol.totals[wm.comp_index[comp.key]]
+        fr = [sol.conc[i] / tot if tot > 0 else 0.0 for i in idx]
+        states.append(SystemState(comp, tot, pKm, fr, lg))
+    ions = [(ion, sol.log10_gamma[wm.ion_species[ion.key]]) for ion in parsed.ions]
+    return Equilibrium(
+        pH=sol.pH, I=sol.I, pKw=parsed.pKw, T=parsed.T, model=parsed.model, H_M=sol.conc[0], OH_M=sol.conc[1],
+        log10_gamma_H=sol.log10_gamma[0], log10_gamma_OH=sol.log10_gamma[1], systems=states, ions=ions,
+        residual_eq_per_L=sol.charge_residual, iterations=sol.iterations, pH_was_given=parsed.pH is not None,
+    )
+
+
+def water_model(parsed):
+    """The tableau of a parsed scenario (:class:`acidscape.science.tableau.WaterModel`)."""
+    from ..science.tableau import WaterModel
+
+    return WaterModel(parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
+                      complexes=parsed.complexes, I_fixed=parsed.I_fixed)
 
 
 def solve(scenario: dict, _state: dict | None = None) -> dict:
     """Equilibrium (or fixed-pH speciation) of a water described by a scenario.
 
     See :mod:`acidscape.boundary.scenario` for the keys. The result holds ``pH``,
-    ``temperature_C``, ``ionic_strength_M``, ``pKw``, ``species`` (each system's
-    species from most to least protonated with ``name``, ``system``, ``charge``,
-    ``concentration_M``, ``activity_M``, ``activity_coefficient``, ``fraction``),
+    ``temperature_C``, ``ionic_strength_M``, ``pKw``, ``species`` (every aqueous species:
+    each system's species from most to least protonated, free ions, complexes; with
+    ``name``, ``system``, ``kind``, ``charge``, ``concentration_M``, ``activity_M``,
+    ``activity_coefficient``, ``fraction``, ``holds``), ``components`` (total, free,
+    complexed and precipitated of each), ``saturation``, ``precipitated``, ``residuals``,
     ``charge_balance_residual_eq_per_L``, ``warnings``, plus ``systems``, ``ions``,
     ``water_ions`` and ``trail`` (each charge-balance term).
 
@@ -196,30 +202,42 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     >>> round(out["pH"], 2)
     3.91
     """
+    from . import results
     from .scenario import read_scenario
-    from ..science.solver import charge_balance_terms, equilibrate
 
     inferred = None
     if isinstance(scenario, dict) and scenario.get("measured") is not None:
-        from ..operations.closure import resolve_measured  # pH + alkalinity -> carbonate total (issue 4)
+        from ..operations.closure import resolve_measured  # pH + alkalinity -> carbonate total
 
         scenario, inferred = resolve_measured(scenario)
     parsed = read_scenario(scenario)
-    eq = equilibrate(
-        parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
-        I_fixed=parsed.I_fixed, pH=parsed.pH,
-    )
+    wm = water_model(parsed)
+    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
+    eq = _acid_base_view(parsed, wm, sol)
     if _state is not None:  # callers inside the package may want the solved state too
-        _state["parsed"], _state["eq"] = parsed, eq
-    warnings = list(parsed.warnings)
+        _state["parsed"], _state["eq"], _state["model"], _state["solution"] = parsed, eq, wm, sol
+    warnings = list(parsed.warnings) + wm.notes + sol.warnings
     from ..science.activity import VALIDITY_I_M
 
     limit = VALIDITY_I_M.get(parsed.model)
-    if limit is not None and eq.I > limit:
+    if limit is not None and sol.I > limit:
         warnings.append(
-            f"ionic strength {eq.I:.3g} mol/L exceeds the {parsed.model} model's usual validity "
+            f"ionic strength {sol.I:.3g} mol/L exceeds the {parsed.model} model's usual validity "
             f"(about {limit:g} mol/L); activities are less reliable"
         )
+    if parsed.pH is not None:
+        charges = sum(abs(sp.charge) * c for sp, c in zip(wm.tab.species, sol.conc))
+        if charges > 0 and abs(sol.charge_residual) > 0.05 * 0.5 * charges:
+            warnings.append(
+                f"at the given pH the water's charges do not balance: {sol.charge_residual * 1e3:+.3g} meq/L, "
+                f"{abs(sol.charge_residual) / (0.5 * charges):.0%} of its ions; a measured water usually holds "
+                "ions that were not entered"
+            )
+    for row in results.saturation_rows(wm, sol):
+        if row["SI"] > 0.3 and row["id"] not in parsed.precipitate:
+            warnings.append(f"{row['name']} is oversaturated (SI {row['SI']:+.2f}); it may precipitate "
+                            f"(add it to precipitate to let it form)")
+            break
     systems_out = []
     for st in eq.systems:
         systems_out.append({
@@ -231,31 +249,41 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
             "open_to_gas": st.component.fixed_first_M is not None,
         })
     ions_out = []
-    for ion, lg in eq.ions:
-        g = 10.0**lg
-        ions_out.append({"name": ion.name, "id": ion.key, "charge": ion.charge, "concentration_M": ion.conc_M,
-                         "activity_M": g * ion.conc_M, "activity_coefficient": g})
-    gH, gOH = 10.0**eq.log10_gamma_H, 10.0**eq.log10_gamma_OH
+    for ion in parsed.ions:
+        i = wm.ion_species[ion.key]
+        c = sol.conc[i]
+        g = 10.0 ** sol.log10_gamma[i]
+        ions_out.append({"name": ion.name, "id": ion.key, "charge": ion.charge, "concentration_M": c,
+                         "total_M": ion.conc_M, "activity_M": g * c, "activity_coefficient": g})
+    gH, gOH = 10.0 ** sol.log10_gamma[0], 10.0 ** sol.log10_gamma[1]
+    names = {c.key: c.name for c in parsed.components}
+    names.update({src.id: getattr(src, "name", src.id) for src in parsed.ion_sources})
+    masses = results.component_masses(wm, parsed.sources, parsed.ion_sources)
     result = {
-        "pH": eq.pH,
-        "pH_was_given": eq.pH_was_given,
+        "pH": sol.pH,
+        "pH_was_given": parsed.pH is not None,
         "temperature_C": parsed.temperature_C,
         "activity": parsed.model,
-        "ionic_strength_M": eq.I,
+        "complexes": parsed.complexes,
+        "ionic_strength_M": sol.I,
         "ionic_strength_source": parsed.I_source,
-        "pKw": eq.pKw,
-        "species": _species_rows(eq, parsed.sources),
+        "pKw": parsed.pKw,
+        "species": results.species_rows(wm, sol, masses),
+        "components": results.component_rows(wm, sol, names),
         "systems": systems_out,
         "ions": ions_out,
         "water_ions": [
-            {"name": "H+", "charge": 1, "concentration_M": eq.H_M, "activity_M": gH * eq.H_M,
+            {"name": "H+", "charge": 1, "concentration_M": sol.conc[0], "activity_M": gH * sol.conc[0],
              "activity_coefficient": gH},
-            {"name": "OH-", "charge": -1, "concentration_M": eq.OH_M, "activity_M": gOH * eq.OH_M,
+            {"name": "OH-", "charge": -1, "concentration_M": sol.conc[1], "activity_M": gOH * sol.conc[1],
              "activity_coefficient": gOH},
         ],
-        "charge_balance_residual_eq_per_L": eq.residual_eq_per_L,
-        "trail": charge_balance_terms(eq),
-        "iterations": eq.iterations,
+        "saturation": results.saturation_rows(wm, sol),
+        "precipitated": results.precipitated_rows(wm, sol),
+        "residuals": results.residual_report(wm, sol),
+        "charge_balance_residual_eq_per_L": sol.charge_residual,
+        "trail": results.trail_rows(wm, sol),
+        "iterations": sol.iterations,
         "warnings": warnings,
     }
     if parsed.CO2_partial_pressure_atm is not None:

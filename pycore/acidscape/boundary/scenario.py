@@ -11,6 +11,12 @@ A scenario is a dict with these keys (all optional except as noted):
 ``systems``              list of ``{"id", "total", "unit"}`` or ``{"custom": {...}, "total", "unit"}``
 ``ions``                 list of ``{"id", "total", "unit"}`` or ``{"custom": {...}, "total", "unit"}``
 ``gas``                  ``{"CO2_partial_pressure_atm": p}``: open to CO2 at that partial pressure
+``complexes``            true (default) or false: ion pairs and metal complexes of the database on or off
+``precipitate``          list of solid ids (``"calcite"``...) allowed to precipitate or dissolve to equilibrium
+
+Ion ids are words (``"calcium"``, ``"lead"``, ``"iron(III)"``); the older formula spellings
+(``"Ca+2"``) are accepted as aliases. An ion that is the base of an acid-base system
+(``"sulfate"``) is read as that system. Each system or ion may be given once.
 
 Functions
 ---------
@@ -119,17 +125,22 @@ def _entry_list(scenario: dict, key: str, limit: int) -> list:
 def _total(entry: dict, unit, item, path: str) -> float:
     """The entry's total in mol/L: a number, not negative, within MAX_TOTAL_M."""
     total = to_molar(entry.get("total", 0.0), unit, item, f"{path}.total")
+    if total > MAX_TOTAL_M:
+        raise InputError(f"{path}.total = {total:g} mol/L is above the {MAX_TOTAL_M:g} mol/L this model accepts",
+                         field=f"{path}.total")
     return total
 
 
-def _lookup(getter, key, path: str, what: str):
-    """A library entry by id, with errors naming ``<path>.id``."""
+def _lookup(getter, key, path: str, what: str, field: str | None = None):
+    """A library entry by id, with errors naming ``field`` (default ``<path>.id``)."""
+    field = field or f"{path}.id"
     if not isinstance(key, str):
-        raise InputError(f"{path}.id must be {what} (text) or give {path}.custom", field=f"{path}.id")
+        hint = f" or give {path}.custom" if field.endswith(".id") else ""
+        raise InputError(f"{field} must be {what} (text){hint}", field=field)
     try:
         return getter(key)
     except UnknownIdError as exc:
-        exc.field = f"{path}.id"
+        exc.field = field
         raise
 
 
@@ -205,6 +216,9 @@ def _read_ion(entry: dict, i: int):
         conc = _total(entry, unit, src, path)
         return Ion(key=src.id, name=name, charge=z, conc_M=conc), src
     ion = _lookup(library.get_ion, entry.get("id"), path, "an ion id")
+    linked = getattr(ion, "system", None)
+    if linked:
+        return None, (library.get_system(linked), _total(entry, unit, ion, path))
     conc = _total(entry, unit, ion, path)
     return Ion(key=ion.id, name=ion.formula, charge=ion.charge, conc_M=conc, ion_size_A=ion.ion_size_A), ion
 
@@ -252,8 +266,27 @@ def read_scenario(scenario: dict) -> Parsed:
         components.append(comp)
         sources.append(src)
     ions, ion_sources = [], []
+    seen = {c.key: f"systems[{k}]" for k, c in enumerate(components)}
+    if len(seen) < len(components):
+        key = next(c.key for k, c in enumerate(components) if seen[c.key] != f"systems[{k}]")
+        raise InputError(f"{key} is given twice in systems; give each system once", field=seen[key])
     for i, entry in enumerate(_entry_list(scenario, "ions", MAX_IONS)):
         ion, src = _read_ion(entry, i)
+        if ion is None:  # an ion that is an acid-base system's base (sulfate)
+            system, total = src
+            if system.id in seen:
+                raise InputError(f"{system.id} is given twice (in {seen[system.id]} and ions[{i}]); give it once",
+                                 field=f"ions[{i}].id")
+            pKa, notes = temperature.pKa_at_with_notes(system, T)
+            warnings.extend(notes)
+            components.append(_library_component(system, pKa, total))
+            sources.append(system)
+            seen[system.id] = f"ions[{i}]"
+            continue
+        if ion.key in seen:
+            raise InputError(f"{ion.key} is given twice (in {seen[ion.key]} and ions[{i}]); give it once",
+                             field=f"ions[{i}].id")
+        seen[ion.key] = f"ions[{i}]"
         ions.append(ion)
         ion_sources.append(src)
     pCO2 = None
@@ -276,6 +309,29 @@ def read_scenario(scenario: dict) -> Parsed:
                                     "the total given was not used")
                 components[idx] = dataclasses.replace(c, total_M=0.0, fixed_first_M=H2CO3)
     pKw = purewater.pKw(T)
+    complexes = scenario.get("complexes", True)
+    if not isinstance(complexes, bool):
+        raise InputError(f"complexes must be true or false, got {complexes!r}", field="complexes")
     return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
                   components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
-                  CO2_partial_pressure_atm=pCO2, warnings=warnings)
+                  CO2_partial_pressure_atm=pCO2, warnings=warnings, complexes=complexes,
+                  precipitate=_read_precipitate(scenario))
+
+
+def _read_precipitate(scenario: dict) -> tuple[str, ...]:
+    """Solid ids allowed to precipitate, each checked against the database."""
+    raw = scenario.get("precipitate")
+    if raw is None:
+        return ()
+    if isinstance(raw, str):
+        raw = [raw]
+    if not isinstance(raw, list):
+        raise InputError("precipitate must be a list of solid ids such as [\"calcite\"]", field="precipitate")
+    if len(raw) > 20:
+        raise InputError(f"precipitate names {len(raw)} solids; at most 20 are allowed", field="precipitate")
+    out = []
+    for k, sid in enumerate(raw):
+        solid = _lookup(library.get_solid, sid, "precipitate", "a solid id", field=f"precipitate[{k}]")
+        if solid.id not in out:
+            out.append(solid.id)
+    return tuple(out)

@@ -8,6 +8,7 @@ Accepted unit strings (spelling is exact; ``µ`` and ``u`` both mean micro):
 ``umol/L`` / ``µmol/L``   1e-6 mol/L
 ``mg/L``                  mg of the system's mass-basis formula (or of the ion) per litre
 ``mg/L as X``             mg of X per litre, X the system's "as" basis (N, P, C, Si, Cl2...)
+``ug/L`` / ``µg/L``       1e-3 mg/L (metals such as lead and copper are reported so)
 ``meq/L``                 milliequivalents per litre: strong ions only, |z| eq per mol
 ========================  ===========================================================
 
@@ -53,11 +54,11 @@ def accepted_units(item) -> list[str]:
 
     >>> from types import SimpleNamespace as NS
     >>> accepted_units(NS(mass_basis_g_per_mol=96.06, as_formula="S", as_g_per_mol=32.06, species=()))
-    ['mol/L', 'mmol/L', 'umol/L', 'mg/L', 'mg/L as S']
+    ['mol/L', 'mmol/L', 'umol/L', 'mg/L', 'ug/L', 'mg/L as S']
     """
     units = ["mol/L", "mmol/L", "umol/L"]
     if _mass_g_per_mol(item):
-        units.append("mg/L")
+        units += ["mg/L", "ug/L"]
     if getattr(item, "as_formula", None) and getattr(item, "as_g_per_mol", None):
         units.append(f"mg/L as {item.as_formula}")
     if _is_ion(item) and getattr(item, "charge", 0):
@@ -97,15 +98,15 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
     if u in _SCALE:
         return _SCALE[u]
     name = getattr(item, "name", getattr(item, "id", "this item"))
-    if u == "mg/L":
+    if u in ("mg/L", "ug/L", "µg/L", "μg/L"):
         m = _mass_g_per_mol(item)
         if not m:
             raise InputError(
-                f"{field}: 'mg/L' needs a molar mass, and {name} has none; use one of "
+                f"{field}: '{u}' needs a molar mass, and {name} has none; use one of "
                 + ", ".join(accepted_units(item)),
                 field=field,
             )
-        return 1e-3 / m
+        return (1e-3 if u == "mg/L" else 1e-6) / m
     if u.startswith("mg/L as "):
         basis = u[len("mg/L as "):].strip()
         as_formula = getattr(item, "as_formula", None)
@@ -125,7 +126,7 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
             )
         return 1e-3 / abs(item.charge)
     raise UnknownIdError(
-        f"{field}: unknown unit {unit!r}; known: mol/L, mmol/L, umol/L, mg/L, mg/L as <basis>, meq/L",
+        f"{field}: unknown unit {unit!r}; known: mol/L, mmol/L, umol/L, mg/L, ug/L, mg/L as <basis>, meq/L",
         field=field,
     )
 
