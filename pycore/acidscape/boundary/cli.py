@@ -4,6 +4,7 @@ Commands
 --------
 solve FILE|-          read a scenario (JSON) and print the water's equilibrium as JSON
 systems               print the library of acid-base systems and strong ions as JSON
+solids                print the solids (solubility constants, temperature data, citations) as JSON
 titrate FILE --titrant ID [--titrant-M C] [--sample-mL V] [--to-pH X] [--points N]
                       titration curve (points, equivalence points) as JSON
 dose FILE --chemical ID --target-pH X [--strength-pct S] [--density-kg-per-L D]
@@ -48,6 +49,7 @@ def _add_commands(sub) -> None:
     p = sub.add_parser("solve", help="equilibrium of a water scenario (JSON file or - for stdin)")
     p.add_argument("file", metavar="FILE")
     sub.add_parser("systems", help="list the acid-base systems and strong ions as JSON")
+    sub.add_parser("solids", help="list the solids with their constants and citations as JSON")
     sub.add_parser("version", help="print the version")
     t = sub.add_parser("titrate", help="titration curve of a water scenario with a titrant")
     t.add_argument("file", metavar="FILE")
@@ -81,20 +83,24 @@ def run(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     try:
         if args.command == "solve":
-            from ..boundary.api import solve
+            from .api import solve
 
             _print(solve(_read_json(args.file)))
         elif args.command == "systems":
             from ..data.library import ions_as_json, library_as_json
 
             _print({"systems": library_as_json(), "ions": ions_as_json()})
+        elif args.command == "solids":
+            from ..data.library import solids_as_json
+
+            _print({"solids": solids_as_json()})
         elif args.command == "titrate":
-            from ..boundary.api import titrate
+            from .api import titrate
 
             _print(titrate({"scenario": _read_json(args.file), "titrant": args.titrant, "titrant_M": args.titrant_M,
                             "sample_mL": args.sample_mL, "to_pH": args.to_pH, "points": args.points}))
         elif args.command == "dose":
-            from ..boundary.api import dose
+            from .api import dose
 
             _print(dose({"scenario": _read_json(args.file), "chemical": args.chemical, "target_pH": args.target_pH,
                          "strength_pct": args.strength_pct, "density_kg_per_L": args.density_kg_per_L,
