@@ -1,0 +1,161 @@
+"""The general equilibrium model (acidscape.science.model): invariants and textbook cases.
+
+Independent checks of whole waters against a separate scipy solver are in
+tests/test_model_reference.py; this file checks the model's own promises on tableaux written
+here by hand (constants quoted with their sources).
+"""
+
+from __future__ import annotations
+
+import math
+import random
+
+import pytest
+
+from acidscape.science.activity import gamma_function
+from acidscape.science.model import Solid, Species, Tableau, equilibrium
+from acidscape.science.solver import Component, Ion, equilibrate
+
+T25 = 298.15
+PKW = 13.995  # Bandura & Lvov (2006) at 25 °C (from memory)
+PKA_CARB = (6.352, 10.329)  # Plummer & Busenberg (1982) at 25 °C (from memory)
+LOGK_CACO3 = 3.224  # CaCO3°: Plummer & Busenberg (1982) at 25 °C (from memory)
+LOGK_CAHCO3 = 1.106  # Ca2+ + HCO3- = CaHCO3+: Plummer & Busenberg (1982) (from memory)
+LOGKSP_CALCITE = -8.48  # Plummer & Busenberg (1982) at 25 °C (from memory)
+
+
+def _carbonate_water(complexes=True):
+    """H+, CO3-2, Ca+2, Na+, Cl- with the Ca-carbonate pairs and calcite."""
+    comps = ("H+", "carbonate", "calcium", "sodium", "chloride")
+    species = [
+        Species("H+", ((0, 1),), 0.0, 1, 9.0, "water"),
+        Species("OH-", ((0, -1),), -PKW, -1, 3.5, "water"),
+        Species("CO3-2", ((1, 1),), 0.0, -2, 4.5, "acid-base", "carbonate"),
+        Species("HCO3-", ((1, 1), (0, 1)), PKA_CARB[1], -1, 4.5, "acid-base", "carbonate"),
+        Species("H2CO3*", ((1, 1), (0, 2)), sum(PKA_CARB), 0, None, "acid-base", "carbonate"),
+        Species("Ca+2", ((2, 1),), 0.0, 2, 6.0, "free ion"),
+        Species("Na+", ((3, 1),), 0.0, 1, 4.5, "free ion"),
+        Species("Cl-", ((4, 1),), 0.0, -1, 3.0, "free ion"),
+    ]
+    if complexes:
+        species += [Species("CaCO3", ((2, 1), (1, 1)), LOGK_CACO3, 0),
+                    Species("CaHCO3+", ((2, 1), (1, 1), (0, 1)), LOGK_CAHCO3 + PKA_CARB[1], 1)]
+    return Tableau(comps, (1, -2, 2, 1, -1), (9.0, 4.5, 6.0, 4.5, 3.0), tuple(species),
+                   (Solid("calcite", ((2, 1), (1, 1)), LOGKSP_CALCITE),))
+
+
+def _balances_hold(tab, sol, rtol=1e-12):
+    """Every mass balance and the charge balance close to rtol of their own scale."""
+    held = [0.0] * len(tab.components)
+    for sp, c in zip(tab.species, sol.conc):
+        for j, a in sp.stoich:
+            held[j] += abs(a) * c
+    for j in range(1, len(tab.components)):
+        assert abs(sol.residuals[j]) <= rtol * max(sol.totals[j], held[j], 1e-300), tab.components[j]
+    scale = sum(abs(sp.charge) * c for sp, c in zip(tab.species, sol.conc))
+    assert abs(sol.charge_residual) <= rtol * scale
+
+
+def test_pure_water_is_neutral():
+    # pH = pKw / 2 with ideal activities: the definition of neutrality (common practice).
+    tab = Tableau(("H+",), (1,), (9.0,), (Species("H+", ((0, 1),), 0.0, 1), Species("OH-", ((0, -1),), -PKW, -1)))
+    sol = equilibrium(tab, [0.0], T=T25, gamma_of=gamma_function(T25, "ideal"))
+    assert sol.pH == pytest.approx(PKW / 2, abs=1e-12)
+
+
+@pytest.mark.parametrize("model", ["ideal", "davies", "extended-debye-huckel"])
+def test_complexes_off_reproduces_the_acid_base_charge_balance(model):
+    # The acid-base-only water through the model equals the bracketed charge-balance solver.
+    rng = random.Random(8)
+    for _ in range(40):
+        ct, ca, na, cl = (10 ** rng.uniform(-6, -1.5) for _ in range(4))
+        tab = _carbonate_water(complexes=False)
+        lg = gamma_function(T25, model)
+        sol = equilibrium(tab, [0, ct, ca, na, cl], T=T25, gamma_of=lg)
+        old = equilibrate(
+            [Component("carbonate", "c", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), PKA_CARB, ct, (None, 4.5, 4.5))],
+            [Ion("ca", "Ca", 2, ca, 6.0), Ion("na", "Na", 1, na, 4.5), Ion("cl", "Cl", -1, cl, 3.0)],
+            T=T25, pKw=PKW, model=model)
+        assert sol.pH == pytest.approx(old.pH, abs=1e-9)
+        assert sol.I == pytest.approx(old.I, rel=1e-9)
+        _balances_hold(tab, sol)
+
+
+def test_ion_pairs_lower_free_calcium_and_ionic_strength():
+    # With CaCO3° and CaHCO3+ some calcium is bound, so free Ca and I fall (Stumm & Morgan §6).
+    tot = [0, 5e-3, 2e-3, 1e-3, 0.0]
+    lg = gamma_function(T25, "davies")
+    off = equilibrium(_carbonate_water(False), tot, T=T25, gamma_of=lg)
+    on = equilibrium(_carbonate_water(True), tot, T=T25, gamma_of=lg)
+    assert math.exp(on.free_ln[2]) < 0.98 * math.exp(off.free_ln[2])
+    assert on.I < off.I
+    _balances_hold(_carbonate_water(True), on)
+
+
+def test_calcite_precipitates_to_saturation_and_balances_close():
+    tab = _carbonate_water()
+    lg = gamma_function(T25, "davies")
+    tot = [0, 4e-3, 3e-3, 2e-3, 0.0]
+    free = equilibrium(tab, tot, T=T25, gamma_of=lg)
+    assert free.SI[0] > 0.3  # oversaturated when calcite may not form
+    sol = equilibrium(tab, tot, T=T25, gamma_of=lg, allow_solids=(0,))
+    assert sol.SI[0] == pytest.approx(0.0, abs=1e-10)
+    assert sol.solids[0] > 0
+    _balances_hold(tab, sol)
+    # every mole of calcite takes one Ca and one carbonate out of solution
+    ca_dissolved = sum(c * dict(sp.stoich).get(2, 0) for sp, c in zip(tab.species, sol.conc))
+    assert ca_dissolved + sol.solids[0] == pytest.approx(3e-3, rel=1e-12)
+
+
+def test_undersaturated_solid_stays_dissolved():
+    tab = _carbonate_water()
+    sol = equilibrium(tab, [0, 1e-4, 1e-4, 0, 0], T=T25, gamma_of=gamma_function(T25, "davies"), allow_solids=(0,))
+    assert sol.solids == {}
+    assert sol.SI[0] < 0
+
+
+def test_fixed_pH_holds_the_meter_reading():
+    tab = _carbonate_water()
+    sol = equilibrium(tab, [0, 2e-3, 1e-3, 0, 0], T=T25, gamma_of=gamma_function(T25, "davies"), pH=9.5,
+                      allow_solids=(0,))
+    assert sol.pH == pytest.approx(9.5, abs=1e-12)
+    assert sol.SI[0] == pytest.approx(0.0, abs=1e-10)
+
+
+def test_open_to_CO2_calcite_water_matches_the_textbook_pH():
+    # Calcite in equilibrium with air (pCO2 = 10^-3.5 atm) at 25 °C settles near pH 8.3
+    # (Stumm & Morgan 1996, §4.6, from memory: 8.3 with ion activity corrections).
+    tab = _carbonate_water()
+    KH = 10 ** -1.468  # CO2 Henry constant at 25 °C, Plummer & Busenberg (1982) (from memory)
+    h2co3 = KH * 10 ** -3.5
+    sol = equilibrium(tab, [0, 0, 5e-3, 0, 0], T=T25, gamma_of=gamma_function(T25, "davies"),
+                      fixed_species={4: h2co3}, allow_solids=(0,))
+    assert sol.SI[0] == pytest.approx(0.0, abs=1e-10)
+    assert 8.2 < sol.pH < 8.4
+    _balances_hold(tab, sol)
+
+
+def test_warm_start_gives_the_same_answer():
+    tab = _carbonate_water()
+    lg = gamma_function(T25, "davies")
+    a = equilibrium(tab, [0, 3e-3, 1e-3, 1e-3, 1e-3], T=T25, gamma_of=lg)
+    b = equilibrium(tab, [0, 3e-3, 1e-3, 1e-3, 1e-3], T=T25, gamma_of=lg, guess=a.state)
+    assert b.pH == pytest.approx(a.pH, abs=1e-12)
+    assert b.iterations <= a.iterations
+
+
+@pytest.mark.sweep
+def test_never_fails_over_a_wide_range():
+    # Totals 1e-10..1 mol/L, any pH the totals give, solids on or off: always an answer.
+    rng = random.Random(2026)
+    tab = _carbonate_water()
+    for _ in range(300):
+        tot = [0] + [10 ** rng.uniform(-10, 0) for _ in range(4)]
+        allow = (0,) if rng.random() < 0.5 else ()
+        model = rng.choice(["ideal", "davies"])
+        pH = rng.uniform(1, 13) if rng.random() < 0.3 else None
+        sol = equilibrium(tab, tot, T=T25, gamma_of=gamma_function(T25, model), allow_solids=allow, pH=pH)
+        if pH is None:
+            _balances_hold(tab, sol, rtol=1e-10)
+        if allow:
+            assert sol.SI[0] <= 1e-9
