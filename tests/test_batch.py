@@ -1,22 +1,34 @@
 """Batch of CSV samples: each row agrees with acidscape.boundary.api.solve / dose run on its own scenario.
 
 The oracle is the core's single-water entry point (``acidscape.boundary.api.solve``), which the other
-test files check against published tables; here we check the CSV reading, the column mapping,
-unit handling, row numbering and error reporting around it. Sample values are generated, not
-taken from any real plant.
+test files check against published tables; here we check the CSV reading (delimiters, decimal
+commas, BOM, CRLF, quotes), the column mapping and its guess, unit handling, blank cells, row
+numbering, error and dose-status reporting, rounding, the template, processes and the command
+line around it. Sample values are generated, not taken from any real plant.
 """
 
 from __future__ import annotations
 
 import csv
 import io
+import json
+import math
 import random
+import subprocess
+import sys
+from pathlib import Path
 
 import pytest
 
 from acidscape.boundary import api
-from acidscape.boundary.batch import batch_chunk, batch_csv, read_header, run_rows
+from acidscape.boundary.batch import (
+    DOSE_CAUTION, DOSE_CAUTIONS, batch_chunk, batch_csv, compute_records, detect_dialect, guess_mapping,
+    read_header, result_columns, run_rows, species_column, template_csv,
+)
+from acidscape.data import library
 from acidscape.errors import InputError
+
+REPO = Path(__file__).resolve().parents[1]
 
 MAPPING = {
     "id": "Sample",
@@ -51,6 +63,13 @@ def scenario_of(cells: dict) -> dict:
     }
 
 
+def conc_of(result: dict) -> dict:
+    return {(s.get("system"), s["name"]): s["concentration_M"] for s in result["species"]}
+
+
+# ------------------------------------------------------------------ rows against api.solve
+
+
 def test_each_row_equals_solve_of_its_own_scenario():
     text = generated_csv(25)
     out = run_rows(text, MAPPING)
@@ -64,9 +83,9 @@ def test_each_row_equals_solve_of_its_own_scenario():
         split = want["alkalinity"]["split_from_speciation"]
         assert row["bicarbonate_alk_mg_per_L_as_CaCO3"] == split["bicarbonate_mg_per_L_as_CaCO3"]
         assert row["DIC_mg_per_L_as_C"] == want["inferred_from_measurements"]["DIC_mg_per_L_as_C"]
-        conc = {(s["system"], s["name"]): s["concentration_M"] for s in want["species"]}
-        assert row["phosphate:HPO4-2_M"] == conc[("phosphate", "HPO4-2")]
-        assert row["ammonium:NH3_M"] == conc[("ammonium", "NH3")]
+        conc = conc_of(want)
+        assert row["phosphate_HPO4_mol_per_L"] == conc[("phosphate", "HPO4-2")]
+        assert row["ammonium_NH3_mol_per_L"] == conc[("ammonium", "NH3")]
         # The measured pH is reproduced (the inferred water is electroneutral at it).
         assert row["pH"] == pytest.approx(float(cells["pH"]), abs=1e-6)
 
@@ -74,8 +93,9 @@ def test_each_row_equals_solve_of_its_own_scenario():
 def test_alkalinity_reported_back_is_the_lab_value():
     # Fixed end point pH 4.5 total alkalinity (Standard Methods 2320 B, common practice): the
     # water inferred from pH + alkalinity must titrate back to the number the lab wrote down.
-    out = run_rows(generated_csv(10, seed=3), MAPPING)
-    for cells, row in zip(csv.DictReader(io.StringIO(generated_csv(10, seed=3))), out["rows"]):
+    text = generated_csv(10, seed=3)
+    out = run_rows(text, MAPPING)
+    for cells, row in zip(csv.DictReader(io.StringIO(text)), out["rows"]):
         assert row["alkalinity_mg_per_L_as_CaCO3"] == pytest.approx(float(cells["Alk"]), rel=1e-9)
 
 
@@ -85,6 +105,11 @@ def test_fahrenheit_and_blank_temperature():
     m = {"id": "id", "pH": "pH", "temperature": {"column": "T", "unit": "F", "default_C": 10}}
     rows = run_rows(text, m)["rows"]
     assert [r["temperature_C"] for r in rows] == pytest.approx([15.0, 25.0, 10.0], abs=1e-12)
+    # Without a default a blank temperature is that row's error, not a silent 25 °C.
+    out = run_rows(text, {"id": "id", "pH": "pH", "temperature": {"column": "T", "unit": "F"}})
+    assert [(e["row"], e["message"][:22]) for e in out["errors"]] == [(4, "temperature is missing")]
+    # No temperature column at all: every row at default_C (25 °C when not given).
+    assert run_rows("pH\n7\n", {"pH": "pH"})["rows"][0]["temperature_C"] == 25.0
 
 
 def test_speciation_at_measured_pH_and_equilibrium_modes():
@@ -94,7 +119,7 @@ def test_speciation_at_measured_pH_and_equilibrium_modes():
     want = api.solve({"temperature_C": 25.0, "activity": "davies", "pH": 8.1,
                       "systems": [{"id": "carbonate", "total": 2.0, "unit": "mmol/L"}]})
     assert fixed["pH"] == want["pH"] == 8.1
-    assert fixed["carbonate:HCO3-_M"] == [s for s in want["species"] if s["name"] == "HCO3-"][0]["concentration_M"]
+    assert fixed["carbonate_HCO3_mol_per_L"] == conc_of(want)[("carbonate", "HCO3-")]
     # DIC in mg/L as C from the carbonate total: 2 mmol/L x 12.011 g/mol (IUPAC atomic weight).
     assert fixed["DIC_mg_per_L_as_C"] == pytest.approx(24.022, rel=1e-12)
     eq = run_rows(text, {"mode": "equilibrium", "systems": systems})["rows"][0]
@@ -103,14 +128,246 @@ def test_speciation_at_measured_pH_and_equilibrium_modes():
     assert eq["pH"] == want_eq["pH"] and eq["pH_measured"] is None
 
 
-def test_dose_columns_equal_api_dose():
-    text = generated_csv(4, seed=11)
+# ------------------------------------------------------------------------ reading the CSV
+
+
+def semicolon_form(text: str) -> str:
+    """The same samples as a spreadsheet in a decimal-comma locale writes them: ';', '12,5',
+    a byte-order mark, CRLF line ends and a quoted ID holding the delimiter."""
+    rows = list(csv.reader(io.StringIO(text)))
+    buf = io.StringIO()
+    w = csv.writer(buf, delimiter=";", lineterminator="\r\n", quoting=csv.QUOTE_MINIMAL)
+    w.writerow(rows[0])
+    for r in rows[1:]:
+        w.writerow([f"{r[0]}; east"] + [c.replace(".", ",") for c in r[1:]])
+    return "\ufeff" + buf.getvalue()
+
+
+def test_semicolon_decimal_comma_bom_crlf_quotes_read_like_the_plain_file():
+    plain = generated_csv(12, seed=21)
+    local = semicolon_form(plain)
+    assert detect_dialect(local) == (";", ",")
+    a, b = run_rows(plain, MAPPING), run_rows(local, MAPPING)
+    assert b["errors"] == [] and b["delimiter"] == ";" and b["decimal"] == ","
+    for ra, rb in zip(a["rows"], b["rows"]):
+        assert rb["sample"] == ra["sample"] + "; east"
+        assert {k: v for k, v in rb.items() if k != "sample"} == {k: v for k, v in ra.items() if k != "sample"}
+    h = read_header(local)
+    assert h["columns"][0] == "Sample" and h["rows"] == 12 and h["guess"]["decimal"] == ","
+
+
+def test_tab_and_quoted_line_break():
+    text = 'id\tpH\tnote\r\n"two\nlines"\t7,25\tx\r\nb\t8.5\t\r\n'
+    out = run_rows(text, {"id": "id", "pH": "pH"})
+    assert out["delimiter"] == "\t" and out["decimal"] == ","
+    assert [(r["row"], r["sample"], r["pH_measured"]) for r in out["rows"]] == [(2, "two\nlines", 7.25), (3, "b", 8.5)]
+
+
+def test_decimal_comma_in_a_comma_file_only_when_the_mapping_says_so():
+    text = 'id,pH\na,"7,5"\n'
+    out = run_rows(text, {"id": "id", "pH": "pH"})
+    assert out["errors"][0]["message"].startswith("pH '7,5' is not a number (a decimal comma")
+    ok = run_rows(text, {"id": "id", "pH": "pH", "decimal": ","})
+    assert ok["errors"] == [] and ok["rows"][0]["pH"] == 7.5
+
+
+def test_thousands_separators_and_detection_limits_are_errors_not_guesses():
+    text = "id;pH;Alk\na;7,5;1.234,5\nb;7,5;<5\nc;7,5;1_000\n"
+    out = run_rows(text, {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}})
+    msg = {e["sample"]: e["message"] for e in out["errors"]}
+    assert "thousands separators" in msg["a"] and "'<5' is not a number" in msg["b"] and "detection limit" in msg["b"]
+    assert "'1_000'" in msg["c"]
+
+
+# --------------------------------------------------------------------------- blank cells
+
+
+def test_missing_alkalinity_is_that_rows_error_never_a_zero():
+    text = "id,pH,Alk\na,7.5,100\nb,7.5,\nc,7.5,   \nd,7.5\n"
+    m = {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}}
+    out = run_rows(text, m)
+    assert [(e["row"], e["sample"], e["message"]) for e in out["errors"]] == [
+        (3, "b", "alkalinity is missing"), (4, "c", "alkalinity is missing"), (5, "d", "alkalinity is missing")]
+    assert out["rows"][0]["alkalinity_mg_per_L_as_CaCO3"] == pytest.approx(100.0, rel=1e-9)
+    assert all("pH" not in r for r in out["rows"][1:])  # nothing computed for the bad rows
+    nopH = run_rows("id,pH\na,\n", {"id": "id", "pH": "pH"})
+    assert nopH["errors"] == [{"row": 2, "sample": "a", "message": "pH is missing"}]
+
+
+def test_blank_totals_omit_zero_or_error_as_the_mapping_says():
+    text = "id,pH,Ca\na,7.5,\n"
+    base = {"id": "id", "pH": "pH", "activity": "ideal"}
+    omit = run_rows(text, {**base, "ions": [{"id": "Ca+2", "column": "Ca", "unit": "mg/L"}]})
+    want = api.solve({"temperature_C": 25.0, "activity": "ideal", "pH": 7.5})
+    assert omit["errors"] == [] and omit["rows"][0]["ionic_strength_M"] == want["ionic_strength_M"]
+    zero = run_rows(text, {**base, "ions": [{"id": "Ca+2", "column": "Ca", "unit": "mg/L", "blank": "zero"}]})
+    want0 = api.solve({"temperature_C": 25.0, "activity": "ideal", "pH": 7.5,
+                       "ions": [{"id": "Ca+2", "total": 0.0, "unit": "mol/L"}]})
+    assert zero["errors"] == [] and zero["rows"][0]["ionic_strength_M"] == want0["ionic_strength_M"]
+    err = run_rows(text, {**base, "ions": [{"id": "Ca+2", "column": "Ca", "unit": "mg/L", "blank": "error"}]})
+    assert err["errors"][0]["message"] == "calcium is missing"
+
+
+def test_conductivity_and_tds_set_the_ionic_strength():
+    # 1 mS/cm = 1000 uS/cm (SI prefixes, common practice).
+    text = "id,pH,EC,TDS\na,7.5,0.5,\nb,7.5,,300\nc,7.5,0.5,300\nd,7.5,,\n"
+    m = {"id": "id", "pH": "pH", "conductivity": {"column": "EC", "unit": "mS/cm"}, "tds": {"column": "TDS"}}
+    rows = {r["sample"]: r for r in run_rows(text, m)["rows"]}
+    base = {"temperature_C": 25.0, "activity": "davies", "pH": 7.5}
+    assert rows["a"]["ionic_strength_M"] == api.solve({**base, "conductance_uS_per_cm": 500.0})["ionic_strength_M"]
+    assert rows["b"]["ionic_strength_M"] == api.solve({**base, "tds_mg_per_L": 300.0})["ionic_strength_M"]
+    assert rows["c"]["ionic_strength_M"] == rows["a"]["ionic_strength_M"]  # conductivity first
+    assert rows["d"]["ionic_strength_M"] == api.solve(base)["ionic_strength_M"]
+
+
+# ------------------------------------------------------------------ ions, units, columns
+
+
+def test_word_and_formula_ion_ids_and_ug_per_L_give_the_same_rows():
+    text = "id,pH,Alk,Ca,Ca_ug\na,7.8,120,40,40000\n"
+    m = {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}}
+    by_formula = run_rows(text, {**m, "ions": [{"id": "Ca+2", "column": "Ca", "unit": "mg/L"}]})["rows"][0]
+    by_word = run_rows(text, {**m, "ions": [{"id": "calcium", "column": "Ca", "unit": "mg/L"}]})["rows"][0]
+    by_ug = run_rows(text, {**m, "ions": [{"id": "calcium", "column": "Ca_ug", "unit": "ug/L"}]})["rows"][0]
+    assert by_word == by_formula
+    # 1 ug = 1e-3 mg (SI prefixes): the same water to round-off.
+    assert by_ug["ionic_strength_M"] == pytest.approx(by_formula["ionic_strength_M"], rel=1e-12)
+
+
+def test_result_columns_are_words_without_charge_spelling():
+    cols = result_columns(["pH", "CT", "B"], {"pH": "pH", "systems": [
+        {"id": "carbonate", "column": "CT", "unit": "mmol/L"}, {"id": "boric", "column": "B", "unit": "mg/L as B"}],
+        "dose": {"chemical": "NaOH", "target_pH": 9}})
+    names = [c["name"] for c in cols]
+    assert "carbonate_CO3_mol_per_L" in names and "carbonate_H2CO3_mol_per_L" in names
+    assert "boric_BOH4_mol_per_L" in names and "dose_status" in names and "dose_cautions" in names
+    assert not any(ch in n for n in names for ch in ":+*()") and len(set(names)) == len(names)
+    hco3 = next(c for c in cols if c["name"] == "carbonate_HCO3_mol_per_L")
+    assert hco3 == {"name": "carbonate_HCO3_mol_per_L", "kind": "quantity", "system": "carbonate",
+                    "formula": "HCO3-", "unit": "mol/L"}
+    # Every species of every library system gets a distinct name.
+    for sid, system in library.systems().items():
+        spec = [species_column(sid, sp.formula) for sp in system.species]
+        assert len(set(spec)) == len(spec), sid
+
+
+@pytest.mark.parametrize("header, where, entry", [
+    ("Ca (mg/L)", "ions", ("calcium", "mg/L")),
+    ("Calcium hardness (mg/L as CaCO3)", "ions", ("calcium", "mg/L as CaCO3")),
+    ("Mg mg/L", "ions", ("magnesium", "mg/L")),
+    ("Na (meq/L)", "ions", ("sodium", "meq/L")),
+    ("K (ppm)", "ions", ("potassium", "mg/L")),
+    ("Chloride_mgL", "ions", ("chloride", "mg/L")),
+    ("SO4 (mmol/L)", "ions", ("sulfate", "mmol/L")),
+    ("NO3-N mg/L", "ions", ("nitrate", "mg/L as N")),
+    ("Nitrate (mg/L as NO3)", "ions", ("nitrate", "mg/L")),
+    ("PO4-P (mg/L)", "systems", ("phosphate", "mg/L as P")),
+    ("Orthophosphate as P", "systems", ("phosphate", "mg/L as P")),
+    ("NH3-N", "systems", ("ammonium", "mg/L as N")),
+    ("Free chlorine (mg/L)", "systems", ("hypochlorous", "mg/L as Cl2")),
+    ("Silica (mg/L as SiO2)", "systems", ("silicic", "mg/L")),
+])
+def test_guess_reads_names_and_units_of_totals(header, where, entry):
+    g = guess_mapping(["Sample", header])
+    word, unit = entry
+    want_id = word if where == "systems" else next(  # ion ids: word or formula, as the library has them
+        key for key, ion in library.ions().items() if key == word or ion.name.lower() == word)
+    assert g[where] == [{"id": want_id, "column": header, "unit": unit}]
+    assert g["id"] == "Sample"
+
+
+@pytest.mark.parametrize("header, key, value", [
+    ("pH (lab)", "pH", "pH (lab)"),
+    ("Temperature (°F)", "temperature", {"column": "Temperature (°F)", "unit": "F"}),
+    ("Temp_C", "temperature", {"column": "Temp_C", "unit": "C"}),
+    ("Alk_mgL_CaCO3", "alkalinity", {"column": "Alk_mgL_CaCO3", "unit": "mg/L as CaCO3"}),
+    ("Total alkalinity (meq/L)", "alkalinity", {"column": "Total alkalinity (meq/L)", "unit": "meq/L"}),
+    ("EC (uS/cm)", "conductivity", {"column": "EC (uS/cm)", "unit": "uS/cm"}),
+    ("Specific conductance mS/cm", "conductivity", {"column": "Specific conductance mS/cm", "unit": "mS/cm"}),
+    ("Total dissolved solids (mg/L)", "tds", {"column": "Total dissolved solids (mg/L)", "unit": "mg/L"}),
+])
+def test_guess_reads_measurements(header, key, value):
+    assert guess_mapping([header])[key] == value
+
+
+def test_guess_leaves_out_what_it_cannot_read_and_says_why():
+    g = guess_mapping(["Sample date", "Total chlorine", "Total hardness", "Ammonia (mg/L as NH3)", "Phosphate"])
+    assert g["systems"][0]["column"] == "Phosphate" and len(g["systems"]) == 1
+    assert set(g["unmapped"]) == {"Sample date", "Total chlorine", "Total hardness", "Ammonia (mg/L as NH3)"}
+    assert any("as P" in n for n in g["notes"]) and any("NH3" in n for n in g["notes"])
+
+
+def test_template_maps_every_column_and_its_example_row_computes():
+    text = template_csv()
+    header, example = list(csv.reader(io.StringIO(text)))
+    assert "invented" in example[0] and len(header) == len(example)
+    g = read_header(text)["guess"]
+    assert g["unmapped"] == [] and g["notes"] == []
+    mapped = {g["id"], g["pH"], g["temperature"]["column"], g["alkalinity"]["column"], g["conductivity"]["column"],
+              g["tds"]["column"]} | {e["column"] for e in g["systems"] + g["ions"]}
+    assert mapped == set(header)
+    out = run_rows(text, {k: v for k, v in g.items() if k not in ("notes", "unmapped")})
+    assert out["errors"] == [] and out["rows"][0]["sample"] == example[0]
+    # The semicolon template writes decimal commas and reads back to the same numbers.
+    local = template_csv(";")
+    plain = {k: v for k, v in g.items() if k not in ("notes", "unmapped", "delimiter", "decimal")}
+    assert "0,05" in local and run_rows(local, plain)["rows"] == out["rows"]
+    assert batch_chunk({"template": True})["csv"] == text
+
+
+# ---------------------------------------------------------------------------------- dose
+
+
+def test_dose_columns_equal_api_dose_and_carry_the_cautions():
+    text = generated_csv(6, seed=11)
     mapping = {**MAPPING, "dose": {"chemical": "NaOH", "target_pH": 9.6}}
     out = run_rows(text, mapping)
+    assert out["cautions"] == list(DOSE_CAUTIONS)
+    dosed = 0
     for cells, row in zip(csv.DictReader(io.StringIO(text)), out["rows"]):
+        if float(cells["pH"]) >= 9.6:
+            assert row["dose_status"] == "no dose needed"
+            continue
         d = api.dose({"scenario": scenario_of(cells), "chemical": "NaOH", "target_pH": 9.6})
         assert row["dose_NaOH_mg_per_L"] == d["dose_mg_per_L"]
         assert row["pH_after_dose"] == pytest.approx(9.6, abs=1e-6)
+        assert row["dose_status"] == "dosed" and row["dose_cautions"] == DOSE_CAUTION
+        dosed += 1
+    assert dosed >= 3
+    for words in ("PPE", "jar", "overfeed", "licensed operators"):
+        assert words in DOSE_CAUTION
+
+
+def test_rows_past_the_target_need_no_dose_and_are_no_error():
+    text = "id,pH,Alk\nlow,7.0,100\nhigh,9.0,100\nat,8.0,100\n"
+    m = {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}}
+    base = run_rows(text, {**m, "dose": {"chemical": "NaOH", "target_pH": 8.0}})
+    st = {r["sample"]: r for r in base["rows"]}
+    assert base["errors"] == []
+    assert st["low"]["dose_status"] == "dosed" and st["low"]["dose_NaOH_mg_per_L"] > 0
+    for s in ("high", "at"):
+        assert st[s]["dose_status"] == "no dose needed" and st[s]["dose_NaOH_mg_per_L"] == 0.0
+        assert st[s]["pH_after_dose"] == st[s]["pH"] and st[s]["dose_cautions"] == ""
+    acid = {r["sample"]: r for r in run_rows(text, {**m, "dose": {"chemical": "HCl", "target_pH": 7.5}})["rows"]}
+    assert acid["low"]["dose_status"] == "no dose needed" and acid["high"]["dose_status"] == "dosed"
+    # CO2 adds no alkalinity: it lowers the pH, so a water below the target needs none.
+    co2 = {r["sample"]: r for r in run_rows(text, {**m, "dose": {"chemical": "CO2", "target_pH": 7.5}})["rows"]}
+    assert co2["low"]["dose_status"] == "no dose needed" and co2["high"]["dose_status"] == "dosed"
+
+
+def test_a_target_beyond_the_chemical_is_not_reachable_and_an_error():
+    # NaHCO3 stops raising the pH near (pKa1 + pKa2)/2 = 8.3 (carbonate system, common practice).
+    text = "id,pH,Alk\na,7.0,100\n"
+    m = {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"},
+         "dose": {"chemical": "NaHCO3", "target_pH": 10.0}}
+    out = run_rows(text, m)
+    row = out["rows"][0]
+    assert row["dose_status"] == "not reachable" and row["error"].startswith("dose: ")
+    assert out["errors"] == [{"row": 2, "sample": "a", "message": row["error"]}]
+    assert row["pH"] == pytest.approx(7.0, abs=1e-6)  # the water itself is still reported
+
+
+# ------------------------------------------------------------------------ errors and rows
 
 
 def test_bad_rows_are_reported_by_spreadsheet_row_and_the_rest_compute():
@@ -124,7 +381,7 @@ def test_bad_rows_are_reported_by_spreadsheet_row_and_the_rest_compute():
     out = run_rows(text, MAPPING)
     bad = {e["row"]: (e["sample"], e["message"]) for e in out["errors"]}
     assert set(bad) == {3, 5, 6}
-    assert bad[3] == ("nopH", "pH is empty")
+    assert bad[3] == ("nopH", "pH is missing")
     assert bad[5][0] == "dl" and "'<0.01' is not a number" in bad[5][1]
     assert bad[6][0] == "hot" and "temperature_C" in bad[6][1] and "100" in bad[6][1]
     good = [r for r in out["rows"] if not r["error"]]
@@ -139,23 +396,93 @@ def test_chunks_concatenate_to_the_whole_run():
     # The page sends slices (header + its own lines) with row_offset instead of the whole text.
     lines = text.splitlines()
     sliced = [batch_chunk({"csv": "\n".join([lines[0]] + lines[1 + i:1 + i + 7]), "mapping": MAPPING,
-                           "row_offset": i}) for i in range(0, 30, 7)]
+                           "row_offset": i, "max_rows": 2}) for i in range(0, 30, 7)]
     assert "".join(p["csv"] for p in sliced) == whole["csv"]
-    full = batch_csv(text, MAPPING)
+    assert all(len(p["rows"]) == 2 for p in sliced)
+    full = batch_csv(text, MAPPING, digits=None)
     parsed = list(csv.DictReader(io.StringIO(full)))
     assert len(parsed) == 30
     assert [float(r["pH"]) for r in parsed] == [r["pH"] for r in whole["rows"]]  # repr round-trips
 
 
-def test_header_guess_and_delimiters():
-    h = read_header("Sample ID;pH;Temperature (°F);Alkalinity meq/L\nA;7;50;2\n")
-    assert h["delimiter"] == ";" and h["rows"] == 1
-    g = h["guess"]
-    assert g["id"] == "Sample ID" and g["pH"] == "pH"
-    assert g["temperature"] == {"column": "Temperature (°F)", "unit": "F"}
-    assert g["alkalinity"] == {"column": "Alkalinity meq/L", "unit": "meq/L"}
-    tab = run_rows("id\tpH\nx\t7.5\n", {"id": "id", "pH": "pH", "delimiter": "\t"})
-    assert tab["rows"][0]["pH"] == 7.5
+def test_compute_records_takes_dataframe_cells():
+    # Numbers and NaN (a blank cell as a dataframe holds it) as well as text.
+    out = compute_records(["id", "pH", "Alk"], [("a", 7.5, 100.0), ("b", 7.5, math.nan), ("c", "7,5", "100")],
+                          {"id": "id", "pH": "pH", "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}},
+                          row_numbers=[10, 11, 12], decimal=",")
+    assert [e["row"] for e in out["errors"]] == [11]
+    a, c = out["rows"][0], out["rows"][2]
+    assert {k: v for k, v in a.items() if k not in ("row", "sample")} == \
+        {k: v for k, v in c.items() if k not in ("row", "sample")}
+
+
+# ----------------------------------------------------------------------------- rounding
+
+
+def test_rounding_by_column_kind():
+    text = generated_csv(5, seed=9)
+    whole = run_rows(text, MAPPING)
+    rounded = list(csv.DictReader(io.StringIO(batch_csv(text, MAPPING))))  # default: 4 significant digits
+    full = list(csv.DictReader(io.StringIO(batch_csv(text, MAPPING, digits=0))))
+    six = list(csv.DictReader(io.StringIO(batch_csv(text, MAPPING, digits={"quantity": 6, "pH": 2}))))
+    for row, r4, rf, r6 in zip(whole["rows"], rounded, full, six):
+        assert float(rf["ionic_strength_M"]) == row["ionic_strength_M"]
+        assert r4["ionic_strength_M"] == repr(float(f"{row['ionic_strength_M']:.4g}"))
+        assert float(r4["phosphate_H2PO4_mol_per_L"]) == float(f"{row['phosphate_H2PO4_mol_per_L']:.4g}")
+        assert float(r6["DIC_mg_per_L_as_C"]) == float(f"{row['DIC_mg_per_L_as_C']:.6g}")
+        assert float(r4["pH"]) == round(row["pH"], 3) and float(r6["pH"]) == round(row["pH"], 2)
+        assert float(r4["temperature_C"]) == round(row["temperature_C"], 2)
+        assert r6["temperature_C"] == repr(row["temperature_C"]).removesuffix(".0") or \
+            float(r6["temperature_C"]) == row["temperature_C"]  # kinds not named stay in full
+        assert r4["row"] == rf["row"] and r4["sample"] == rf["sample"]
+    with pytest.raises(InputError) as err:
+        batch_csv(text, MAPPING, digits=40)
+    assert err.value.field == "digits"
+
+
+# ---------------------------------------------------------------- processes, command line
+
+
+def test_processes_give_the_same_text_in_input_order():
+    text = generated_csv(120, seed=13).replace("S00007,", "S00007bad,x", 1)
+    one = batch_csv(text, MAPPING, jobs=1)
+    assert batch_csv(text, MAPPING, jobs=2) == one
+    assert [r[1] for r in csv.reader(io.StringIO(one))][1:] == [f"S{i:05d}" if i != 7 else "S00007bad"
+                                                                 for i in range(120)]
+
+
+def _cli(*args, cwd):
+    return subprocess.run([sys.executable, "-m", "acidscape", "batch", *args], cwd=cwd, capture_output=True,
+                          text=True, timeout=300)
+
+
+def test_command_line_batch(tmp_path):
+    text = generated_csv(40, seed=17).replace("S00003,", "S00003,,", 1).replace(",,", ",", 1)
+    lines = text.splitlines()
+    lines[4] = lines[4].split(",", 1)[0] + ",," + ",".join(lines[4].split(",")[2:])  # S00003: blank pH
+    text = "\n".join(lines) + "\n"
+    (tmp_path / "in.csv").write_text(semicolon_form(text), encoding="utf-8")
+    (tmp_path / "map.json").write_text(json.dumps(MAPPING))
+    one = _cli("in.csv", "--mapping", "map.json", "--out", "one.csv", cwd=tmp_path)
+    assert one.returncode == 0, one.stderr
+    assert "40 samples" in one.stderr and "rows 5" in one.stderr and "row 5 (S00003; east): pH is missing" in one.stderr
+    two = _cli("in.csv", "--mapping", "map.json", "--jobs", "2", "--out", "two.csv", cwd=tmp_path)
+    assert two.returncode == 0, two.stderr
+    assert (tmp_path / "two.csv").read_bytes() == (tmp_path / "one.csv").read_bytes()
+    want = batch_csv(semicolon_form(text), MAPPING)
+    assert (tmp_path / "one.csv").read_text(encoding="utf-8") == want
+    full = _cli("in.csv", "--mapping", "map.json", "--digits", "0", cwd=tmp_path)
+    assert full.stdout == batch_csv(semicolon_form(text), MAPPING, digits=0)
+    bad = _cli("in.csv", "--mapping", "nope.json", cwd=tmp_path)
+    assert bad.returncode == 2 and bad.stderr.startswith("error [--mapping]: cannot read")
+    (tmp_path / "bad.json").write_text(json.dumps({"pH": "PH"}))
+    bad = _cli("in.csv", "--mapping", "bad.json", cwd=tmp_path)
+    assert bad.returncode == 2 and "error [mapping.pH]" in bad.stderr
+    tpl = _cli("--template", cwd=tmp_path)
+    assert tpl.returncode == 0 and tpl.stdout == template_csv()
+
+
+# ------------------------------------------------------------------------------ bad input
 
 
 @pytest.mark.parametrize(
@@ -171,6 +498,12 @@ def test_header_guess_and_delimiters():
         ("pH\n7\n", {"pH": "pH", "alkalinity": {"column": "pH", "unit": "ppm"}}, "mapping.alkalinity.unit",
          "must be one of"),
         ("pH\n7\n", {"pH": "pH", "mode": "guess"}, "mapping.mode", "must be one of"),
+        ("pH\n7\n", {"pH": "pH", "alkalnity": {}}, "mapping.alkalnity", "unknown key"),
+        ("pH\n7\n", {"pH": "pH", "decimal": ";"}, "mapping.decimal", "decimal must be"),
+        ("pH\n7\n", {"pH": "pH", "ions": [{"id": "Ca+2", "column": "pH", "blank": "maybe"}]},
+         "mapping.ions[0].blank", "must be one of"),
+        ("pH\n7\n", {"pH": "pH", "conductivity": {"column": "pH", "unit": "S/m"}}, "mapping.conductivity.unit",
+         "must be one of"),
     ],
 )
 def test_bad_mapping_is_an_input_error_naming_the_field(text, mapping, field, words):
@@ -180,8 +513,6 @@ def test_bad_mapping_is_an_input_error_naming_the_field(text, mapping, field, wo
 
 
 def test_api_handle_reports_errors_as_json():
-    import json
-
     reply = json.loads(api.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "mapping": {"pH": "nope"}})))
     assert reply["ok"] is False and reply["error"]["field"] == "mapping.pH"
     ok = json.loads(api.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "header_only": True})))

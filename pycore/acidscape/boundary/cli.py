@@ -10,6 +10,9 @@ titrate FILE --titrant ID [--titrant-M C] [--sample-mL V] [--to-pH X] [--points 
 dose FILE --chemical ID --target-pH X [--strength-pct S] [--density-kg-per-L D]
      [--flow VALUE --flow-unit U]
                       dose to a target pH, product feed and the water after, as JSON
+batch IN.csv --mapping MAP.json [--jobs N] [--out OUT.csv] [--digits D]
+                      one row of results per sample of a CSV, as CSV (see acidscape.boundary.batch);
+                      bad rows are listed by spreadsheet row on stderr; batch --template: a CSV to fill in
 version               print the package version
 
 Errors go to stderr as one line ``error [field]: message`` and the exit status is 2
@@ -67,6 +70,15 @@ def _add_commands(sub) -> None:
     d.add_argument("--density-kg-per-L", type=float, default=None, metavar="D", help="product density [kg/L]")
     d.add_argument("--flow", type=float, default=None, metavar="VALUE", help="plant flow")
     d.add_argument("--flow-unit", default=None, metavar="U", help="m3/d, m3/h, L/s, L/min, MGD or gpm")
+    b = sub.add_parser("batch", help="results of every sample of a CSV, as CSV")
+    b.add_argument("file", metavar="IN.csv", nargs="?", help="CSV of samples (- for stdin)")
+    b.add_argument("--mapping", metavar="MAP.json", help="which column holds what (JSON)")
+    b.add_argument("--jobs", type=int, nargs="?", const=0, default=1, metavar="N",
+                   help="processes (0 or no number: one per core); the output does not depend on it")
+    b.add_argument("--out", default="-", metavar="OUT.csv", help="result CSV (default: stdout)")
+    b.add_argument("--digits", type=int, default=None, metavar="D",
+                   help="significant digits of quantities (default 4; 0: full precision)")
+    b.add_argument("--template", action="store_true", help="write a CSV template to fill in instead")
     for add in extra_commands:
         add(sub)
 
@@ -105,6 +117,10 @@ def run(argv: list[str] | None = None) -> int:
             _print(dose({"scenario": _read_json(args.file), "chemical": args.chemical, "target_pH": args.target_pH,
                          "strength_pct": args.strength_pct, "density_kg_per_L": args.density_kg_per_L,
                          "flow": args.flow, "flow_unit": args.flow_unit}))
+        elif args.command == "batch":
+            from .batch import run_cli
+
+            return run_cli(args)
         elif args.command == "version":
             _print({"acidscape": __version__})
         else:
