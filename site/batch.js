@@ -1,15 +1,36 @@
 // Section "Many samples at once": reads a CSV (pasted or from a file), asks the core for its
-// columns, and streams the samples to the worker in chunks (acidscape.boundary.batch.batch_chunk), so a
-// file of 10,000 lines never blocks the page: between chunks the progress bar moves and the
-// first rows of the table appear. The downloaded CSV is the header plus the core's own CSV
-// lines of every chunk, so it is byte for byte what acidscape.boundary.batch.batch_csv gives.
+// columns and a guessed mapping, and streams the samples to Python in chunks
+// (acidscape.boundary.batch.batch_chunk), so a file of 10,000 lines never blocks the page: the
+// progress bar moves and the first rows of the table appear as chunks come back.
+//
+// A file of HELPER_MIN_ROWS lines or more also starts extra Python workers (one per further
+// core, at most MAX_HELPERS) as soon as its columns are read; chunks then go to whichever worker
+// is free and are put back in input order. The downloaded CSV is the header plus the core's own
+// CSV lines of every chunk, so it is what acidscape.boundary.batch.batch_csv gives with the same
+// digits, whichever worker computed a chunk.
 
 import { downloadBlob, stamp } from "./export.js";
+import { startPython } from "./py.js";
+import { SHOWN_ROWS } from "./batch-view.js";
 
-/** Samples sent to the worker per request. */
-export const CHUNK_ROWS = 250;
+/** Samples sent to a worker per request. */
+export const CHUNK_ROWS = 400;
 /** Largest CSV accepted [characters] (about 20 MB). */
 export const MAX_CSV_CHARS = 20_000_000;
+/** A file with at least this many sample lines gets extra workers (each is one more Python). */
+export const HELPER_MIN_ROWS = 1000;
+/** At most this many extra workers. */
+export const MAX_HELPERS = 3;
+
+/**
+ * Extra workers worth starting on this device: one per core beyond the first, at most MAX_HELPERS.
+ *
+ * @param {number} [cores]  logical cores (navigator.hardwareConcurrency)
+ * @returns {number}
+ */
+export function helperCount(cores = globalThis.navigator?.hardwareConcurrency || 1) {
+  return Math.max(0, Math.min(MAX_HELPERS, Math.floor(cores) - 1));
+}
 
 /**
  * Split CSV text into records (one per sample line), keeping quoted line breaks inside their
@@ -47,14 +68,16 @@ function pyCsvCell(text) {
  * Mount the section.
  *
  * @param {object} deps
- * @param {{call: Function}} deps.py  the core
+ * @param {{call: Function}} deps.py  the core (the page's shared worker)
  * @param {import("./batch-view.js").BatchView} deps.view  its DOM
  * @param {{id: string, name: string, units: string[]}[]} deps.systems  library systems
  * @param {{id: string, name: string, units: string[]}[]} deps.ions  library strong ions
  * @param {{id: string, name: string}[]} deps.chemicals  dosing chemicals
- * @returns {{run: () => Promise<void>}}
+ * @param {() => {ready: Promise<object>, call: Function, terminate: Function}} [deps.startHelper]
+ *        starts one more Python worker (default: py.js startPython)
+ * @returns {{run: () => Promise<void>, readColumns: () => Promise<boolean>}}
  */
-export function mountBatch({ py, view, systems, ions, chemicals }) {
+export function mountBatch({ py, view, systems, ions, chemicals, startHelper = () => startPython() }) {
   view.setLibrary(
     [
       ...(systems || []).map((s) => ({ id: s.id, name: s.name, units: s.units || ["mmol/L"], kind: "system" })),
@@ -64,6 +87,28 @@ export function mountBatch({ py, view, systems, ions, chemicals }) {
   );
   let stopRequested = false;
   let resultCsv = null;
+  /** @type {{py: object, ready: boolean, failed: boolean}[]} */
+  const helpers = [];
+  let joinRun = null; // while a batch runs: adds a lane for a helper that has just become ready
+
+  function warmHelpers(sampleLines) {
+    if (sampleLines < HELPER_MIN_ROWS) return;
+    const want = helperCount();
+    while (helpers.length < want) {
+      const entry = { py: startHelper(), ready: false, failed: false };
+      helpers.push(entry);
+      entry.py.ready.then(
+        () => {
+          entry.ready = true;
+          view.setHelpers(helpers.filter((h) => h.ready && !h.failed).length);
+          if (joinRun) joinRun(entry);
+        },
+        () => {
+          entry.failed = true;
+        },
+      );
+    }
+  }
 
   async function readColumns() {
     const text = view.el["batch-text"].value;
@@ -77,7 +122,9 @@ export function mountBatch({ py, view, systems, ions, chemicals }) {
     const { header, records } = splitRecords(text);
     try {
       const info = await py.call("batch_chunk", { csv: `${header}\n${records.slice(0, 5).join("\n")}`, header_only: true });
-      view.setColumns(info.columns, records.filter((r) => r.trim()).length, info.guess);
+      const lines = records.filter((r) => r.trim()).length;
+      view.setColumns(info.columns, lines, info.guess);
+      warmHelpers(lines);
       return true;
     } catch (error) {
       view.error(`The CSV could not be read: ${error?.message || error}`);
@@ -97,33 +144,82 @@ export function mountBatch({ py, view, systems, ions, chemicals }) {
       return;
     }
     const { header, records } = splitRecords(text);
+    const digits = view.digits();
+    delete view.el["batch-progress"].dataset.state;
     view.clearResults();
     view.setRunning(true);
     stopRequested = false;
     resultCsv = null;
+    const starts = [];
+    for (let i = 0; i < records.length; i += CHUNK_ROWS) starts.push(i);
+    const results = new Array(starts.length);
+    const retry = [];
     const pieces = [];
+    let next = 0;
+    let rendered = 0;
     let columns = null;
     let bad = 0;
     let done = 0;
+    let failure = null;
+    let workersUsed = 0;
     const t0 = performance.now();
     view.progress(0, records.length);
-    try {
-      for (let i = 0; i < records.length; i += CHUNK_ROWS) {
-        if (stopRequested) break;
-        const slice = records.slice(i, i + CHUNK_ROWS);
-        const out = await py.call("batch_chunk", { csv: `${header}\n${slice.join("\n")}`, mapping, row_offset: i });
+
+    const request = (k) => {
+      const i = starts[k];
+      return {
+        csv: `${header}\n${records.slice(i, i + CHUNK_ROWS).join("\n")}`,
+        mapping,
+        row_offset: i,
+        digits,
+        max_rows: i < SHOWN_ROWS ? CHUNK_ROWS : 0, // later chunks only feed the download
+      };
+    };
+    const flush = () => {
+      while (rendered < results.length && results[rendered]) {
+        const out = results[rendered];
+        results[rendered] = true; // keep the slot filled, drop the reply
         if (!columns) {
           columns = out.columns;
-          view.setHeader(columns);
+          view.setHeader(out.column_info || out.columns.map((name) => ({ name })));
+          view.showCautions(out.cautions || null);
         }
         pieces.push(out.csv);
         view.addRows(columns, out.rows);
         view.addErrors(out.errors);
         bad += out.errors.length;
-        done = Math.min(records.length, i + slice.length);
-        view.progress(done, records.length);
-        await new Promise((resolve) => setTimeout(resolve, 0)); // let the page paint between chunks
+        done = Math.min(records.length, starts[rendered] + CHUNK_ROWS);
+        rendered += 1;
       }
+      view.progress(done, records.length);
+    };
+    const lane = async (worker, isHelper) => {
+      workersUsed += 1;
+      while (!stopRequested && !failure && (retry.length || next < starts.length)) {
+        const k = retry.length ? retry.pop() : next++;
+        try {
+          results[k] = await worker.call("batch_chunk", request(k));
+        } catch (error) {
+          if (isHelper && error?.type === "BootError") {
+            retry.push(k); // a helper that died: another worker takes its chunk
+            return;
+          }
+          failure = failure || error;
+          return;
+        }
+        flush();
+      }
+    };
+    const lanes = [lane(py, false)];
+    for (const h of helpers) if (h.ready && !h.failed) lanes.push(lane(h.py, true));
+    joinRun = (h) => lanes.push(lane(h.py, true));
+    try {
+      for (let seen = 0; seen < lanes.length; ) {
+        seen = lanes.length;
+        await Promise.all(lanes);
+      }
+      joinRun = null;
+      if (failure) throw failure;
       const seconds = (performance.now() - t0) / 1000;
       if (columns) {
         resultCsv = `${columns.map(pyCsvCell).join(",")}\n${pieces.join("")}`;
@@ -132,12 +228,16 @@ export function mountBatch({ py, view, systems, ions, chemicals }) {
       const rate = done / Math.max(seconds, 1e-3);
       view.finished(
         `${stopRequested ? "Stopped after" : "Done:"} ${done.toLocaleString("en")} of ${records.length.toLocaleString("en")} lines in ${seconds.toFixed(1)} s ` +
-          `(${Math.round(rate).toLocaleString("en")} per second); ${bad ? `${bad} row${bad === 1 ? "" : "s"} could not be calculated (listed below)` : "every row calculated"}.`,
+          `(${Math.round(rate).toLocaleString("en")} per second${workersUsed > 1 ? `, ${workersUsed} workers` : ""}); ` +
+          `${bad ? `${bad} row${bad === 1 ? "" : "s"} could not be calculated (listed below)` : "every row calculated"}.`,
       );
-      view.el["batch-progress"].dataset.done = String(done);
-      view.el["batch-progress"].dataset.seconds = seconds.toFixed(3);
-      view.el["batch-progress"].dataset.state = stopRequested ? "stopped" : "finished";
+      const bar = view.el["batch-progress"];
+      bar.dataset.done = String(done);
+      bar.dataset.seconds = seconds.toFixed(3);
+      bar.dataset.workers = String(workersUsed);
+      bar.dataset.state = stopRequested ? "stopped" : "finished";
     } catch (error) {
+      joinRun = null;
       view.error(`The batch stopped: ${error?.message || error}`);
       view.el["batch-progress"].dataset.state = "failed";
     } finally {
@@ -163,6 +263,14 @@ export function mountBatch({ py, view, systems, ions, chemicals }) {
   });
   view.el["batch-download"].addEventListener("click", () => {
     if (resultCsv) downloadBlob(view.doc, new Blob([resultCsv], { type: "text/csv" }), `acidscape-batch-${stamp()}.csv`);
+  });
+  view.el["batch-template"].addEventListener("click", async () => {
+    try {
+      const out = await py.call("batch_chunk", { template: true });
+      downloadBlob(view.doc, new Blob([out.csv], { type: "text/csv" }), "acidscape-batch-template.csv");
+    } catch (error) {
+      view.error(`The template could not be made: ${error?.message || error}`);
+    }
   });
   return { run, readColumns };
 }

@@ -1,10 +1,14 @@
-"""End-to-end: 10,000 generated samples through the page's batch section.
+"""End-to-end: a few hundred generated samples through the page's batch section.
 
-The page streams the CSV to the worker in chunks; its downloaded CSV must agree with
-``acidscape.boundary.batch.batch_csv`` run on the same text in this process (the core is the oracle:
-same columns, rows, IDs and messages, numbers to round-off),
-bad rows must be listed by their spreadsheet row, and the page must keep answering while the
-batch runs. Sample values are generated at random, not taken from any real plant.
+The file is written as a spreadsheet in a decimal-comma locale exports it (semicolons, decimal
+commas, a byte-order mark, CRLF, a quoted ID holding the delimiter) with units in the column
+names. The page must recognise the columns, stream the rows to the worker(s), list bad rows by
+their spreadsheet row, say "no dose needed" where a water is past the dose target, show the
+cautions with the dose, and download what ``acidscape.boundary.batch.batch_csv`` gives in this
+process for the same text and mapping (the core is the oracle: same columns, rows, IDs and
+messages; numbers to round-off). The page must keep answering while the batch runs. The 10,000
+row throughput is measured by build_scripts/bench_share.py, not here. Sample values are
+generated at random, not taken from any real plant.
 """
 
 from __future__ import annotations
@@ -18,71 +22,49 @@ from pathlib import Path
 import pytest
 from playwright.sync_api import Page, expect
 
-from acidscape.boundary.batch import batch_csv
+from acidscape.boundary.batch import batch_csv, guess_mapping, template_csv
 
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 90_000
-ROWS = 10_000
-BAD = {17: "no pH", 4_242: "<0.01", 9_998: "x"}  # data index -> what is wrong
+ROWS = 300
+BAD = {17: "no pH", 142: "<0.01", 250: "no alkalinity"}  # data index -> what is wrong
+HEADER = ["Sample", "pH", "Temp (°C)", "Alkalinity (mg/L as CaCO3)", "PO4-P (mg/L)", "Ca (mg/L)", "Chloride mg/L"]
+TARGET_PH = 8.2
 
 
 def generated() -> str:
     rnd = random.Random(2024)
-    lines = ["Sample,pH,Temp C,Alkalinity mg/L,PO4-P mg/L"]
+    buf = io.StringIO()
+    w = csv.writer(buf, delimiter=";", lineterminator="\r\n")
+    w.writerow(HEADER)
     for i in range(ROWS):
-        pH = f"{rnd.uniform(6.0, 9.5):.2f}"
-        po4 = f"{rnd.uniform(0, 2):.3f}"
+        cells = [f"W{i:04d}" if i % 50 else f"W{i:04d}; east", f"{rnd.uniform(6.5, 9.5):.2f}",
+                 f"{rnd.uniform(2, 30):.1f}", f"{rnd.uniform(20, 300):.1f}", f"{rnd.uniform(0, 2):.3f}",
+                 f"{rnd.uniform(5, 80):.1f}", f"{rnd.uniform(5, 60):.1f}"]
         if BAD.get(i) == "no pH":
-            pH = ""
-        elif BAD.get(i) == "x":
-            pH = "x"
+            cells[1] = ""
         elif BAD.get(i) == "<0.01":
-            po4 = "<0.01"
-        lines.append(f"W{i:05d},{pH},{rnd.uniform(2, 30):.1f},{rnd.uniform(5, 300):.1f},{po4}")
-    return "\n".join(lines) + "\n"
+            cells[4] = "<0,01"
+        elif BAD.get(i) == "no alkalinity":
+            cells[3] = ""
+        w.writerow([c.replace(".", ",") if k else c for k, c in enumerate(cells)])
+    return "\ufeff" + buf.getvalue()
 
 
-def test_ten_thousand_samples_stream_and_match_the_core(page: Page, watch, tmp_path):
-    text = generated()
-    page.goto("/")
-    expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
-    samples = tmp_path / "samples.csv"
-    samples.write_text(text)
-    page.set_input_files("#batch-file", str(samples))  # the file path reads the columns at once
-    expect(page.locator("#batch-columns-note")).to_have_text("5 columns, 10,000 sample lines.")
-    # The guessed mapping (by column names) is shown; add the phosphate column by hand.
-    assert page.input_value("#batch-col-id") == "Sample" and page.input_value("#batch-col-ph") == "pH"
-    assert page.input_value("#batch-col-temp") == "Temp C" and page.input_value("#batch-col-alk") == "Alkalinity mg/L"
-    page.click("#batch-add-total")
-    page.select_option("#batch-total-0-column", "PO4-P mg/L")
-    page.select_option("#batch-total-0-id", "system:phosphate")
-    page.select_option("#batch-total-0-unit", "mg/L as P")
-    page.click("#batch-run")
+def expected_mapping(digits_note: str = "") -> dict:
+    g = guess_mapping(HEADER)
+    mapping = {k: v for k, v in g.items() if k not in ("notes", "unmapped")}
+    mapping["temperature"] = {**mapping["temperature"], "default_C": 25}
+    mapping.update(delimiter=";", decimal=",", dose={"chemical": "NaOH", "target_pH": TARGET_PH})
+    return mapping
 
-    # While it runs the page answers: progress moves and the species section still recomputes.
-    page.wait_for_function("() => Number(document.getElementById('batch-progress').value) > 0", timeout=60_000)
-    before = int(page.get_attribute("body", "data-drawn"))
-    page.fill("#ph-input", "8.8")
-    page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=before, timeout=5_000)
-    assert page.get_attribute("#batch-progress", "data-state") is None  # still running
 
-    expect(page.locator("#batch-progress")).to_have_attribute("data-state", "finished", timeout=240_000)
-    with page.expect_download() as info:
-        page.click("#batch-download")
-    got = Path(info.value.path()).read_text()
-
-    mapping = {"id": "Sample", "pH": "pH", "temperature": {"column": "Temp C", "unit": "C"},
-               "alkalinity": {"column": "Alkalinity mg/L", "unit": "mg/L as CaCO3"}, "mode": "measured",
-               "activity": "davies", "systems": [{"id": "phosphate", "column": "PO4-P mg/L", "unit": "mg/L as P"}],
-               "ions": []}
-    want = batch_csv(text, mapping)
-    # Same columns, rows, sample IDs and messages; numbers agree to round-off. Pyodide's libm
-    # (wasm) and the host's differ in the last bits of exp/log, which the iterative solves carry
-    # a little further, so the text is not byte-identical.
+def compare(got: str, want: str, digits: int) -> None:
+    """Same columns, rows and text cells; numbers within one unit of the last digit written
+    (Pyodide's libm and the host's differ in the last bits, which iterative solves carry)."""
     got_rows, want_rows = list(csv.reader(io.StringIO(got))), list(csv.reader(io.StringIO(want)))
     assert got_rows[0] == want_rows[0] and len(got_rows) == len(want_rows) == ROWS + 1
-    worst = 0.0
     for g, w in zip(got_rows[1:], want_rows[1:]):
         assert len(g) == len(w)
         for a, b, name in zip(g, w, want_rows[0]):
@@ -91,13 +73,71 @@ def test_ten_thousand_samples_stream_and_match_the_core(page: Page, watch, tmp_p
             except ValueError:
                 assert a == b, (name, a, b)
                 continue
-            assert math.isclose(fa, fb, rel_tol=1e-9, abs_tol=1e-12), (name, a, b)
-            if fb:
-                worst = max(worst, abs(fa - fb) / abs(fb))
-    print(f"\nlargest relative difference page vs CPython: {worst:.2e}")
+            if digits == 0:
+                assert math.isclose(fa, fb, rel_tol=1e-9, abs_tol=1e-12), (name, a, b)
+            elif a != b:
+                step = 10.0 ** (math.floor(math.log10(abs(fb))) - digits + 1) if fb else 0.0
+                if name.startswith("pH") or name == "pH_after_dose":
+                    step = 1e-3
+                assert abs(fa - fb) <= step * 1.0001, (name, a, b)
+
+
+def test_samples_stream_and_match_the_core(page: Page, watch, tmp_path):
+    text = generated()
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
+
+    # The template button downloads the accepted columns and an invented example row.
+    with page.expect_download() as info:
+        page.click("#batch-template")
+    assert Path(info.value.path()).read_text(encoding="utf-8") == template_csv()
+
+    samples = tmp_path / "samples.csv"
+    samples.write_bytes(text.encode("utf-8"))
+    page.set_input_files("#batch-file", str(samples))  # the file path reads the columns at once
+    expect(page.locator("#batch-columns-note")).to_contain_text(f"7 columns, {ROWS} sample lines.")
+    expect(page.locator("#batch-columns-note")).to_contain_text("Separated by semicolons, decimal commas.")
+    # Every column is recognised from its name, totals included.
+    assert page.input_value("#batch-col-id") == "Sample" and page.input_value("#batch-col-ph") == "pH"
+    assert page.input_value("#batch-col-temp") == "Temp (°C)"
+    assert page.input_value("#batch-col-alk") == "Alkalinity (mg/L as CaCO3)"
+    want_totals = [(e["column"], f"{kind}:{e['id']}", e["unit"]) for kind, key in (("system", "systems"), ("ion", "ions"))
+                   for e in guess_mapping(HEADER)[key]]
+    got_totals = [(page.input_value(f"#batch-total-{i}-column"), page.input_value(f"#batch-total-{i}-id"),
+                   page.input_value(f"#batch-total-{i}-unit")) for i in range(len(want_totals))]
+    assert got_totals == want_totals and len(want_totals) == 3
+    assert page.input_value("#batch-digits") == "4"
+    page.select_option("#batch-dose-chemical", "NaOH")
+    page.fill("#batch-dose-target", "8,2")
+    page.click("#batch-run")
+
+    # While it runs the page answers: the species section still recomputes.
+    before = int(page.get_attribute("body", "data-drawn"))
+    page.fill("#ph-input", "8.8")
+    page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=before, timeout=10_000)
+
+    expect(page.locator("#batch-progress")).to_have_attribute("data-state", "finished", timeout=120_000)
+    with page.expect_download() as info:
+        page.click("#batch-download")
+    got = Path(info.value.path()).read_text()
+    mapping = expected_mapping()
+    compare(got, batch_csv(text, mapping, digits=4), 4)
+
     rows = [li.get_attribute("data-row") for li in page.locator("#batch-errors li").all()]
     assert rows == [str(i + 2) for i in sorted(BAD)]
-    expect(page.locator("#batch-errors li").first).to_contain_text("Row 19 (W00017): pH is empty")
+    expect(page.locator("#batch-errors li").first).to_contain_text("Row 19 (W0017): pH is missing")
+    expect(page.locator("#batch-errors li").last).to_contain_text("Row 252 (W0250; east): alkalinity is missing")
+    expect(page.locator("#batch-cautions")).to_be_visible()
+    expect(page.locator("#batch-cautions")).to_contain_text("jar or bench test")
+    statuses = [r["dose_status"] for r in csv.DictReader(io.StringIO(got))]
+    assert statuses.count("no dose needed") > 20 and statuses.count("dosed") > 20
     assert page.locator("#batch-table tbody tr").count() == 200
-    seconds = float(page.get_attribute("#batch-progress", "data-seconds"))
-    print(f"\nbatch of {ROWS} rows in the page: {seconds:.1f} s ({ROWS / seconds:.0f} rows/s)")
+    assert page.locator("#batch-table thead th[data-key='phosphate_HPO4_mol_per_L']").inner_text() == "HPO₄²⁻ (mol/L)"
+
+    # Full precision on request: the same numbers as CPython to round-off.
+    page.select_option("#batch-digits", "0")
+    page.click("#batch-run")
+    expect(page.locator("#batch-progress")).to_have_attribute("data-state", "finished", timeout=120_000)
+    with page.expect_download() as info:
+        page.click("#batch-download")
+    compare(Path(info.value.path()).read_text(), batch_csv(text, mapping, digits=0), 0)
