@@ -4,7 +4,7 @@ Functions
 ---------
 handle(method, params_json) -> str     JSON dispatcher used by the page's worker
 distribution(params) -> dict           alpha-fraction curves and a table at one pH
-version_info() -> dict                 package and protocol versions
+version_info() -> dict                 package version
 
 Every function validates its input and raises :mod:`acidscape.errors` classes;
 :func:`handle` turns them into ``{"ok": false, "error": {"type", "message", "field"}}``
@@ -23,16 +23,14 @@ from ..checks import number, whole
 from ..errors import AcidscapeError, InputError, UnknownIdError
 from ..science.speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
 
-#: Version of the JSON message protocol between page and worker.
-PROTOCOL_VERSION = 1
-
 #: Largest pH grid a curve request may ask for.
 MAX_POINTS = 5001
 
 
 def version_info() -> dict:
-    """Package and protocol versions, for the page footer and reports."""
-    return {"acidscape": __version__, "protocol": PROTOCOL_VERSION}
+    """Package version, for the page footer and reports (the page adds the version of its
+    worker protocol, which is written once, in site/py.js)."""
+    return {"acidscape": __version__}
 
 
 def _number(params: dict, key: str, default=None, *, lo=None, hi=None, field=None) -> float:
