@@ -1,17 +1,24 @@
 """Timings of sharing and batch work (a benchmark, not a test). Prints one JSON object.
 
 Usage:  .venv/bin/python build_scripts/bench_share.py [--rows N] [--runs N] [--chromium PATH]
+                                                      [--no-browser]
 
-- ``cpython_batch_rows_per_s``: acidscape.boundary.batch.run_rows on N generated samples (pH, temperature,
-  alkalinity, phosphate) on the host CPython.
-- ``browser_batch_rows_per_s``: the same CSV through the page's batch section (chunks of 250
-  streamed to the Pyodide worker), from the click to the last chunk, as the page reports it.
+- ``cpython_batch_rows_per_s_jobs1`` / ``_jobs2``: acidscape.boundary.batch.batch_table (the
+  command line's ``batch``) on N generated samples (pH, temperature, alkalinity, phosphate) on
+  the host CPython, in one process and in two (``--jobs 2``); the two texts are checked equal.
+- ``browser_batch_rows_per_s_one_worker``: the same CSV through the page's batch section with
+  the page told it has one core (no extra workers), from the click to the last chunk, as the
+  page reports it; ``browser_batch_rows_per_s``: the same with the extra worker(s) the page
+  starts on this machine's cores, once they are ready (a user reads the columns, then maps
+  them; the workers start when the columns are read); ``browser_batch_workers``: workers used;
+  ``helper_ready_ms``: from reading the columns to the extra workers being ready.
 - ``bare_pyodide_boot_ms``: navigation to the end of loadPyodide() on an empty page;
   ``preset_link_first_result_ms``: navigation to ``#preset=<id>`` until that example's water pH
   is on screen (link decoded and applied, every section recomputed);
   ``preset_link_over_bare_boot``: the ratio of the medians. Fresh context per run, service
   workers blocked (a first visit), the two pages alternated.
 
+The machine has 2 cores shared with other work; figures vary by tens of per cent between runs.
 Needs a built dist/ (python build_scripts/build.py) and /usr/bin/chromium.
 """
 
@@ -19,6 +26,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import platform
 import random
 import shutil
@@ -49,19 +57,52 @@ def samples(n: int) -> str:
     return "\n".join(lines) + "\n"
 
 
-def cpython_rate(text: str, n: int) -> float:
-    from acidscape.boundary.batch import run_rows
+def cpython_rates(text: str, n: int) -> dict:
+    from acidscape.boundary.batch import batch_table
 
+    out, first = {}, None
+    for jobs in (1, 2):
+        t0 = time.perf_counter()
+        csv_text, _, done = batch_table(text, MAPPING, jobs=jobs)
+        out[f"cpython_batch_rows_per_s_jobs{jobs}"] = round(done / (time.perf_counter() - t0), 1)
+        if first is None:
+            first = csv_text
+        elif csv_text != first:
+            raise AssertionError("--jobs 2 gave another text than --jobs 1")
+    return out
+
+
+def page_batch(browser, site_url: str, csv_path: Path, n: int, one_core: bool) -> dict:
+    """One batch of the CSV through the page; returns seconds, workers and helper start time."""
+    ctx = browser.new_context(service_workers="block")
+    if one_core:
+        ctx.add_init_script("Object.defineProperty(navigator, 'hardwareConcurrency', {get: () => 1});")
+    page = ctx.new_page()
+    page.goto(site_url)
+    page.wait_for_selector("body[data-share-ready]", state="attached", timeout=120_000)
     t0 = time.perf_counter()
-    run_rows(text, MAPPING)
-    return n / (time.perf_counter() - t0)
+    page.set_input_files("#batch-file", str(csv_path))
+    page.wait_for_function("() => !document.getElementById('batch-run').disabled")
+    # the column guess maps the phosphate column (PO4-P mg/L -> phosphate, mg/L as P) by itself
+    assert page.input_value("#batch-total-0-id") == "system:phosphate"
+    assert page.input_value("#batch-total-0-unit") == "mg/L as P"
+    ready_ms = None
+    if not one_core:
+        page.wait_for_selector("#batch-progress[data-helpers]", state="attached", timeout=120_000)
+        ready_ms = (time.perf_counter() - t0) * 1e3
+    page.click("#batch-run")
+    page.wait_for_selector("#batch-progress[data-state=finished]", state="attached", timeout=600_000)
+    seconds = float(page.get_attribute("#batch-progress", "data-seconds"))
+    workers = int(page.get_attribute("#batch-progress", "data-workers"))
+    ctx.close()
+    return {"seconds": seconds, "workers": workers, "ready_ms": ready_ms, "rate": n / seconds}
 
 
 def browser(chromium: str, text: str, n: int, runs: int) -> dict:
     from playwright.sync_api import sync_playwright
 
     sys.path.insert(0, str(REPO / "pycore"))
-    from acidscape import api
+    from acidscape.boundary import api
 
     presets = json.loads((REPO / "site" / "presets.json").read_text())["presets"]
     want_pH = api.solve(next(p for p in presets if p["id"] == PRESET)["state"]["water"]["scenario"])["pH"]
@@ -94,20 +135,8 @@ def browser(chromium: str, text: str, n: int, runs: int) -> dict:
                         arg=want_pH, timeout=120_000, polling=20)
                     link_ms.append((time.perf_counter() - t0) * 1e3)
                     ctx.close()
-                ctx = b.new_context(service_workers="block")
-                page = ctx.new_page()
-                page.goto(site_url)
-                page.wait_for_selector("body[data-share-ready]", state="attached", timeout=120_000)
-                page.set_input_files("#batch-file", str(bare / "samples.csv"))
-                page.wait_for_function("() => !document.getElementById('batch-run').disabled")
-                page.click("#batch-add-total")
-                page.select_option("#batch-total-0-column", "PO4-P mg/L")
-                page.select_option("#batch-total-0-id", "system:phosphate")
-                page.select_option("#batch-total-0-unit", "mg/L as P")
-                page.click("#batch-run")
-                page.wait_for_selector("#batch-progress[data-state=finished]", state="attached", timeout=600_000)
-                seconds = float(page.get_attribute("#batch-progress", "data-seconds"))
-                ctx.close()
+                one = page_batch(b, site_url, bare / "samples.csv", n, one_core=True)
+                many = page_batch(b, site_url, bare / "samples.csv", n, one_core=False)
                 b.close()
         finally:
             site_server.shutdown()
@@ -115,8 +144,12 @@ def browser(chromium: str, text: str, n: int, runs: int) -> dict:
     bm, lm = statistics.median(bare_ms), statistics.median(link_ms)
     return {
         "browser_batch_rows": n,
-        "browser_batch_seconds": round(seconds, 2),
-        "browser_batch_rows_per_s": round(n / seconds, 1),
+        "browser_batch_rows_per_s_one_worker": round(one["rate"], 1),
+        "browser_batch_seconds_one_worker": round(one["seconds"], 2),
+        "browser_batch_rows_per_s": round(many["rate"], 1),
+        "browser_batch_seconds": round(many["seconds"], 2),
+        "browser_batch_workers": many["workers"],
+        "helper_ready_ms": round(many["ready_ms"], 1),
         "bare_pyodide_boot_ms": round(bm, 1),
         "preset_link_first_result_ms": round(lm, 1),
         "preset_link_runs_ms": [round(v, 1) for v in link_ms],
@@ -129,16 +162,19 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--rows", type=int, default=10_000, help="samples in the batch (default 10000)")
     parser.add_argument("--runs", type=int, default=3, help="boots of each page (default 3)")
     parser.add_argument("--chromium", default="/usr/bin/chromium", help="Chromium executable")
+    parser.add_argument("--no-browser", action="store_true", help="CPython figures only")
     args = parser.parse_args(argv)
-    if not (DIST / "manifest.json").exists():
+    if not args.no_browser and not (DIST / "manifest.json").exists():
         print("bench_share.py: build first: python build_scripts/build.py", file=sys.stderr)
         return 1
     text = samples(args.rows)
     result = {
         "machine": f"{platform.machine()}, {platform.python_implementation()} {platform.python_version()}",
-        "cpython_batch_rows_per_s": round(cpython_rate(text, args.rows), 1),
+        "cores": os.cpu_count(),
+        **cpython_rates(text, args.rows),
     }
-    result.update(browser(args.chromium, text, args.rows, args.runs))
+    if not args.no_browser:
+        result.update(browser(args.chromium, text, args.rows, args.runs))
     print(json.dumps(result, indent=2))
     return 0
 
