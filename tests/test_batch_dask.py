@@ -35,7 +35,7 @@ def generated(n: int) -> str:
     for i in range(n):
         pH = "" if i == 5 else f"{rnd.uniform(6.5, 9.2):.2f}"
         alk = "<5" if i == 17 else f"{rnd.uniform(10, 250):.1f}"
-        lines.append(f"D{i:03d},{pH},{rnd.uniform(4, 25):.1f},{alk},{rnd.uniform(0, 1):.3f},{rnd.uniform(5, 90):.1f}")
+        lines.append(f"D{i:03d},{pH},{rnd.uniform(4, 25):.1f},{alk},{rnd.uniform(0, 1):.3f},{rnd.randint(5, 90)}")
     return "\n".join(lines) + "\n"
 
 
@@ -58,8 +58,9 @@ def test_map_partitions_equals_run_rows(as_text):
     want = run_rows(text, MAPPING)
     if as_text:
         frame = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False)
-    else:  # numbers and NaN for blanks, as pandas reads a CSV by default
+    else:  # numbers (whole-number Ca as integers) and NaN for blanks, as pandas reads a CSV by default
         frame = pd.read_csv(io.StringIO(text))
+        assert frame["Ca"].dtype.kind == "i"
     ddf = dd.from_pandas(frame, npartitions=4)
     assert ddf.npartitions == 4
     names = [c["name"] for c in result_columns(list(frame.columns), MAPPING)]

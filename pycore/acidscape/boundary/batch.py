@@ -137,6 +137,7 @@ import csv
 import io
 import json
 import math
+import numbers
 import re
 import sys
 import time
@@ -789,11 +790,13 @@ def _cell_number(cells, index: int | None, what: str, comma: bool) -> float | No
     if raw is None:
         return None
     if not isinstance(raw, str):
-        if isinstance(raw, bool) or not isinstance(raw, (int, float)):
-            raise InputError(f"{what} {raw!r} is not a number")
-        if raw != raw:  # NaN: a blank cell as a dataframe holds it
+        if type(raw).__name__ == "NAType":  # a dataframe's missing value
             return None
-        value = float(raw)
+        if isinstance(raw, bool) or not isinstance(raw, numbers.Real):
+            raise InputError(f"{what} {raw!r} is not a number")
+        value = float(raw)  # numpy integers and floats are numbers.Real too
+        if value != value:  # NaN: a blank cell as a dataframe holds it
+            return None
         if not math.isfinite(value):
             raise InputError(f"{what} {raw!r} is not a finite number")
         return value
@@ -922,17 +925,22 @@ def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> di
     return values
 
 
+def _missing(value) -> bool:
+    """A dataframe's blank: NaN or its missing-value marker."""
+    return type(value).__name__ == "NAType" or (isinstance(value, float) and value != value)
+
+
 def _compute(plan: _Plan, numbered, sample_of=None) -> tuple[list[dict], list[dict]]:
     """Rows and errors for ``(row number, cells)`` pairs; blank lines are skipped."""
     rows, errors = [], []
     id_col = plan.id
     for row, cells in numbered:
-        if not any((c.strip() if isinstance(c, str) else (c is not None and c == c)) for c in cells):
+        if not any((c.strip() if isinstance(c, str) else (c is not None and not _missing(c))) for c in cells):
             continue
         sample = ""
         if id_col is not None and id_col < len(cells) and cells[id_col] is not None:
             raw = cells[id_col]
-            sample = raw.strip() if isinstance(raw, str) else ("" if raw != raw else str(raw))
+            sample = raw.strip() if isinstance(raw, str) else ("" if _missing(raw) else str(raw))
         try:
             sc, pH_measured = row_scenario(plan, cells)
             values = _result_row(plan, row, sample, pH_measured, sc)
