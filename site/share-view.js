@@ -367,14 +367,19 @@ export function watchForUpdates(doc, container, registration) {
     });
   });
   let reloading = false;
+  let controlled = hadController;
   container.addEventListener("controllerchange", () => {
-    if (!hadController) return; // the first visit: the worker simply took charge
-    if (notice.dataset.reloadRequested === "true" && !reloading) {
-      reloading = true;
-      doc.defaultView.location.reload();
+    const wasControlled = controlled;
+    controlled = true;
+    if (notice.dataset.reloadRequested === "true") {
+      // Also on a page opened on the first visit (uncontrolled then, taken in charge since).
+      if (!reloading) {
+        reloading = true;
+        doc.defaultView.location.reload();
+      }
       return;
     }
-    show();
+    if (wasControlled) show(); // not the first visit's take-over: a newer copy is in charge now
   });
   byId(doc, "update-reload").addEventListener("click", () => {
     notice.dataset.reloadRequested = "true";
