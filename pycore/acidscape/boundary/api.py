@@ -171,6 +171,28 @@ def _acid_base_view(parsed, wm, sol):
     )
 
 
+#: Solids whose oversaturation is named in a warning: the scales and sludges that form in
+#: water treatment and distribution within hours to days (common practice). Others, such as
+#: dolomite, are often oversaturated in natural waters without forming; they stay in the
+#: saturation table.
+SCALE_SOLIDS = ("calcite", "brucite", "gypsum", "barite", "cerussite", "hydrocerussite", "hydroxypyromorphite",
+                "malachite", "tenorite", "copper-hydroxide", "siderite", "rhodochrosite",
+                "ferrihydrite", "amorphous-aluminium-hydroxide", "hydroxyapatite")
+
+#: Saturation index above which a warning names the solid (a margin for the constants' spread).
+SI_WARNING = 0.3
+
+
+def _oversaturation_notes(saturation: list[dict], allowed: tuple[str, ...]) -> list[str]:
+    """A warning for each scale-forming solid that is oversaturated but not allowed to form."""
+    notes = []
+    for row in saturation:
+        if row["id"] in SCALE_SOLIDS and row["SI"] > SI_WARNING and row["id"] not in allowed:
+            notes.append(f"{row['name']} is oversaturated (saturation index {row['SI']:+.2f}) and may "
+                         f"precipitate; name it in precipitate to let it form")
+    return notes
+
+
 def water_model(parsed):
     """The tableau of a parsed scenario (:class:`acidscape.science.tableau.WaterModel`)."""
     from ..science.tableau import WaterModel
@@ -231,11 +253,7 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
                 f"{abs(sol.charge_residual) / (0.5 * charges):.0%} of its ions; a measured water usually holds "
                 "ions that were not entered"
             )
-    for row in results.saturation_rows(wm, sol):
-        if row["SI"] > 0.3 and row["id"] not in parsed.precipitate:
-            warnings.append(f"{row['name']} is oversaturated (SI {row['SI']:+.2f}); it may precipitate "
-                            f"(add it to precipitate to let it form)")
-            break
+    warnings.extend(_oversaturation_notes(results.saturation_rows(wm, sol), parsed.precipitate))
     systems_out = []
     for st in eq.systems:
         systems_out.append({
