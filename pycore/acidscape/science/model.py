@@ -72,6 +72,8 @@ from ..errors import ConvergenceError, InputError
 
 #: Relative tolerance on every mass balance at the answer (1e-12 is accepted where rounding stops Newton).
 MASS_RTOL = 1e-15
+#: Tolerance of the inner solves while the ionic strength is still moving.
+LOOSE_RTOL = 1e-9
 #: Relative tolerance on the ionic strength fixed point.
 I_RTOL = 1e-11
 #: Largest Newton step in any log-concentration [ln units] (about 4 decades).
@@ -341,11 +343,12 @@ class _Dependent(Exception):
     """The constraints are linearly dependent (a solid that the phase rule excludes)."""
 
 
-def _converged(g, scale) -> bool:
-    return all(abs(gq) <= MASS_RTOL * sq + 1e-300 for gq, sq in zip(g, scale))
+def _converged(g, scale, rtol: float = MASS_RTOL) -> bool:
+    return all(abs(gq) <= rtol * sq + 1e-300 for gq, sq in zip(g, scale))
 
 
-def _newton(prob: _Problem, y: list[float], max_iter: int = 200) -> tuple[list[float], int, bool]:
+def _newton(prob: _Problem, y: list[float], max_iter: int = 200,
+            rtol: float = MASS_RTOL) -> tuple[list[float], int, bool]:
     """Damped Newton with Armijo backtracking on F. Returns (y, iterations, converged)."""
     r = prob.r
     if r == 0:
@@ -354,7 +357,7 @@ def _newton(prob: _Problem, y: list[float], max_iter: int = 200) -> tuple[list[f
     if not math.isfinite(F):
         return y, 0, False
     for it in range(1, max_iter + 1):
-        if _converged(g, scale):
+        if _converged(g, scale, rtol):
             return y, it, True
         step = _cholesky_solve(H, [-v for v in g])
         if step is None or not all(math.isfinite(s) for s in step):
@@ -377,9 +380,9 @@ def _newton(prob: _Problem, y: list[float], max_iter: int = 200) -> tuple[list[f
                 break
             t *= 0.5
             if t < 1e-12:
-                return y, it, _converged(g, [s * 1e3 for s in scale])
+                return y, it, _converged(g, scale, max(rtol, 1e3 * MASS_RTOL))
         y, F, g, H, scale = yn, Fn, gn, Hn, sn
-    return y, max_iter, _converged(g, scale)
+    return y, max_iter, _converged(g, scale, rtol)
 
 
 def _coordinate_search(prob: _Problem, y: list[float], sweeps: int = 400) -> tuple[list[float], bool]:
@@ -558,7 +561,7 @@ def equilibrium(
     total_iters = 0
     I_hist: list[tuple[float, float]] = []
 
-    def solve_at(I):
+    def solve_at(I, rtol=MASS_RTOL):
         """Solve at ionic strength I with the active-set loop; returns internal state."""
         nonlocal total_iters, active
         lgc = [gamma_of(tab.charges[j], tab.ion_sizes[j], I) for j in range(m)]
@@ -593,8 +596,8 @@ def equilibrium(
                 warnings.append(f"{tab.solids[dropped].id} was left out: with the other solids present it "
                                 "would break the phase rule")
                 continue
-            y = _start(prob, coupled, x_state, totals, pH, lgc)
-            y, its, ok = _newton(prob, y)
+            y = _start(prob, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp)
+            y, its, ok = _newton(prob, y, rtol=rtol)
             total_iters += its
             if not ok:
                 y, ok = _coordinate_search(prob, y)
@@ -621,10 +624,12 @@ def equilibrium(
                 active.append(best)
                 continue
             st["amounts"] = dict(zip(active, amounts))
+            st["rtol"] = rtol
             st["SI"] = si
             st["lgc"], st["lgs"] = lgc, lgs
             return st
         st["amounts"] = dict(zip(active, _amounts(tab, active, st["resid"], coupled, open_comp, pH)))
+        st["rtol"] = rtol
         st["SI"] = _saturation(tab, st["ln_free"], lgc, solids_on)
         st["lgc"], st["lgs"] = lgc, lgs
         return st
@@ -632,26 +637,36 @@ def equilibrium(
     def I_of(st):
         return 0.5 * sum(sp.charge ** 2 * c for sp, c in zip(tab.species, st["conc"]))
 
-    st = solve_at(I)
     if I_fixed is None and not Imodel_ideal:
+        # Substitution, accelerated by secant steps on h(I) = I_computed(I) - I once two points
+        # are known; the inner solves are loose until I has settled, then one tight solve.
+        st = solve_at(I, LOOSE_RTOL)
         settled = False
+        prev = None
         for _ in range(60):
             I_new = I_of(st)
+            h = I_new - I
             I_hist.append((I, I_new))
-            if abs(I_new - I) <= I_RTOL * max(I_new, 1e-14):
-                I = I_new
+            if abs(h) <= I_RTOL * max(I_new, 1e-14):
                 settled = True
                 break
-            I = I_new
-            st = solve_at(I)
+            nxt = I_new
+            if prev is not None and h != prev[1]:
+                sec = I - h * (I - prev[0]) / (h - prev[1])
+                if 0.5 * min(I, I_new) <= sec <= 2.0 * max(I, I_new):
+                    nxt = sec
+            prev = (I, h)
+            I = nxt
+            # loose inner solves while I moves; tight ones once it has nearly settled
+            st = solve_at(I, LOOSE_RTOL if abs(h) > 1e-7 * max(I_new, 1e-14) else MASS_RTOL)
         if not settled:
             # bracketed bisection on h(I) = I_computed(I) - I
             lo, hi = 0.0, max(max(a, b) for a, b in I_hist) * 2 + 1e-12
-            st_lo = solve_at(lo)
+            st_lo = solve_at(lo, LOOSE_RTOL)
             h_lo = I_of(st_lo) - lo
             for _ in range(200):
                 mid = 0.5 * (lo + hi)
-                st = solve_at(mid)
+                st = solve_at(mid, LOOSE_RTOL)
                 h = I_of(st) - mid
                 if (h > 0) == (h_lo > 0):
                     lo, h_lo = mid, h
@@ -661,8 +676,12 @@ def equilibrium(
                     break
             I = 0.5 * (lo + hi)
             st = solve_at(I)
-    elif I_fixed is None:
-        I = I_of(st)
+        elif st["rtol"] != MASS_RTOL:
+            st = solve_at(I)
+    else:
+        st = solve_at(I)
+        if I_fixed is None:
+            I = I_of(st)
 
     conc = st["conc"]
     lgc, lgs = st["lgc"], st["lgs"]
@@ -679,16 +698,22 @@ def equilibrium(
     )
 
 
-def _start(prob: _Problem, coupled, x_state, totals, pH, lgc) -> list[float]:
-    """Initial y: the last answer where known; else free = total, pH 7 (or the given pH)."""
+def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp) -> list[float]:
+    """Initial y: the last answer where known; else pH 7 (or the given pH) and each component
+    spread over its own protonated forms at that pH, as if it formed no complex."""
+    xH = x_state.get(0, LN10 * (-(pH if pH is not None else 7.0) - lgc[0]))
     x_guess = []
     for k, j in enumerate(coupled):
         if j in x_state:
             x_guess.append(x_state[j])
         elif j == 0:
-            x_guess.append(LN10 * (-(pH if pH is not None else 7.0) - lgc[0]))
+            x_guess.append(xH)
         else:
-            x_guess.append(math.log(max(totals[j], 1e-20)) - 2.0)
+            es = [lnKp[i] + dict(sp.stoich).get(0, 0) * xH for i, sp in enumerate(tab.species)
+                  if species_on[i] and dict(sp.stoich).get(j) == 1 and all(c in (0, j) for c, _ in sp.stoich)]
+            top = max(es) if es else 0.0
+            lnS = top + math.log(sum(math.exp(e - top) for e in es)) if es else 0.0
+            x_guess.append(math.log(max(totals[j], 1e-300)) - lnS)
     # y is x at the free coordinates (N holds an identity row there)
     return [x_guess[k] for k in prob.free]
 
