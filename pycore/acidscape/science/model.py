@@ -247,7 +247,7 @@ def _rref_nullspace(C: list[list[float]], d: list[float], n: int, prefer: list[i
 class _Problem:
     """F on the affine set x = x0 + N y, with simple components eliminated."""
 
-    __slots__ = ("r", "x0", "N", "free", "nH", "cs_lnK", "cs_a", "ladders", "Tr", "T_simple",
+    __slots__ = ("r", "x0", "N", "free", "nH", "cs_lnK", "cs_a", "cs_nz", "ladders", "Tr", "T_simple",
                  "coupled", "cpl_species", "const")
 
     def __init__(self, coupled, cpl_species, lnKp, x_coeffs, ladders, T_simple, T_cpl, C, d, prefer):
@@ -269,6 +269,7 @@ class _Problem:
             cs_lnK.append(base)
             cs_a.append([sum(a[k] * N[k][q] for k in range(nc) if a[k]) for q in range(r)])
         self.cs_lnK, self.cs_a = cs_lnK, cs_a
+        self.cs_nz = [[(q, aq) for q, aq in enumerate(a) if aq] for a in cs_a]
         self.ladders, self.T_simple = ladders, T_simple
         self.Tr = [sum(T_cpl[k] * N[k][q] for k in range(nc)) for q in range(r)]
         self.const = sum(T_cpl[k] * x0[k] for k in range(nc))
@@ -284,23 +285,23 @@ class _Problem:
         g = [-t for t in self.Tr]
         scale = [abs(t) for t in self.Tr]
         H = [[0.0] * r for _ in range(r)] if want_hess else None
-        for lnK, a in zip(self.cs_lnK, self.cs_a):
-            e = lnK + sum(ak * yk for ak, yk in zip(a, y))
+        for lnK, nz in zip(self.cs_lnK, self.cs_nz):
+            e = lnK
+            for q, aq in nz:
+                e += aq * y[q]
             if e > 700.0:
                 return math.inf, None, None, None
             c = exp(e)
             F += c
-            for q in range(r):
-                aq = a[q]
-                if aq:
-                    v = aq * c
-                    g[q] += v
-                    scale[q] += abs(v)
-                    if want_hess:
-                        Hq = H[q]
-                        for s in range(q + 1):
-                            if a[s]:
-                                Hq[s] += v * a[s]
+            for q, aq in nz:
+                v = aq * c
+                g[q] += v
+                scale[q] += abs(v)
+                if want_hess:
+                    Hq = H[q]
+                    for s, as_ in nz:
+                        if s <= q:
+                            Hq[s] += v * as_
         if self.ladders:
             xH = self.xH(y)
             m1 = m2 = Fs = sabs = 0.0
