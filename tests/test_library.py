@@ -41,18 +41,39 @@ def test_at_least_27_systems_and_the_required_ones():
     assert not missing
 
 
-def test_required_strong_ions_present():
-    for ion in ["Na+", "K+", "Li+", "Ca+2", "Mg+2", "Sr+2", "Ba+2", "Cl-", "Br-", "I-", "NO3-",
-                "SO4-2", "ClO4-"]:
-        assert ion in IONS
+REQUIRED_IONS = {
+    # id: formula (the formula is also accepted as an alias: the ids of earlier versions)
+    "sodium": "Na+", "potassium": "K+", "lithium": "Li+", "calcium": "Ca+2", "magnesium": "Mg+2",
+    "strontium": "Sr+2", "barium": "Ba+2", "chloride": "Cl-", "bromide": "Br-", "iodide": "I-",
+    "nitrate": "NO3-", "sulfate": "SO4-2", "perchlorate": "ClO4-", "chlorate": "ClO3-", "bromate": "BrO3-",
+    "lead": "Pb+2", "copper": "Cu+2", "zinc": "Zn+2", "iron(III)": "Fe+3", "iron(II)": "Fe+2",
+    "aluminium": "Al+3", "manganese": "Mn+2",
+}
 
 
-def test_ids_are_lowercase_hyphenated_and_ion_ids_are_formulas():
+def test_required_ions_present_with_their_old_ids_as_aliases():
+    for iid, formula in REQUIRED_IONS.items():
+        assert iid in list(IONS)
+        assert IONS[iid].formula == formula
+        assert formula in IONS[iid].aliases and IONS[formula] is IONS[iid]
+    assert L.get_ion("aluminum") is IONS["aluminium"]
+
+
+def test_ids_are_lowercase_words_and_aliases_never_shadow_an_id():
     for sid in SYSTEMS:
         assert re.fullmatch(r"[a-z][a-z0-9]*(-[a-z0-9]+)*", sid)
+    ids = list(IONS)
     for iid, ion in IONS.items():
-        assert iid == ion.formula
-    assert not set(SYSTEMS) & set(IONS)
+        assert re.fullmatch(r"[a-z]+(-[a-z]+)*(\((II|III)\))?", iid), iid
+        assert iid != ion.formula
+        assert not set(ion.aliases) & set(ids)
+    aliases = [a for ion in IONS.values() for a in ion.aliases]
+    assert len(aliases) == len(set(aliases))
+    # an ion id may equal a system id only when the ion is that system's base (sulfate)
+    for shared in set(SYSTEMS) & set(ids):
+        assert IONS[shared].system == shared
+    assert IONS["sulfate"].system == "sulfate" == SYSTEMS["sulfate"].id
+    assert SYSTEMS["sulfate"].species[-1].formula == IONS["sulfate"].formula
 
 
 # --------------------------------------------------------------------------- structure
@@ -65,6 +86,10 @@ def test_every_source_key_resolves():
         used.update(k for k in s.dH_sources if k)
         used.update(sp.ion_size_source for sp in s.species if sp.ion_size_source)
     used.update(i.ion_size_source for i in IONS.values() if i.ion_size_source)
+    for s in SYSTEMS.values():
+        used.update(k for k in s.dCp_sources if k)
+    for e in L.complexes() + L.solids():
+        used.update(e.sources)
     assert used <= set(SOURCES)
     for src in SOURCES.values():
         assert src.text.startswith(src.authors) and str(src.year) in src.text
@@ -163,12 +188,17 @@ def test_spot_checks_against_printed_pKa(sid, step, printed, tol, source):
 
 
 def test_kielland_spot_checks():
-    # Kielland (1937) table, from memory: Mg+2 8, Ca+2 6, K+ 3, NH4+ 2.5, SO4-2 4 angstrom.
-    assert IONS["Mg+2"].ion_size_A == 8
-    assert IONS["Ca+2"].ion_size_A == 6
-    assert IONS["K+"].ion_size_A == 3
+    # Kielland (1937) table, from memory: Mg+2 8, Ca+2 6, K+ 3, NH4+ 2.5, SO4-2 4 angstrom;
+    # Al+3 and Fe+3 9 (with H+), Cu+2, Zn+2, Fe+2, Mn+2 6, Pb+2 4.5.
+    assert IONS["magnesium"].ion_size_A == 8
+    assert IONS["calcium"].ion_size_A == 6
+    assert IONS["potassium"].ion_size_A == 3
     assert SYSTEMS["ammonium"].species[0].ion_size_A == 2.5
-    assert IONS["SO4-2"].ion_size_A == SYSTEMS["sulfate"].species[1].ion_size_A == 4
+    assert IONS["sulfate"].ion_size_A == SYSTEMS["sulfate"].species[1].ion_size_A == 4
+    assert IONS["aluminium"].ion_size_A == IONS["iron(III)"].ion_size_A == 9
+    for metal in ("copper", "zinc", "iron(II)", "manganese"):
+        assert IONS[metal].ion_size_A == 6
+    assert IONS["lead"].ion_size_A == 4.5
 
 
 def test_carbonate_agrees_with_plummer_busenberg_fit():
@@ -194,6 +224,44 @@ def test_ammonium_agrees_with_bates_pinching_fit():
     assert s.dH_kJ_per_mol[0] == pytest.approx(R * LN10 * (2835.76 - 0.001225 * T * T) / 1000, abs=0.05)
 
 
+def test_ammonium_note_cites_the_fit_the_code_uses():
+    # The temperature model evaluates Emerson et al. (1975): pKa = 0.09018 + 2729.92/T (from memory);
+    # the note must name that expression and its source.
+    from acidscape.science.temperature import ammonium_BP49
+
+    note = SYSTEMS["ammonium"].note
+    assert "0.09018 + 2729.92/T" in note and "Emerson" in note
+    assert ammonium_BP49(298.15) == pytest.approx(0.09018 + 2729.92 / 298.15, abs=1e-12)
+    # its constant enthalpy agrees with the stored N90 value (12.48 kcal/mol, from memory)
+    assert R * LN10 * 2729.92 / 1000 == pytest.approx(SYSTEMS["ammonium"].dH_kJ_per_mol[0], abs=0.1)
+
+
+def test_arsenate_pKa2_is_the_critically_evaluated_zero_ionic_strength_value():
+    # Martell & Smith (1976) I = 0: 6.96; Nordstrom & Archer (2003) review: 6.99 (both from memory).
+    # The CRC Handbook's 6.76 is 0.2 lower and is not used.
+    s = SYSTEMS["arsenate"]
+    assert s.pKa_ionic_strength_M[1] == 0
+    assert s.pKa_25C[1] == pytest.approx(6.99, abs=0.04)
+    assert "Nordstrom & Archer" in s.note and "6.76" in s.note
+
+
+def test_values_printed_at_nonzero_ionic_strength_are_converted_once():
+    # Davies (1962) at 25 °C with A = 0.5116 (CODATA/Malmberg & Maryott): for HA(z) = H+ + A(z-1)
+    # pKa0 = pKa_I + 2 (1 - z) A (sqrt(I)/(1 + sqrt(I)) - 0.3 I).
+    A = 0.5115585887446022
+    for sid in ("edta", "nta"):
+        s = SYSTEMS[sid]
+        for k, (printed, I, pKa0) in enumerate(zip(s.pKa_25C_printed, s.pKa_ionic_strength_M, s.pKa_25C)):
+            z = s.species[k].charge
+            f = 0.0 if I == 0 else A * (math.sqrt(I) / (1 + math.sqrt(I)) - 0.3 * I)
+            assert pKa0 == pytest.approx(printed + 2 * (1 - z) * f, abs=1e-12), (sid, k)
+    # EDTA: NIST SRD 46 at I = 0.1 M, 25 °C: 0.0 (I = 1 M), 1.5, 2.00, 2.69, 6.13, 10.37 (from memory)
+    assert SYSTEMS["edta"].pKa_25C_printed == (0.0, 1.5, 2.00, 2.69, 6.13, 10.37)
+    assert [round(x, 2) for x in SYSTEMS["edta"].pKa_25C] == [-0.2, 1.5, 2.22, 3.12, 6.78, 11.23]
+    # thermodynamic rows are untouched
+    assert SYSTEMS["phosphate"].pKa_25C == SYSTEMS["phosphate"].pKa_25C_printed == (2.148, 7.198, 12.35)
+
+
 def test_hypochlorous_agrees_with_morris_fit():
     # Morris (1966): pKa = 3000.00/T - 10.0686 + 0.0253 T, from memory.
     T = 298.15
@@ -216,7 +284,8 @@ def test_enthalpy_signs_known_from_the_trade():
 
 def test_get_system_and_ion():
     assert L.get_system("carbonate") is SYSTEMS["carbonate"]
-    assert L.get_ion("Na+") is IONS["Na+"]
+    assert L.get_ion("Na+") is IONS["Na+"] is L.get_ion("sodium") is IONS["sodium"]
+    assert L.get_ion("Fe+3").id == "iron(III)" and L.get_ion("ferric").id == "iron(III)"
 
 
 def test_unknown_ids_name_the_id_and_suggest():
@@ -228,6 +297,9 @@ def test_unknown_ids_name_the_id_and_suggest():
     with pytest.raises(UnknownIdError) as exc:
         L.get_ion("na+")
     assert "'Na+'" in str(exc.value)
+    with pytest.raises(UnknownIdError) as exc:
+        L.get_ion("coper")
+    assert "did you mean 'copper'" in str(exc.value)
     with pytest.raises(UnknownIdError):
         L.get_system(None)
 
@@ -235,7 +307,7 @@ def test_unknown_ids_name_the_id_and_suggest():
 def test_accepted_units():
     assert L.accepted_units("phosphate") == ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L", "mg/L as P"]
     assert L.accepted_units(SYSTEMS["acetic"]) == ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L"]
-    assert "meq/L" in L.accepted_units("Cl-")
+    assert "meq/L" in L.accepted_units("Cl-") and L.accepted_units("Cl-") == L.accepted_units("chloride")
     assert "mg/L as N" in L.accepted_units(IONS["NO3-"])
     with pytest.raises(UnknownIdError):
         L.accepted_units("no-such-thing")
@@ -255,6 +327,8 @@ def test_library_as_json_is_serialisable_and_cited():
     json.dumps(ions)
     assert {d["id"] for d in ions} == set(IONS)
     assert all("meq/L" in d["units"] for d in ions)
+    assert next(d for d in ions if d["id"] == "calcium")["aliases"] == ["Ca+2"]
+    assert next(d for d in ions if d["id"] == "sulfate")["system"] == "sulfate"
 
 
 def test_returned_tables_are_copies():
@@ -329,11 +403,18 @@ def test_bad_species_row_names_file_and_line(tmp_path):
 def test_bad_ion_row_names_file_and_line(tmp_path):
     text = (files("acidscape") / "data" / "ions.csv").read_text(encoding="utf-8")
     lines = text.splitlines()
-    i = next(k for k, line in enumerate(lines) if line.startswith("Ca+2,"))
-    lines[i] = lines[i].replace("Ca+2,Calcium,Ca+2,2,", "Ca+2,Calcium,Ca+2,1,")
-    p = _write(tmp_path, "ions.csv", "\n".join(lines) + "\n")
-    with pytest.raises(L.LibraryDataError, match=rf"ions.csv line {i + 1}: charge = 1"):
-        L.parse_ions(p, source_keys=SOURCES)
+    i = next(k for k, line in enumerate(lines) if line.startswith("calcium,"))
+    for bad, line, fragment in [
+        (lines[i].replace("calcium,Calcium,Ca+2,2,", "calcium,Calcium,Ca+2,1,"), i + 1, "charge = 1"),
+        (lines[i].replace("calcium,Calcium,", "Ca+2,Calcium,"), i + 1, "must be lower-case words"),
+        # calcium takes magnesium's alias: the error names the later line (magnesium's)
+        (lines[i].replace(",Ca+2,,ion size", ",Mg+2,,ion size"), i + 2,
+         f"ion id or alias 'Mg+2' is already used on line {i + 1}"),
+    ]:
+        p = _write(tmp_path, "ions.csv", "\n".join(lines[:i] + [bad] + lines[i + 1:]) + "\n")
+        with pytest.raises(L.LibraryDataError) as exc:
+            L.parse_ions(p, source_keys=SOURCES)
+        assert f"ions.csv line {line}: " in str(exc.value) and fragment in str(exc.value)
 
 
 def test_bad_source_year(tmp_path):
