@@ -1,6 +1,7 @@
 """Checks of acidscape.science.temperature against published tables (measurements by Harned and
-co-workers, Emerson et al. 1975, Morris 1966), against an independent integration with
-scipy, and against thermodynamic consistency (Gibbs-Helmholtz with numpy.gradient).
+co-workers, Bates & Acree 1943, Emerson et al. 1975, Morris 1966), against an independent
+integration with scipy (with and without a heat capacity of reaction), the IAPWS-95 density of
+water (iapws), and thermodynamic consistency (Gibbs-Helmholtz with numpy.gradient).
 
 Library systems are stood in for by ``types.SimpleNamespace`` objects carrying the
 ``AcidSystem`` attributes used here (id, pKa_25C, dH_kJ_per_mol, temperature_model).
@@ -25,9 +26,13 @@ from acidscape.science.temperature import (
     ammonium_BP49,
     carbonate_PB82,
     hypochlorous_M66,
+    hypochlorous_pKa,
     log10_KH_CO2,
+    molal_to_molar_note,
+    molal_to_molar_offsets,
     pKa_at,
     pKa_at_with_notes,
+    vant_hoff_log10_K,
     vant_hoff_pKa,
 )
 
@@ -226,14 +231,121 @@ def test_pKa_at_vant_hoff_with_and_without_enthalpy():
     assert values[0] == pytest.approx(vant_hoff_by_quadrature(2.148, -8.0, T), abs=1e-9)
     assert values[1] == pytest.approx(vant_hoff_by_quadrature(7.198, 3.6, T), abs=1e-9)
     assert values[2] == 12.35
-    assert len(notes) == 1 and "phos" in notes[0] and "step 3" in notes[0]
+    # step 3: no enthalpy; steps 1-2: enthalpy but no heat capacity, and 40 °C is outside 15-35 °C
+    assert len(notes) == 3 and all("phos" in n for n in notes)
+    assert "step 3" in notes[-1] and "no reaction enthalpy" in notes[-1]
+    assert all("no heat capacity" in n for n in notes[:2])
     assert pKa_at(s, T) == values
+    assert len(pKa_at_with_notes(s, 303.15)[1]) == 1  # inside 15-35 °C only the missing enthalpy
 
 
 def test_notes_threshold_half_kelvin():
     s = system("vant-hoff", (4.0, 6.0))
     assert pKa_at_with_notes(s, T25 + 0.4)[1] == []
     assert len(pKa_at_with_notes(s, T25 - 0.6)[1]) == 2
+
+
+# --- heat capacity of reaction ---------------------------------------------------------
+
+def vant_hoff_dCp_by_quadrature(pKa_ref, dH_kJ, dCp, T, T_ref=T25):
+    """ln K(T) - ln K(T_ref) = integral of (dH + dCp (x - T_ref)) / (R x^2) dx (scipy quad)."""
+    integral, _ = quad(lambda x: (dH_kJ * 1000.0 + dCp * (x - T_ref)) / (sc.R * x * x), T_ref, T)
+    return pKa_ref - integral / math.log(10)
+
+
+@given(
+    pKa=st.floats(min_value=-2.0, max_value=14.0),
+    dH=st.floats(min_value=-60.0, max_value=60.0),
+    dCp=st.floats(min_value=-400.0, max_value=400.0),
+    t=st.floats(min_value=0.0, max_value=100.0),
+)
+@settings(max_examples=150, deadline=None)
+def test_vant_hoff_with_heat_capacity_matches_scipy_quad(pKa, dH, dCp, t):
+    T = 273.15 + t
+    got = vant_hoff_pKa(pKa, dH, T, dCp_J_per_mol_K=dCp)
+    assert got == pytest.approx(vant_hoff_dCp_by_quadrature(pKa, dH, dCp, T), abs=1e-9)
+    assert vant_hoff_log10_K(-pKa, dH, T, dCp) == pytest.approx(-got, abs=1e-12)
+
+
+def test_library_acetic_and_phosphate_at_0C():
+    # Published 0 °C values (from memory): acetic acid 4.7807 (Harned & Ehlers, J. Am. Chem. Soc.
+    # 55 (1933) 652), H2PO4- 7.313 (Bates & Acree, J. Res. NBS 30 (1943) 129). With the stored dH
+    # and dCp (Goldberg, Kishore & Lennen 2002) the van 't Hoff integration must land within 0.015.
+    from acidscape.data import library
+
+    acetic, notes = pKa_at_with_notes(library.get_system("acetic"), 273.15)
+    assert acetic[0] == pytest.approx(4.7807, abs=0.005) and notes == []
+    phosphate, notes = pKa_at_with_notes(library.get_system("phosphate"), 273.15)
+    assert phosphate[1] == pytest.approx(7.313, abs=0.015) and notes == []
+    # Harned & Ehlers (1933): Ka = 1.633e-5 at 50 °C, pKa 4.787 (from memory)
+    assert pKa_at(library.get_system("acetic"), 323.15)[0] == pytest.approx(4.787, abs=0.005)
+
+
+def test_library_steps_without_heat_capacity_are_flagged_outside_15_to_35C():
+    from acidscape.data import library
+
+    arsenite = library.get_system("arsenite")  # no enthalpy at all: the 25 °C note
+    cyanide = library.get_system("cyanide")    # enthalpy, no heat capacity
+    assert cyanide.dCp_J_per_mol_K == (None,) and cyanide.dH_kJ_per_mol[0] is not None
+    assert pKa_at_with_notes(cyanide, 293.15)[1] == []
+    notes = pKa_at_with_notes(cyanide, 283.15)[1]
+    assert len(notes) == 1 and "no heat capacity" in notes[0]
+    assert len(pKa_at_with_notes(arsenite, 293.15)[1]) == 1
+    # the bound quoted in the note: 300 J/(mol K) at 10 °C
+    bound = 300 / (sc.R * math.log(10)) * (math.log(283.15 / T25) + T25 / 283.15 - 1)
+    assert f"{bound:.2f}" in notes[0]
+
+
+# --- fits and their ranges ---------------------------------------------------------------
+
+def test_emerson_fit_vs_bates_pinching_three_term_equation():
+    # Bates & Pinching (1949): pKa = 2835.76/T - 0.6322 + 0.001225 T (from memory); the two-term
+    # fit of Emerson et al. (1975) used by the core must stay within 0.003 of it over 0-50 °C.
+    for t_c in range(0, 51, 5):
+        T = 273.15 + t_c
+        assert ammonium_BP49(T) == pytest.approx(2835.76 / T - 0.6322 + 0.001225 * T, abs=0.003)
+
+
+def test_hypochlorous_is_not_extrapolated_above_35C():
+    # Morris (1966) measured 5-35 °C (title of the paper). Above 35 °C: van 't Hoff from the fit's
+    # 35 °C value with the fit's enthalpy there, dH = R ln10 (3000.00 - 0.0253 T^2).
+    edge = 308.15
+    dH = sc.R * math.log(10) * (3000.00 - 0.0253 * edge**2) / 1000
+    assert dH == pytest.approx(11.44, abs=0.01)
+    hocl = system("hypochlorous-M66", (7.537,), sid="hypochlorous")
+    for t_c in (40, 60, 100):
+        T = 273.15 + t_c
+        values, notes = pKa_at_with_notes(hocl, T)
+        assert values[0] == pytest.approx(vant_hoff_by_quadrature(hypochlorous_M66(edge), dH, T, T_ref=edge), abs=1e-9)
+        assert hypochlorous_pKa(T) == values[0]
+        assert len(notes) == 1 and "35" in notes[0] and "uncertain" in notes[0]
+    for t_c in (5, 20, 35):
+        values, notes = pKa_at_with_notes(hocl, 273.15 + t_c)
+        assert values[0] == hypochlorous_M66(273.15 + t_c) and notes == []
+    values, notes = pKa_at_with_notes(hocl, 273.15)
+    assert values[0] == hypochlorous_M66(273.15) and len(notes) == 1 and "extrapolated" in notes[0]
+    assert FIT_RANGE_K["hypochlorous-M66"] == (278.15, 308.15)
+
+
+# --- molal constants used as molar ------------------------------------------------------------
+
+@pytest.mark.parametrize("t_c", [25.0, 60.0, 90.0])
+def test_molal_to_molar_offsets_vs_iapws_density(t_c):
+    # IAPWS-95 liquid density at 0.101325 MPa (iapws package): Kw(molar) = Kw(molal) rho^2,
+    # K_H(molar) = K_H(molal) rho, rho in kg/L (definition of the scales; common practice).
+    from iapws import IAPWS95
+
+    rho = IAPWS95(T=273.15 + t_c, P=0.101325).rho / 1000.0
+    dpKw, dKH = molal_to_molar_offsets(273.15 + t_c)
+    assert dpKw == pytest.approx(-2 * math.log10(rho), abs=1e-4)
+    assert dKH == pytest.approx(math.log10(rho), abs=5e-5)
+
+
+def test_molal_to_molar_note_above_50C():
+    assert molal_to_molar_note(323.15) is None and molal_to_molar_note(298.15) is None
+    note = molal_to_molar_note(373.15)
+    assert note and "per kg" in note and "0.018" in note  # about 0.02 pH at 100 °C
+    assert molal_to_molar_offsets(373.15)[0] == pytest.approx(0.037, abs=0.001)
 
 
 def test_notes_for_extrapolated_fits():
