@@ -983,7 +983,7 @@ def compute_records(columns, records, mapping: dict, *, first_row: int = 2, row_
     Examples
     --------
     >>> out = compute_records(["id", "pH"], [("a", 7.0), ("b", float("nan"))], {"id": "id", "pH": "pH"})
-    >>> out["rows"][0]["pH"], out["errors"]
+    >>> round(out["rows"][0]["pH"], 9), out["errors"]
     (7.0, [{'row': 3, 'sample': 'b', 'message': 'pH is missing'}])
     """
     if decimal not in DECIMALS:
