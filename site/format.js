@@ -47,3 +47,51 @@ export function fixed(value, decimals) {
   if (value === null || value === undefined || !Number.isFinite(value)) return "—";
   return value.toFixed(decimals).replace("-", "−");
 }
+
+/**
+ * A plant quantity (feed, flow, kg/d) as a plain number with digit groups and about four
+ * significant figures, never in powers of ten: 2314.2 -> "2,314", 0.01234 -> "0.01234".
+ *
+ * @param {number|null} value  the quantity [any unit]
+ * @param {number} [digits]  significant figures kept
+ * @returns {string}  display text ("—" for a missing value)
+ */
+export function plainNumber(value, digits = 4) {
+  if (value === null || value === undefined || !Number.isFinite(value)) return "—";
+  if (value === 0) return "0";
+  const magnitude = Math.floor(Math.log10(Math.abs(value)));
+  const decimals = Math.max(0, Math.min(12, digits - 1 - magnitude));
+  const rounded = Number(value.toPrecision(digits));
+  return rounded
+    .toLocaleString("en-US", { minimumFractionDigits: 0, maximumFractionDigits: decimals, useGrouping: true })
+    .replace("-", "−");
+}
+
+/**
+ * A number for a CSV file: in the column's own unit, to seven significant figures (more than
+ * any input carries), without the float noise of the last digits (7.400000000000008 -> 7.4).
+ *
+ * @param {number|null} value  the number in the unit its column header names
+ * @returns {string}  "" for a missing value
+ */
+export function exportNumber(value) {
+  if (value === null || value === undefined || !Number.isFinite(value)) return "";
+  return String(Number(value.toPrecision(7)));
+}
+
+/**
+ * Text shown for a core unit string.
+ *
+ * @param {string} unit  e.g. "umol/L", "ug/L", "mg/L", "mg/L as N"
+ * @param {string|null} massBasis  formula the plain "mg/L" of a system refers to (e.g. "PO4")
+ * @returns {string}  display text
+ */
+export function unitLabel(unit, massBasis = null) {
+  const u = String(unit);
+  if (u === "umol/L") return "µmol/L";
+  if (u === "ug/L") return massBasis ? `µg/L of ${prettyFormula(massBasis)}` : "µg/L";
+  if (u === "mg/L" && massBasis) return `mg/L of ${prettyFormula(massBasis)}`;
+  if (u.startsWith("mg/L as ")) return `mg/L as ${prettyFormula(u.slice(8))}`;
+  if (u.startsWith("ug/L as ")) return `µg/L as ${prettyFormula(u.slice(8))}`;
+  return u;
+}

@@ -1,9 +1,22 @@
 // Reading numbers the user typed: shared by every section. No DOM, no chemistry.
+//
+// Accepted everywhere a number is typed:
+//   "12.5", "12,5" (decimal comma), "1 234,5" / "1,234.5" / "1.234,5" (digit groups),
+//   "−3" (typographic minus), "1e-3", "1,5e-3".
+// Temperatures also take a unit after the number: "59 °F", "59F", "15 °C", "288.15 K".
+// Lists (pKa values) are separated by ";" or by ", " (comma and space); "4.2,8.9" (no spaces,
+// decimal points) is a list too, and "4,76" alone is one number with a decimal comma.
 
-/** A decimal number as typed in a field (exponent allowed). */
+/** A plain decimal number with a point (exponent allowed): the form every number ends up in. */
 export const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
 /** A whole number as typed in a field. */
 export const INTEGER = /^[+-]?\d+$/;
+
+// 1,234.5 or 1,234,567 (a lone "1,234" is a decimal comma: 1.234)
+const GROUPED_POINT = /^[+-]?\d{1,3}((,\d{3}){2,}(\.\d*)?|(,\d{3})+\.\d*)$/;
+// 1.234,5 or 1.234.567
+const GROUPED_COMMA = /^[+-]?\d{1,3}((\.\d{3}){2,}(,\d*)?|(\.\d{3})+,\d*)$/;
+const SPACES = /[\s\u00a0\u202f\u2009']/g; // spaces, no-break and thin spaces, apostrophes as digit groups
 
 /**
  * @param {unknown} text  what the user typed
@@ -11,6 +24,25 @@ export const INTEGER = /^[+-]?\d+$/;
  */
 export function cleanNumberText(text) {
   return String(text ?? "").trim().replace(/\u2212/g, "-");
+}
+
+/**
+ * The typed text of one number in the plain form NUMBER accepts, or null.
+ *
+ * @param {string} text  cleaned text (cleanNumberText)
+ * @returns {string|null}  e.g. "12,5" -> "12.5", "1 234,5" -> "1234.5"; null when not a number
+ *
+ * @example normalizeNumberText("1,5e-3") === "1.5e-3"
+ */
+export function normalizeNumberText(text) {
+  let t = String(text).replace(SPACES, (m, offset, whole) =>
+    // a space only counts as a digit-group separator between digits
+    /\d/.test(whole[offset - 1] ?? "") && /\d/.test(whole[offset + 1] ?? "") ? "" : m);
+  if (NUMBER.test(t)) return t;
+  if (GROUPED_POINT.test(t)) t = t.replace(/,/g, "");
+  else if (GROUPED_COMMA.test(t)) t = t.replace(/\./g, "").replace(",", ".");
+  else if (/^[^.]*,[^.,]*$/.test(t)) t = t.replace(",", "."); // one decimal comma, no point
+  return NUMBER.test(t) ? t : null;
 }
 
 /**
@@ -24,6 +56,91 @@ export function cleanNumberText(text) {
 export function parseNumber(text, what, { optional = false } = {}) {
   const t = cleanNumberText(text);
   if (!t) return optional ? { value: null } : { error: `Enter ${what}.` };
-  if (!NUMBER.test(t)) return { error: `"${t}" is not a number; enter ${what}.`, raw: t };
+  const plain = normalizeNumberText(t);
+  if (plain === null) return { error: `"${t}" is not a number; enter ${what}.`, raw: t };
+  const value = Number(plain);
+  if (!Number.isFinite(value)) return { error: `"${t}" is too large; enter ${what}.`, raw: t };
+  return { value };
+}
+
+/**
+ * Parse a whole-number field (a charge).
+ *
+ * @param {unknown} text  what the user typed
+ * @param {string} what  how to name the value in a message
+ * @returns {{value?: number, error?: string, raw?: string}}
+ */
+export function parseInteger(text, what) {
+  const t = cleanNumberText(text);
+  if (!t) return { error: `Enter ${what}.` };
+  if (!INTEGER.test(t)) return { error: `"${t}" is not a whole number; enter ${what}.`, raw: t };
   return { value: Number(t) };
+}
+
+/** Temperature units a temperature field accepts after the number, to °C. */
+const TEMPERATURE_UNITS = [
+  [/^(°|º|deg\s*)?c$/i, (v) => v],
+  [/^(°|º|deg\s*)?f$/i, (v) => ((v - 32) * 5) / 9], // degree Fahrenheit, exact definition
+  [/^k$/i, (v) => v - 273.15], // kelvin: 0 °C = 273.15 K exactly (SI)
+];
+
+/**
+ * Parse a temperature typed in °C (default), °F or K.
+ *
+ * @param {unknown} text  e.g. "25", "77 °F", "77F", "298.15 K", "12,5"
+ * @param {string} what  how to name the value in a message
+ * @returns {{value?: number, error?: string, raw?: string, unit?: "C"|"F"|"K"}}  value in °C
+ *
+ * @example parseTemperature("77 °F", "a temperature").value === 25
+ */
+export function parseTemperature(text, what) {
+  const t = cleanNumberText(text);
+  if (!t) return { error: `Enter ${what}.` };
+  const m = /^(.*?)\s*((?:°|º|deg\s*)?[cfk])$/i.exec(t);
+  const number = m ? m[1] : t;
+  const suffix = m ? m[2] : "C";
+  const rule = TEMPERATURE_UNITS.find(([re]) => re.test(suffix));
+  const parsed = parseNumber(number, what);
+  if (parsed.error || !rule) return { error: `"${t}" is not a temperature; enter ${what}.`, raw: t };
+  const unit = suffix.replace(/^(°|º|deg\s*)/i, "").toUpperCase();
+  return { value: rule[1](parsed.value), unit };
+}
+
+/**
+ * Parse a list of numbers (pKa values).
+ *
+ * @param {unknown} text  e.g. "2.15, 7.20, 12.35", "2,15; 7,20", "4.2,8.9", "4,76"
+ * @param {string} what  how to name a value in a message, e.g. "pKa value"
+ * @returns {{value?: number[], error?: string, raw?: string}}
+ */
+export function parseNumberList(text, what = "value") {
+  const t = cleanNumberText(text);
+  if (!t) return { error: `Enter at least one ${what}, e.g. 4.76 (separate several with "; " or ", ").` };
+  let parts;
+  if (t.includes(";")) parts = t.split(";");
+  else if (/,\s/.test(t)) parts = t.split(/,\s+/);
+  else if (t.includes(".") || normalizeNumberText(t) === null) parts = t.split(",");
+  else parts = [t]; // "4,76": one number with a decimal comma
+  const values = [];
+  for (const [i, raw] of parts.map((p) => p.trim()).entries()) {
+    if (!raw) return { error: `Value ${i + 1} of the list is empty; separate ${what}s with "; " or ", ".`, raw: t };
+    const plain = normalizeNumberText(raw);
+    if (plain === null) return { error: `"${raw}" (value ${i + 1}) is not a number.`, raw: t };
+    values.push(Number(plain));
+  }
+  return { value: values };
+}
+
+/**
+ * The number a state object holds for a text field: the number, null when blank, else the text
+ * as typed (so a half-typed field still travels as typed).
+ *
+ * @param {unknown} text  the field's text
+ * @returns {number|string|null}
+ */
+export function stateNumber(text) {
+  const t = cleanNumberText(text);
+  if (!t) return null;
+  const plain = normalizeNumberText(t);
+  return plain === null ? t : Number(plain);
 }

@@ -1,0 +1,68 @@
+// Unit tests of site/parse.js (no DOM): decimal commas, digit groups, °F and K, lists.
+// Run: node --test tests/js/   (tests/test_js_units.py runs it under pytest).
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import {
+  normalizeNumberText, parseNumber, parseNumberList, parseTemperature, stateNumber,
+} from "../../site/parse.js";
+
+test("a decimal comma reads like a decimal point", () => {
+  assert.equal(parseNumber("12,5", "x").value, 12.5);
+  assert.equal(parseNumber(" 0,002 ", "x").value, 0.002);
+  assert.equal(parseNumber("1,5e-3", "x").value, 1.5e-3);
+  assert.equal(parseNumber("−3,25", "x").value, -3.25); // typographic minus
+  assert.equal(parseNumber("12.5", "x").value, 12.5);
+});
+
+test("digit groups are read, a lone comma group is a decimal comma", () => {
+  assert.equal(normalizeNumberText("1,234.5"), "1234.5");
+  assert.equal(normalizeNumberText("1.234,5"), "1234.5");
+  assert.equal(normalizeNumberText("1,234,567"), "1234567");
+  assert.equal(normalizeNumberText("18 000"), "18000");
+  assert.equal(normalizeNumberText("18\u202f000,5"), "18000.5");
+  assert.equal(normalizeNumberText("1,234"), "1.234");
+});
+
+test("text that is not a number is refused with the text in the message", () => {
+  for (const bad of ["seven", "1,2,3.4.5", "12,5,", "1..2", "e5", "--1"]) {
+    const r = parseNumber(bad, "a pH");
+    assert.ok(r.error, bad);
+    assert.match(r.error, /is not a number; enter a pH\./);
+    assert.equal(r.raw, bad);
+  }
+  assert.deepEqual(parseNumber("", "a pH", { optional: true }), { value: null });
+  assert.equal(parseNumber("", "a pH").error, "Enter a pH.");
+  assert.match(parseNumber("1e999", "x").error, /too large/);
+});
+
+test("temperatures in °C, °F and K (exact unit definitions)", () => {
+  assert.equal(parseTemperature("25", "t").value, 25);
+  assert.equal(parseTemperature("25 °C", "t").value, 25);
+  // 77 °F = 25 °C and 32 °F = 0 °C: (F - 32) * 5/9, the definition of the Fahrenheit scale
+  assert.equal(parseTemperature("77 °F", "t").value, 25);
+  assert.equal(parseTemperature("77F", "t").value, 25);
+  assert.equal(parseTemperature("32 f", "t").value, 0);
+  assert.ok(Math.abs(parseTemperature("59,9 °F", "t").value - 15.5) < 1e-12);
+  assert.ok(Math.abs(parseTemperature("298.15 K", "t").value - 25) < 1e-9); // 0 °C = 273.15 K (SI)
+  assert.equal(parseTemperature("77 °F", "t").unit, "F");
+  assert.match(parseTemperature("warm", "a temperature").error, /not a temperature/);
+  assert.match(parseTemperature("25 °X", "a temperature").error, /not a temperature/);
+});
+
+test("lists: '; ' or ', ' separate values, decimal commas inside", () => {
+  assert.deepEqual(parseNumberList("2.15, 7.20, 12.35").value, [2.15, 7.2, 12.35]);
+  assert.deepEqual(parseNumberList("2,15; 7,20; 12,35").value, [2.15, 7.2, 12.35]);
+  assert.deepEqual(parseNumberList("2,15, 7,20").value, [2.15, 7.2]);
+  assert.deepEqual(parseNumberList("4.2,8.9").value, [4.2, 8.9]);
+  assert.deepEqual(parseNumberList("4,76").value, [4.76]);
+  assert.deepEqual(parseNumberList("1,2,3").value, [1, 2, 3]);
+  assert.match(parseNumberList("4.76, abc").error, /"abc" \(value 2\) is not a number/);
+  assert.match(parseNumberList("4.76;; 5").error, /Value 2 of the list is empty/);
+  assert.match(parseNumberList("").error, /Enter at least one/);
+});
+
+test("state numbers: the number when the text reads as one, else the text", () => {
+  assert.equal(stateNumber("12,5"), 12.5);
+  assert.equal(stateNumber(""), null);
+  assert.equal(stateNumber("abc"), "abc");
+});
