@@ -1,13 +1,18 @@
-"""The build output (dist/) without a browser: manifest, service worker, licences, plot templates.
+"""The build output (dist/) without a browser: manifest, service worker, licences, plot templates,
+the memory snapshot, and the same bytes from two builds of the same tree.
 
 Hashes are recomputed here with hashlib; file lists are walked independently of build.py.
 """
 
 from __future__ import annotations
 
+import base64
+import gzip
 import hashlib
 import json
 import re
+import subprocess
+import sys
 import zipfile
 from importlib.metadata import version
 from pathlib import Path
@@ -15,6 +20,7 @@ from pathlib import Path
 import pytest
 
 REPO = Path(__file__).resolve().parents[2]
+BUILD = REPO / "build_scripts" / "build.py"
 
 
 @pytest.fixture(scope="module")
@@ -50,19 +56,86 @@ def test_wheel_is_pure_python_and_carries_the_data_files(dist):
     wheel = dist / manifest["wheel"]
     assert re.fullmatch(r"acidscape-[\w.]+-py3-none-any\.whl", wheel.name)
     names = zipfile.ZipFile(wheel).namelist()
-    assert "acidscape/api.py" in names
+    assert "acidscape/boundary/api.py" in names
     source_data = {p.name for p in (REPO / "pycore" / "acidscape" / "data").glob("*") if p.suffix in (".csv", ".json")}
     assert source_data and source_data <= {Path(n).name for n in names if n.startswith("acidscape/data/")}
     assert not [n for n in names if n.endswith((".so", ".pyd"))]
 
 
-def test_service_worker_caches_every_file_under_a_content_hash_name(dist):
+def service_worker_caches(dist: Path) -> dict:
     sw = (dist / "sw.js").read_text()
-    assets = json.loads(re.search(r"const ASSETS = (\[.*?\]);", sw, re.S).group(1))
-    assert set(assets) == {"./"} | {"./" + rel for rel in walk(dist) - {"sw.js"}}
-    cache = re.search(r'const CACHE_NAME = "(acidscape-[0-9a-f]{12})";', sw)
-    assert cache, "cache name missing"
     assert "/*@" not in sw  # every template marker was filled
+    return json.loads(re.search(r"const CACHES = (\{.*?\n\});", sw, re.S).group(1))
+
+
+def test_service_worker_caches_every_file_once_with_its_integrity_hash(dist):
+    caches = service_worker_caches(dist)
+    assert set(caches) == {"vendor", "snapshot", "app"}
+    urls = [url for group in caches.values() for url, _ in group["assets"]]
+    assert len(urls) == len(set(urls))
+    assert set(urls) == {"./"} | {"./" + rel for rel in walk(dist) - {"sw.js"}}
+    for group, entry in caches.items():
+        for url, integrity in entry["assets"]:
+            rel = "index.html" if url == "./" else url[2:]
+            digest = base64.b64encode(hashlib.sha256((dist / rel).read_bytes()).digest()).decode()
+            assert integrity == f"sha256-{digest}", url
+            assert group == ("vendor" if rel.startswith("vendor/") else
+                             "snapshot" if rel.startswith("snapshots/") else "app"), url
+
+
+def test_each_cache_is_named_by_its_own_contents(dist):
+    # A build that changes only the page or the core keeps the vendor cache's name: the name
+    # hashes that group's URLs and integrity hashes and nothing else.
+    for group, entry in service_worker_caches(dist).items():
+        digest = hashlib.sha256()
+        for url, integrity in entry["assets"]:
+            digest.update(url.encode() + b"\0" + integrity.encode() + b"\n")
+        assert entry["name"] == f"acidscape-{group}-{digest.hexdigest()[:12]}"
+
+
+def test_snapshot_belongs_to_this_wheel_and_pyodide(dist):
+    manifest = json.loads((dist / "manifest.json").read_text())
+    entry = manifest["snapshot"]
+    lock = json.loads((REPO / "build_scripts" / "package-lock.json").read_text())
+    wheel_sha = hashlib.sha256((dist / manifest["wheel"]).read_bytes()).hexdigest()
+    assert json.loads(entry["key"]) == {
+        "pyodide": lock["packages"]["node_modules/pyodide"]["version"],
+        "wheel_sha256": wheel_sha,
+    }
+    assert entry["encoding"] == "gzip" and entry["file"].endswith(".bin.gz")
+    heap = gzip.decompress((dist / entry["file"]).read_bytes())
+    assert len(heap) == entry["bytes"]
+    # The key is a Python string inside the saved heap (__main__._acidscape_snapshot), and the
+    # core's cached loaders were run before the heap was saved.
+    assert entry["key"].encode() in heap
+    assert any(name.endswith("library._systems") for name in entry["loaders"])
+
+
+def test_wheel_entries_are_sorted_with_fixed_times_and_modes(dist):
+    manifest = json.loads((dist / "manifest.json").read_text())
+    infos = zipfile.ZipFile(dist / manifest["wheel"]).infolist()
+    names = [i.filename for i in infos]
+    assert names[-1].endswith(".dist-info/RECORD")
+    body = [n for n in names if ".dist-info/" not in n]
+    assert body == sorted(body) and names[: len(body)] == body
+    assert {i.date_time for i in infos} == {infos[0].date_time}
+    assert {i.external_attr >> 16 for i in infos} == {0o100644}
+
+
+def test_two_builds_of_the_same_tree_are_byte_identical(tmp_path):
+    # Two fresh builds (not the session's dist/, which may predate an edit): every file,
+    # the wheel, the snapshot and sw.js (so the cache names) included.
+    outs = [tmp_path / "one", tmp_path / "two"]
+    for out in outs:
+        done = subprocess.run([sys.executable, str(BUILD), "--out", str(out)], capture_output=True, text=True,
+                              timeout=900)
+        assert done.returncode == 0, done.stdout + done.stderr
+    files = [walk(out) for out in outs]
+    assert files[0] == files[1]
+    differ = [rel for rel in sorted(files[0]) if (outs[0] / rel).read_bytes() != (outs[1] / rel).read_bytes()]
+    assert differ == []
+    manifest = json.loads((outs[0] / "manifest.json").read_text())
+    assert manifest["wheel"].endswith(".whl") and manifest["snapshot"]["file"] in files[0]
 
 
 def test_third_party_licence_texts_are_shipped(dist):
