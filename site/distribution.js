@@ -4,11 +4,17 @@
 // mount<Name>({py, view, plots, status, ...}) function returning {refresh}.
 
 import { CoreError } from "./py.js";
-import { prettyFormula } from "./format.js";
-import { INTEGER, NUMBER, cleanNumberText, parseNumber } from "./parse.js";
+import { fixed, prettyFormula } from "./format.js";
+import { parseInteger, parseNumber, parseNumberList } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
+import { computation } from "./section.js";
 
 const DEBOUNCE_MS = 120;
+// What an input goes back to when a link or file holds a value the page cannot use.
+const DEFAULTS = { "pka-input": "2.15, 7.20, 12.35", "charge-input": "0", "total-input": "0.001", "ph-input": "7" };
+const INPUT_WORD = {
+  "pka-input": "pKa values", "charge-input": "charge", "total-input": "total concentration", "ph-input": "pH",
+};
 const LOG_SPAN = 12; // decades shown on the log-concentration axis
 
 // Core error fields -> ids of the inputs they concern.
@@ -33,29 +39,18 @@ function readable(message, field) {
 }
 
 function inputForField(field) {
-  if (!field) return "form";
+  if (!field) return "block";
   const base = String(field).replace(/\[\d+\]$/, "");
-  return FIELD_INPUT[base] || "form";
+  return FIELD_INPUT[base] || "block";
 }
 
 function parsePkaList(text) {
-  const t = String(text).trim();
-  if (!t) return { error: "Enter at least one pKa value, e.g. 4.76 (for several, separate with commas)." };
-  const parts = t.split(",").map(cleanNumberText);
-  const values = [];
-  for (const [i, part] of parts.entries()) {
-    if (!part) return { error: `Value ${i + 1} of the list is empty; separate pKa values with single commas.` };
-    if (!NUMBER.test(part)) return { error: `"${part}" (value ${i + 1}) is not a number.` };
-    values.push(Number(part));
-  }
-  return { value: values };
+  return parseNumberList(text, "pKa value");
 }
 
 function parseCharge(text) {
-  const t = cleanNumberText(text);
-  if (!t) return { error: "Enter the charge of the most protonated form, e.g. 0 or 1." };
-  if (!INTEGER.test(t)) return { error: `"${t}" is not a whole number; a charge is e.g. -1, 0 or 1.` };
-  return { value: Number(t) };
+  const parsed = parseInteger(text, "the charge of the most protonated form, e.g. 0 or 1");
+  return parsed.raw ? { ...parsed, error: `"${parsed.raw}" is not a whole number; a charge is e.g. -1, 0 or 1.` } : parsed;
 }
 
 /**
@@ -72,8 +67,7 @@ function parseCharge(text) {
  */
 export function mountDistribution({ py, view, plots, status, systems }) {
   const library = new Map((systems || []).map((s) => [s.id, s]));
-  let latest = 0;
-  let timer = null;
+  let shownFor = null; // the parameters of the result on screen
 
   if (library.size) {
     view.setAcidOptions([...library.values()]);
@@ -129,35 +123,57 @@ export function mountDistribution({ py, view, plots, status, systems }) {
     status.markDrawn();
   }
 
-  async function refresh() {
-    const { params, errors } = collect();
-    const seq = ++latest;
-    if (Object.keys(errors).length) {
-      view.showErrors(errors); // the last good result stays on screen
-      return false;
-    }
-    view.setBusy(true);
-    try {
-      const result = await py.call("distribution", params);
-      if (seq !== latest) return false; // a newer request is on its way
+  function staleNote(kind) {
+    if (!shownFor) return "";
+    const what = shownFor.system ? library.get(shownFor.system)?.name ?? shownFor.system : `pKa ${shownFor.pKa.join(", ")}`;
+    const why = kind === "invalid" ? "an input above cannot be used" : "the core could not use these inputs";
+    return `Not updated: ${why}. The table and plots still show the last valid inputs ` +
+      `(${what}, ${shownFor.total_M} mol/L, pH ${fixed(shownFor.pH, 2)}).`;
+  }
+
+  const block = computation({
+    read: collect,
+    call: (params) => py.call("distribution", params),
+    render(result, params) {
       view.showErrors({});
       draw(result);
-      return true;
-    } catch (error) {
-      if (seq !== latest) return false;
-      const target = error instanceof CoreError ? inputForField(error.field) : "form";
-      view.showErrors({ [target]: readable(error.message, error.field) });
-      return false;
-    } finally {
-      if (seq === latest) view.setBusy(false);
+      shownFor = params;
+      view.setResultState("current");
+    },
+    explain(error) {
+      const target = error instanceof CoreError ? inputForField(error.field) : "block";
+      return { [target]: readable(error.message, error.field) };
+    },
+    show(messages, kind) {
+      view.showErrors(messages); // the last good result stays on screen, marked as such
+      view.setResultState(shownFor ? "stale" : "empty", staleNote(kind));
+    },
+    busy: (flag) => view.setBusy(flag),
+  });
+
+  async function refresh() {
+    return (await block.run()) === "drawn";
+  }
+
+  function reset(problems) {
+    const key = { "pka-input": "pka", "charge-input": "charge", "total-input": "total", "ph-input": "ph" };
+    const notes = [];
+    for (const [id, message] of Object.entries(problems)) {
+      if (!(id in DEFAULTS)) continue;
+      const had = view.read()[key[id]];
+      if (had === DEFAULTS[id]) continue;
+      if ((id === "pka-input" || id === "charge-input") && view.read().acid !== "custom") continue;
+      view.write(id, DEFAULTS[id]);
+      notes.push(`distribution: ${INPUT_WORD[id]} "${String(had).slice(0, 40)}" could not be used ` +
+        `(${message.replace(/\.$/, "")}); ${DEFAULTS[id]} is used instead`);
     }
+    return notes;
   }
 
   view.bindChange((what) => {
     if (what === "acid") fillFromLibrary(view.read().acid);
     if (what === "values" && view.read().acid !== "custom") view.setAcid("custom");
-    clearTimeout(timer);
-    timer = setTimeout(refresh, what === "acid" ? 0 : DEBOUNCE_MS);
+    block.schedule(what === "acid" ? 0 : DEBOUNCE_MS);
     notifyInputChange("distribution");
   });
 
@@ -202,12 +218,12 @@ export function mountDistribution({ py, view, plots, status, systems }) {
     for (const [key, id] of Object.entries(fields)) {
       if (obj[key] === undefined) continue;
       const text = asText(obj[key], key, false);
-      if (text !== undefined) view.inputs[id].value = text;
+      if (text !== undefined) view.write(id, text);
     }
     return notes;
   }
 
-  registerSection("distribution", { get: getState, set: setState, refresh });
+  registerSection("distribution", { get: getState, set: setState, refresh, settle: () => block.settle(reset) });
 
   return { refresh };
 }

@@ -1,21 +1,28 @@
-// Composition root: start Python, embed the plots, mount the sections, go offline-capable.
+// Composition root: start Python, embed the plots, mount the sections, open what the URL names,
+// go offline-capable. The only module that creates views (and so touches the document).
 
 import { onBootProgress, sharedPython } from "./py.js";
-import { embedPlots } from "./plot.js";
+import { embedBufferPlot, embedPlots, embedTitrationPlot } from "./plot.js";
 import { AboutView, DistributionView, StatusView } from "./view.js";
 import { mountDistribution } from "./distribution.js";
 import { mountWater } from "./water.js";
 import { WaterView, embedWaterPlots } from "./water-view.js";
-import { embedBufferPlot, embedTitrationPlot } from "./plot.js";
 import { mountTreatment } from "./treatment.js";
 import { TreatmentView } from "./treatment-view.js";
-import { ShareView, mountShare, watchForUpdates } from "./share-view.js";
+import { ShareView, watchForUpdates } from "./share-view.js";
+import { mountShare, openingOf } from "./share-section.js";
 import { loadPresets } from "./presets.js";
+import { applyState } from "./state.js";
+import { onPendingChange } from "./section.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
 
+/** The sections a link, file or example may hold, in the order they are computed. */
+const SECTIONS = ["distribution", "water", "treatment"];
+
 const status = new StatusView(document);
 const about = new AboutView(document);
+onPendingChange((count) => status.setPending(count));
 
 // The build manifest (versions, file hashes, constants fingerprint): fetched once, used twice.
 const manifest = fetch("./manifest.json")
@@ -26,13 +33,24 @@ manifest.then((m) => about.render(m?.versions));
 const py = sharedPython(); // already started by boot.js
 onBootProgress((step) => status.progress(step));
 const plots = embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });
+const presetsLoading = loadPresets("./presets.json");
 
 try {
-  const [versions, plotHandles] = await Promise.all([py.ready, plots]);
+  const [versions, plotHandles, presets] = await Promise.all([py.ready, plots, presetsLoading]);
   about.render(versions);
-  const waterLibrary = await py.call("systems").catch(() => ({ systems: [], ions: [] }));
+  const [waterLibrary, chemicalList] = await Promise.all([
+    py.call("systems").catch(() => ({ systems: [], ions: [] })),
+    py.call("chemicals").then((r) => r.chemicals),
+  ]);
   const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
-  const distribution = mountDistribution({
+
+  // What the URL opens (a link or an example) is read before anything is computed, and each
+  // section is filled from it before its first result: the defaults never flash first.
+  const opening = openingOf(window.location.hash, presets, SECTIONS);
+  const opened = opening.state ?? {};
+  const messages = [...(opening.notes ?? [])];
+
+  mountDistribution({
     py,
     view: new DistributionView(document),
     plots: plotHandles,
@@ -40,7 +58,8 @@ try {
     systems: library,
   });
   // Draw the first result before mounting the rest: it is what the user waits for.
-  await distribution.refresh();
+  messages.push(...(await applyState(opened, ["distribution"])));
+
   // Section "Equilibrium of a whole water" (water.js); its handle feeds later sections.
   const water = mountWater({
     py,
@@ -49,10 +68,10 @@ try {
     palette: plotHandles.palette,
     systems: waterLibrary.systems,
     ions: waterLibrary.ions,
+    co2MolarMass: chemicalList.find((c) => c.id === "CO2")?.molar_mass_g_per_mol ?? null,
   });
   // Section "treatment" (treatment.js): titration, buffer intensity and dose, on that water.
-  const [chemicalList, titrationPlot, bufferPlot] = await Promise.all([
-    py.call("chemicals").then((r) => r.chemicals),
+  const [titrationPlot, bufferPlot] = await Promise.all([
     embedTitrationPlot("plot-titration"),
     embedBufferPlot("plot-buffer"),
   ]);
@@ -64,18 +83,21 @@ try {
     chemicals: chemicalList,
     systems: library,
   });
-  status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
-  await water.refresh();
-  // Keep and share (share-view.js): the URL's link or example is applied once the defaults are drawn.
+  messages.push(...(await applyState(opened, ["water", "treatment"])));
+
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });
-  await mountShare({
+  // Keep and share: says what the URL opened (and what of it was dropped), keeps the link current.
+  mountShare({
     py,
     view: new ShareView(document),
-    presets: await loadPresets("./presets.json"),
+    presets,
     manifest,
     versions,
     win: window,
+    opened: { opening, messages },
   });
+  status.ready("Ready. Everything is computed in this browser; nothing is sent anywhere.");
+  status.pageReady();
 } catch (error) {
   status.fatal(String(error?.message || error));
 }

@@ -85,12 +85,14 @@ class SpeciesPlot {
    * @param {number[][]} ys  one y array per line, same length as x (NaN leaves a gap)
    */
   setLines(x, labels, ys) {
+    if (labels.length !== ys.length) throw new Error(`plot: ${labels.length} labels for ${ys.length} lines`);
     const longest = Math.max(1, ...labels.map((label) => label.length));
     const perColumn = 44 + 8 * longest; // swatch + spacing + text [px], roughly
     const fit = Math.floor((this.host.clientWidth || 600) / perColumn);
     const columns = Math.max(1, Math.min(labels.length, fit));
-    const rows = Math.ceil(labels.length / columns);
-    this.legend.nrows = rows; // filled row by row, in species order
+    const rows = Math.ceil(labels.length / columns); // 0 for a plot without lines
+    this.legend.nrows = Math.max(1, rows); // Bokeh takes a positive count; filled row by row
+    this.legend.visible = labels.length > 0;
     const height = this.layout.base_height_px + rows * this.layout.legend_row_px;
     if (this.figure.height !== height) this.figure.height = height;
     this.source.data = {

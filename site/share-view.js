@@ -1,17 +1,9 @@
-// Section "Scenario: examples, link and files": the DOM of #share-section and the glue that keeps
-// the URL fragment equal to the page's inputs, opens links, examples, recent scenarios and
-// files, and runs the exports and the printed report. Text reaches the page only through
-// textContent and input values.
+// The DOM of section "Scenario: examples, link and files" (#share-section) and of the
+// new-version notice. The logic (links, examples, recent list, files, exports) is in
+// share-section.js; it reaches the page only through this view. Text reaches the page only
+// through textContent and input values.
 
-import { applyState, collectState, onInputChange, sectionNames } from "./state.js";
-import { encodeState, readFragment, readStateJson } from "./share.js";
-import { RecentStore, describeState, findPreset } from "./presets.js";
-import {
-  curveRows, downloadBlob, fillReport, pagePlots, pageTables, plotPng, scenarioBlob, stamp, tableRows, toCsv,
-} from "./export.js";
-
-const URL_DEBOUNCE_MS = 300;
-const RECENT_DEBOUNCE_MS = 2500;
+import { downloadBlob, fillReport, pagePlots, pageTables, plotPng, tableRows } from "./export-view.js";
 
 function byId(doc, id) {
   const el = doc.getElementById(id);
@@ -107,6 +99,94 @@ export class ShareView {
     this.el["share-url"].value = url;
   }
 
+  /** @param {string} id  one of the section's ids @returns {string}  its value */
+  value(id) {
+    return this.el[id].value;
+  }
+
+  /**
+   * Call `handler` when the user acts on one of the section's controls.
+   *
+   * @param {string} id  "preset-select", "recent-select" (change), a button id (click) or
+   *        "load-json" (a file chosen: handler(file))
+   * @param {Function} handler
+   */
+  on(id, handler) {
+    const el = this.el[id];
+    if (id === "load-json") {
+      el.addEventListener("change", () => {
+        const file = el.files?.[0] ?? null;
+        el.value = "";
+        if (file) handler(file);
+      });
+    } else {
+      el.addEventListener(el.tagName === "SELECT" ? "change" : "click", () => handler(el.value));
+    }
+  }
+
+  /** Select the link text so the user can copy it by hand. */
+  selectLink() {
+    this.el["share-url"].focus();
+    this.el["share-url"].select();
+  }
+
+  /** Keep the export menus filled with the tables and plots the page shows now. */
+  keepMenusFilled() {
+    const fill = () => {
+      this.setMenu("export-table-select", pageTables(this.doc));
+      this.setMenu("export-plot-select", pagePlots(this.doc));
+    };
+    this.doc.querySelector("#share-section .share-exports").addEventListener("toggle", fill);
+    for (const id of ["export-table-select", "export-plot-select"]) {
+      this.el[id].addEventListener("focus", fill);
+      this.el[id].addEventListener("pointerdown", fill);
+    }
+    this.fillMenus = fill;
+    fill();
+  }
+
+  /** @returns {{name: string, table: HTMLTableElement}|null}  the table chosen for export */
+  chosenTable() {
+    const tables = pageTables(this.doc);
+    return tables[Number(this.el["export-table-select"].value)] ?? tables[0] ?? null;
+  }
+
+  /** @returns {{name: string, host: Element}|null}  the plot chosen for export */
+  chosenPlot() {
+    const plots = pagePlots(this.doc);
+    return plots[Number(this.el["export-plot-select"].value)] ?? plots[0] ?? null;
+  }
+
+  /** @param {HTMLTableElement} table @returns {string[][]}  its rows for CSV */
+  tableRows(table) {
+    return tableRows(table);
+  }
+
+  /** @param {Element} host @returns {Promise<Blob>}  the plot as a PNG */
+  plotPng(host) {
+    return plotPng(host);
+  }
+
+  /** @param {Blob} blob @param {string} filename  offer a download */
+  download(blob, filename) {
+    downloadBlob(this.doc, blob, filename);
+  }
+
+  /** @param {object} info  fill #report for printing (export-view.js fillReport) */
+  fillReport(info) {
+    fillReport(this.doc, this.el.report, info);
+  }
+
+  /** Count one opened link, example, file or recent scenario on body[data-opened]. */
+  markOpened() {
+    this.doc.body.dataset.opened = String(Number(this.doc.body.dataset.opened || 0) + 1);
+  }
+
+  /** The URL's link or example has been applied: body[data-share-ready]. */
+  markReady() {
+    this.doc.body.dataset.shareReady = "true";
+  }
+
   /** @param {{name: string}[]} items @param {string} id  fill one of the export menus */
   setMenu(id, items) {
     const select = this.el[id];
@@ -121,223 +201,6 @@ export class ShareView {
     );
     if (keep && Number(keep) < items.length) select.value = keep;
   }
-}
-
-/**
- * Keep the link in step with the inputs and wire the section's buttons.
- *
- * @param {object} deps
- * @param {{call: Function}} deps.py  the core
- * @param {ShareView} deps.view  the section's DOM
- * @param {object[]} deps.presets  worked examples (presets.js loadPresets)
- * @param {Promise<object|null>} deps.manifest  the build manifest (versions, file hashes)
- * @param {object} deps.versions  versions Python reported
- * @param {Window} deps.win  the window (location, history, clipboard, localStorage, print)
- * @returns {Promise<{openFragment: (hash: string) => Promise<void>}>}  resolves once the URL's
- *          link or example (if any) has been applied
- */
-export async function mountShare({ py, view, presets, manifest, versions, win }) {
-  const doc = view.doc;
-  let storage = null;
-  try {
-    storage = win.localStorage;
-  } catch {
-    storage = null; // blocked by the browser's settings: recent scenarios are simply not kept
-  }
-  const recent = new RecentStore(storage);
-  let urlTimer = null;
-  let recentTimer = null;
-  let currentPreset = null;
-  let applying = false; // sections may report changes while a link is being applied: not edits
-
-  view.setPresets(presets);
-  view.setRecent(recent.list());
-
-  const pageUrl = (fragment) => `${win.location.href.split("#")[0]}#${fragment}`;
-
-  function writeLink(fragment) {
-    win.history.replaceState(null, "", `#${fragment}`);
-    view.setLink(pageUrl(fragment));
-  }
-
-  function remember() {
-    clearTimeout(recentTimer);
-    recentTimer = setTimeout(() => {
-      const state = collectState();
-      const title = currentPreset ? currentPreset.title : describeState(state);
-      if (recent.add(encodeState(state), title)) view.setRecent(recent.list());
-    }, RECENT_DEBOUNCE_MS);
-  }
-
-  onInputChange(() => {
-    if (applying) return;
-    currentPreset = null;
-    view.showPreset(null);
-    clearTimeout(urlTimer);
-    urlTimer = setTimeout(() => writeLink(encodeState(collectState())), URL_DEBOUNCE_MS);
-    remember();
-  });
-
-  async function applyChecked(state, notes, what) {
-    applying = true;
-    try {
-      return [...notes, ...(await applyState(state))];
-    } finally {
-      applying = false;
-    }
-  }
-
-  async function openPreset(id, { fromUrl = false } = {}) {
-    const preset = findPreset(presets, id);
-    if (!preset) {
-      view.message("error", `This link names an example ("${id.slice(0, 60)}") that this copy of Acidscape does not have; the page shows its defaults.`);
-      return;
-    }
-    const checked = readStateJson(JSON.stringify(preset.state), sectionNames());
-    const messages = await applyChecked(checked.state, checked.notes, "example");
-    currentPreset = preset;
-    view.showPreset(preset);
-    writeLink(`preset=${preset.id}`);
-    if (messages.length) {
-      view.message("warning", `Opened the example "${preset.title}", but some of it could not be used:`, messages);
-    } else if (!fromUrl) {
-      view.message("info", `Opened the example "${preset.title}" (${preset.label}).`);
-    } else {
-      view.clearMessage();
-    }
-    remember();
-  }
-
-  async function openState(state, notes, source) {
-    const messages = await applyChecked(state, notes, source);
-    writeLink(encodeState(collectState()));
-    if (messages.length) view.message("warning", `Opened the scenario from ${source}. Some of it was ignored:`, messages);
-    else view.message("info", `Opened the scenario from ${source}.`);
-    remember();
-  }
-
-  async function openFragment(hash) {
-    const found = readFragment(hash, sectionNames());
-    if (found.kind === "none") {
-      view.setLink(pageUrl(encodeState(collectState())));
-      return;
-    }
-    if (found.kind === "preset") {
-      await openPreset(found.id, { fromUrl: true });
-      return;
-    }
-    if (found.kind === "error") {
-      view.message("error", `This link could not be used: ${found.reason}. The page shows its defaults instead.`);
-      writeLink(encodeState(collectState()));
-      return;
-    }
-    await openState(found.state, found.notes, "the link");
-  }
-
-  win.addEventListener("hashchange", () => openFragment(win.location.hash));
-
-  view.el["preset-select"].addEventListener("change", () => {
-    const id = view.el["preset-select"].value;
-    if (id) openPreset(id);
-  });
-
-  view.el["recent-select"].addEventListener("change", () => {
-    const index = Number(view.el["recent-select"].value);
-    const item = recent.list()[index];
-    if (!item) return;
-    const found = readFragment(`#${item.link}`, sectionNames());
-    if (found.kind === "state") openState(found.state, found.notes, `your recent list (${item.title})`);
-    else view.message("error", "That recent scenario could not be read; it may come from another version.");
-  });
-
-  view.el["recent-clear"].addEventListener("click", () => {
-    recent.clear();
-    view.setRecent([]);
-    view.message("info", "Your recent scenarios were removed from this browser.");
-  });
-
-  view.el["share-copy"].addEventListener("click", async () => {
-    clearTimeout(urlTimer);
-    if (!currentPreset) writeLink(encodeState(collectState()));
-    const url = view.el["share-url"].value;
-    try {
-      if (!win.navigator.clipboard) throw new Error("no clipboard");
-      await win.navigator.clipboard.writeText(url);
-      view.message("info", "Link copied. Paste it into a message or a bookmark.");
-    } catch {
-      view.el["share-url"].focus();
-      view.el["share-url"].select();
-      view.message("info", "This browser did not let the page copy. The link is selected in the box: copy it with Ctrl+C (or ⌘C, or a long press).");
-    }
-  });
-
-  view.el["save-json"].addEventListener("click", () => {
-    downloadBlob(doc, scenarioBlob(collectState()), `acidscape-scenario-${stamp()}.json`);
-  });
-
-  view.el["load-json"].addEventListener("change", async () => {
-    const file = view.el["load-json"].files?.[0];
-    view.el["load-json"].value = "";
-    if (!file) return;
-    if (file.size > 256 * 1024) {
-      view.message("error", `"${file.name}" is ${Math.round(file.size / 1024)} kB, too large for a scenario file; nothing was changed.`);
-      return;
-    }
-    try {
-      const checked = readStateJson(await file.text(), sectionNames());
-      currentPreset = null;
-      view.showPreset(null);
-      await openState(checked.state, checked.notes, `the file "${file.name}"`);
-    } catch (error) {
-      view.message("error", `"${file.name}" could not be opened: ${error?.message || error}. Nothing was changed.`);
-    }
-  });
-
-  const refreshMenus = () => {
-    view.setMenu("export-table-select", pageTables(doc));
-    view.setMenu("export-plot-select", pagePlots(doc));
-  };
-  doc.querySelector("#share-section .share-exports").addEventListener("toggle", refreshMenus);
-  for (const id of ["export-table-select", "export-plot-select"]) view.el[id].addEventListener("focus", refreshMenus);
-
-  view.el["export-table-csv"].addEventListener("click", () => {
-    const tables = pageTables(doc);
-    const item = tables[Number(view.el["export-table-select"].value)] ?? tables[0];
-    if (!item) {
-      view.message("warning", "There is no table to export yet.");
-      return;
-    }
-    const name = (item.table.id || "table").replace(/[^a-z0-9-]/gi, "");
-    downloadBlob(doc, new Blob([toCsv(tableRows(item.table))], { type: "text/csv" }), `acidscape-${name}-${stamp()}.csv`);
-  });
-
-  view.el["export-curves-csv"].addEventListener("click", async () => {
-    const rows = await curveRows(py, collectState());
-    downloadBlob(doc, new Blob([toCsv(rows)], { type: "text/csv" }), `acidscape-curves-${stamp()}.csv`);
-  });
-
-  view.el["export-plot-png"].addEventListener("click", async () => {
-    const plots = pagePlots(doc);
-    const item = plots[Number(view.el["export-plot-select"].value)] ?? plots[0];
-    try {
-      if (!item) throw new Error("no plot has been drawn yet");
-      downloadBlob(doc, await plotPng(item.host), `acidscape-${item.host.id || "plot"}-${stamp()}.png`);
-    } catch (error) {
-      view.message("warning", `The plot could not be saved: ${error?.message || error}.`);
-    }
-  });
-
-  view.el["print-report"].addEventListener("click", async () => {
-    const state = collectState();
-    fillReport(doc, view.el.report, {
-      state, link: pageUrl(encodeState(state)), versions, manifest: await manifest,
-    });
-    win.print();
-  });
-
-  await openFragment(win.location.hash);
-  doc.body.dataset.shareReady = "true";
-  return { openFragment };
 }
 
 /**

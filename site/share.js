@@ -8,6 +8,8 @@
 //                           Version 1 = {v: 1, <section name>: <that section's inputs>, ...}
 //                           with the section shapes of the contract (distribution, water,
 //                           treatment, ...).
+//                           Version 2 = version 1 with strong ions keyed by words ("calcium",
+//                           "sulfate"); version 1 keyed them by formula ("Ca+2", "SO4-2").
 //                           Version 0 (the first, single-section format, still read): a flat
 //                           object {version: 0, acid, pka: "2.15, 7.2", z, c, ph} for the
 //                           species section only; migrate() turns it into version 1.
@@ -78,6 +80,16 @@ export function encodeState(state) {
   return `s=${version}.${toBase64Url(new TextEncoder().encode(json))}`;
 }
 
+/**
+ * The word ids of the strong ions that format 1 keyed by formula (the core accepts both; the
+ * page and its examples use the words from format 2 on).
+ */
+export const ION_WORDS = Object.freeze({
+  "Na+": "sodium", "K+": "potassium", "Li+": "lithium", "Ca+2": "calcium", "Mg+2": "magnesium",
+  "Sr+2": "strontium", "Ba+2": "barium", "Cl-": "chloride", "Br-": "bromide", "I-": "iodide",
+  "NO3-": "nitrate", "SO4-2": "sulfate", "ClO4-": "perchlorate", "ClO3-": "chlorate", "BrO3-": "bromate",
+});
+
 /** Migrations: MIGRATIONS[n] turns a version-n state into a version-(n+1) state. */
 const MIGRATIONS = {
   0: (old) => {
@@ -96,6 +108,23 @@ const MIGRATIONS = {
     out.distribution = dist;
     notes.push("an older link (format 0) was brought up to date");
     return { state: out, notes };
+  },
+  1: (old) => {
+    // Strong ions: formula ids -> word ids. Nothing else changed between formats 1 and 2.
+    const out = { ...old, v: 2 };
+    const ions = old?.water?.scenario?.ions;
+    if (Array.isArray(ions)) {
+      out.water = {
+        ...old.water,
+        scenario: {
+          ...old.water.scenario,
+          ions: ions.map((e) =>
+            e && typeof e === "object" && typeof e.id === "string" && Object.hasOwn(ION_WORDS, e.id)
+              ? { ...e, id: ION_WORDS[e.id] } : e),
+        },
+      };
+    }
+    return { state: out, notes: [] };
   },
 };
 

@@ -5,17 +5,21 @@
 //   get() -> a JSON-able object holding the section's INPUTS (never its results), and
 //   set(obj) -> fills the inputs from such an object and returns a list of messages (strings)
 //               for anything it could not use; it does not recompute (applyState does that).
+//   settle() -> computes; an input the core or the parser cannot use is put back to its default
+//               and named in the returned notes, so an opened link always computes.
 // A section calls notifyInputChange(name) whenever the user changes one of its inputs.
 
-/** Version of the state object; share.js migrates older versions up to this one. */
-export const STATE_VERSION = 1;
+/** Version of the state object; share.js migrates older versions up to this one.
+ *  2: strong ions keyed by words ("calcium", "sulfate") instead of formulas ("Ca+2", "SO4-2"). */
+export const STATE_VERSION = 2;
 
 const sections = new Map();
 const listeners = new Set();
 
 /**
  * @param {string} name  key of the section in the state object (e.g. "distribution", "water")
- * @param {{get: () => object, set: (obj: object) => string[], refresh?: () => Promise<any>}} handlers
+ * @param {{get: () => object, set: (obj: object) => string[], settle?: () => Promise<string[]>,
+ *          refresh?: () => Promise<any>}} handlers
  */
 export function registerSection(name, handlers) {
   sections.set(name, handlers);
@@ -34,14 +38,17 @@ export function collectState() {
 }
 
 /**
- * Fill every section from a state object, then recompute each one in order.
+ * Fill sections from a state object, then compute each one in order; what cannot be used is
+ * dropped (the input keeps its default) and named in the messages.
  *
  * @param {object} state  as made by collectState (already migrated to STATE_VERSION)
- * @returns {Promise<string[]>}  messages about what was ignored
+ * @param {string[]} [names]  only these sections (default: every registered one)
+ * @returns {Promise<string[]>}  messages about what was ignored or dropped
  */
-export async function applyState(state) {
+export async function applyState(state, names = null) {
   const messages = [];
-  for (const [name, { set }] of sections) {
+  const chosen = [...sections].filter(([name]) => !names || names.includes(name));
+  for (const [name, { set }] of chosen) {
     if (state && Object.prototype.hasOwnProperty.call(state, name)) {
       try {
         messages.push(...(set(state[name]) || []));
@@ -50,7 +57,10 @@ export async function applyState(state) {
       }
     }
   }
-  for (const [, { refresh }] of sections) if (refresh) await refresh();
+  for (const [, { settle, refresh }] of chosen) {
+    if (settle) messages.push(...((await settle()) || []));
+    else if (refresh) await refresh();
+  }
   return messages;
 }
 

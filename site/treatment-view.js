@@ -2,7 +2,8 @@
 // Elements are looked up once; text goes in through textContent only, so core messages and
 // user text are always escaped. No chemistry here: numbers arrive ready from treatment.js.
 
-import { fixed, prettyFormula, sciNumber } from "./format.js";
+import { exportNumber, fixed, plainNumber, prettyFormula, sciNumber } from "./format.js";
+import { FieldMessages, markResults } from "./view.js";
 
 function byId(doc, id) {
   const el = doc.getElementById(id);
@@ -37,11 +38,10 @@ export class TreatmentView {
     this.section = byId(doc, "treatment-section");
     const all = [...TITRATION_INPUTS, ...BUFFER_INPUTS, ...DOSE_INPUTS];
     this.inputs = Object.fromEntries(all.map((id) => [id, byId(doc, id)]));
-    this.errors = Object.fromEntries(all.map((id) => [id, byId(doc, `${id}-error`)]));
-    this.blockError = {
-      titration: byId(doc, "titration-error"),
-      buffer: byId(doc, "buffer-error"),
-      dose: byId(doc, "dose-error"),
+    this.messages = {
+      titration: new FieldMessages(doc, byId(doc, "titration-form"), "titration-error"),
+      buffer: new FieldMessages(doc, byId(doc, "buffer-form"), "buffer-error"),
+      dose: new FieldMessages(doc, byId(doc, "dose-form"), "dose-error"),
     };
     this.waterLine = byId(doc, "treatment-water");
     this.titrationWarning = byId(doc, "titration-warning");
@@ -135,14 +135,7 @@ export class TreatmentView {
    * @param {Record<string, string>} messages  input id (or "block") -> message
    */
   showErrors(block, messages) {
-    const ids = { titration: TITRATION_INPUTS, buffer: BUFFER_INPUTS, dose: DOSE_INPUTS }[block];
-    for (const id of ids) {
-      const message = messages[id] || "";
-      this.errors[id].textContent = message;
-      if (message) this.inputs[id].setAttribute("aria-invalid", "true");
-      else this.inputs[id].removeAttribute("aria-invalid");
-    }
-    this.blockError[block].textContent = messages.block || "";
+    this.messages[block].show(messages);
   }
 
   /** @param {"titration"|"buffer"|"dose"} block @param {boolean} busy */
@@ -150,9 +143,23 @@ export class TreatmentView {
     this.results[block].setAttribute("aria-busy", busy ? "true" : "false");
   }
 
-  /** @param {"titration"|"buffer"|"dose"} block @param {boolean} stale  results no longer match the inputs */
-  setStale(block, stale) {
-    this.results[block].classList.toggle("stale", stale);
+  /**
+   * @param {"titration"|"buffer"|"dose"} block
+   * @param {"current"|"stale"|"empty"} state  whether its figures match the inputs on screen
+   * @param {string} [note]  why not, for "stale"
+   */
+  setResultState(block, state, note) {
+    markResults(this.results[block], state, note);
+  }
+
+  /** @param {boolean} gas  the titrant is a gas: its concentration, volume and axis do not apply */
+  setGasTitrant(gas) {
+    for (const id of ["titrant-conc", "sample-volume", "titration-axis"]) this.inputs[id].disabled = gas;
+  }
+
+  /** @param {string} id  input id @returns {boolean}  a drop-down (changes take effect at once) */
+  isChoice(id) {
+    return this.inputs[id].tagName === "SELECT";
   }
 
   /** Count one drawn result of a block on the section element (data-<block>-drawn). */
@@ -161,9 +168,13 @@ export class TreatmentView {
     this.section.dataset[key] = String(Number(this.section.dataset[key] || 0) + 1);
   }
 
-  /** @param {string} text  which water the section works on */
-  setWater(text) {
+  /**
+   * @param {string} text  which water the section works on
+   * @param {boolean} [stale]  the water above cannot be used now: say so prominently
+   */
+  setWater(text, stale = false) {
     this.waterLine.textContent = text;
+    this.waterLine.dataset.state = stale ? "stale" : "current";
   }
 
   /** @param {string} text  hint under the titrant list */
@@ -265,14 +276,15 @@ export class TreatmentView {
     this.value(o.meq, r?.dose_meq_per_L ?? null, `${short(r?.dose_meq_per_L)} meq/L`);
     // Without a result every figure is a dash; with one, say what is missing for the empty ones.
     const missing = (text) => (r ? text : "—");
-    this.value(o.pureKg, r?.pure_chemical_kg_per_d ?? null, `${short(r?.pure_chemical_kg_per_d)} kg/d`,
+    // Plant quantities as plain grouped numbers (2,314 kg/d), never in powers of ten.
+    this.value(o.pureKg, r?.pure_chemical_kg_per_d ?? null, `${plainNumber(r?.pure_chemical_kg_per_d)} kg/d`,
       missing("give the plant flow"));
-    this.value(o.productMg, p.product_mg_per_L ?? null, `${short(p.product_mg_per_L)} mg/L of product`,
+    this.value(o.productMg, p.product_mg_per_L ?? null, `${plainNumber(p.product_mg_per_L)} mg/L of product`,
       missing("give the product strength"));
-    this.value(o.kg, p.feed_kg_per_d ?? null, `${short(p.feed_kg_per_d)} kg/d`,
+    this.value(o.kg, p.feed_kg_per_d ?? null, `${plainNumber(p.feed_kg_per_d)} kg/d`,
       missing("give the product strength and the plant flow"));
-    this.value(o.Lh, p.feed_L_per_h ?? null, `${short(p.feed_L_per_h)} L/h`, missing("L/h needs the density"));
-    this.value(o.gal, p.feed_gal_per_d ?? null, `${short(p.feed_gal_per_d)} gal/d`, missing("gal/d needs the density"));
+    this.value(o.Lh, p.feed_L_per_h ?? null, `${plainNumber(p.feed_L_per_h)} L/h`, missing("L/h needs the density"));
+    this.value(o.gal, p.feed_gal_per_d ?? null, `${plainNumber(p.feed_gal_per_d)} gal/d`, missing("gal/d needs the density"));
     this.doseWarnings.replaceChildren(...(r?.warnings ?? []).map((w) => this.para(w)));
     this.doseWarnings.hidden = !(r?.warnings ?? []).length;
     this.renderBeforeAfter(r?.change ?? null);
@@ -285,18 +297,20 @@ export class TreatmentView {
       body.replaceChildren();
       return;
     }
+    // [key, label, unit, display, number in the unit shown (for CSV)]
+    const same = (v) => v;
     const rows = [
-      ["pH", "pH", "", (v) => fixed(v, 2)],
-      ["total_alkalinity_mg_per_L_as_CaCO3", "Total alkalinity", "mg/L as CaCO₃", (v) => fixed(v, 1)],
-      ["total_alkalinity_meq_per_L", "Total alkalinity", "meq/L", (v) => fixed(v, 3)],
-      ["DIC_mmol_per_L", "Dissolved inorganic carbon", "mmol/L", (v) => fixed(v, 3)],
-      ["CO2_mg_per_L", "Free CO₂", "mg/L", (v) => short(v, 3)],
-      ["ionic_strength_M", "Ionic strength", "mmol/L", (v) => fixed(v * 1e3, 3)],
+      ["pH", "pH", "", (v) => fixed(v, 2), same],
+      ["total_alkalinity_mg_per_L_as_CaCO3", "Total alkalinity, to pH 4.5", "mg/L as CaCO₃", (v) => fixed(v, 1), same],
+      ["total_alkalinity_meq_per_L", "Total alkalinity, to pH 4.5", "meq/L", (v) => fixed(v, 3), same],
+      ["DIC_mmol_per_L", "Dissolved inorganic carbon", "mmol/L", (v) => fixed(v, 3), same],
+      ["CO2_mg_per_L", "Free CO₂ (H₂CO₃*)", "mg/L as CO₂", (v) => short(v, 3), same],
+      ["ionic_strength_M", "Ionic strength", "mmol/L", (v) => fixed(v * 1e3, 3), (v) => v * 1e3],
     ];
     body.replaceChildren(
       ...rows
         .filter(([key]) => change[key])
-        .map(([key, label, unit, fmt]) => {
+        .map(([key, label, unit, fmt, inUnit]) => {
           const c = change[key];
           const tr = this.doc.createElement("tr");
           tr.dataset.key = key;
@@ -310,8 +324,10 @@ export class TreatmentView {
             th.append(u);
           }
           const sign = (v) => (v > 0 ? `+${fmt(v)}` : fmt(v));
-          tr.append(th, this.cell(fmt(c.before), c.before, "before"), this.cell(fmt(c.after), c.after, "after"),
-            this.cell(sign(c.change), c.change, "change"));
+          tr.append(th,
+            this.cell(fmt(c.before), c.before, "before", exportNumber(inUnit(c.before))),
+            this.cell(fmt(c.after), c.after, "after", exportNumber(inUnit(c.after))),
+            this.cell(sign(c.change), c.change, "change", exportNumber(inUnit(c.change))));
           return tr;
         }),
     );
@@ -324,11 +340,18 @@ export class TreatmentView {
     el.classList.toggle("missing", !has);
   }
 
-  cell(text, value, key) {
+  /**
+   * @param {string} text  shown
+   * @param {number|null} value  raw number (data-value)
+   * @param {string} key  data-key
+   * @param {string} [exported]  the number in the column's unit, for CSV (data-export)
+   */
+  cell(text, value, key, exported) {
     const td = this.doc.createElement("td");
     td.className = "num";
     td.dataset.key = key;
     td.dataset.value = value === null || value === undefined ? "" : String(value);
+    td.dataset.export = exported ?? exportNumber(typeof value === "number" ? value : null);
     td.textContent = text;
     return td;
   }

@@ -3,15 +3,18 @@
 //   buffer      buffer intensity against pH, its value at the water's pH, capacity between two pH;
 //   dose        the dose of a chemical to a target pH, product feed at the plant's flow,
 //               the water before and after.
-// The water comes from the "water" section's handle: {scenario(), onSolved(cb)}; every
-// successful solve of the water recomputes all three blocks. Each block keeps its own request
-// counter so a slow answer never overwrites a newer one.
+// The water comes from the "water" section's handle: {scenario(), onSolved(cb), onStale(cb)};
+// every successful solve of the water recomputes all three blocks, and while the water's
+// inputs cannot be used every block says its figures belong to the last valid water. Each block
+// is a section.js computation (latest-only requests, one way of showing messages).
 
 import { CoreError } from "./py.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed, prettyFormula } from "./format.js";
 import { FLOW_UNITS } from "./treatment-view.js";
-import { NUMBER, cleanNumberText, parseNumber } from "./parse.js";
+import { parseNumber, stateNumber } from "./parse.js";
+import { computation } from "./section.js";
+import { totalAlkalinity } from "./water.js";
 
 const DEBOUNCE_MS = 120;
 const BUFFER_RANGE = { pH_min: 2, pH_max: 12, points: 241 };
@@ -47,18 +50,23 @@ const FIELD_LABEL = {
   "capacity.to_pH": "To pH",
 };
 
+// Input ids -> the words beside them, for notes about dropped values.
+const FIELD_LABEL_BY_INPUT = {
+  "titrant-conc": "titrant concentration", "sample-volume": "sample volume", "titration-end-ph": "end pH",
+  "dose-target-ph": "target pH", "dose-strength": "product strength", "dose-density": "product density",
+  "dose-flow": "plant flow", "capacity-from-ph": "buffer capacity from pH", "capacity-to-ph": "buffer capacity to pH",
+};
+
 function readable(message, field) {
   const label = FIELD_LABEL[field];
   return label && message.startsWith(field) ? label + message.slice(field.length) : message;
 }
 
-/** The number a state object holds for a text field: the number, null when blank, else the text. */
-function stateNumber(text) {
-  const t = String(text ?? "").trim();
-  if (!t) return null;
-  const n = cleanNumberText(t);
-  return NUMBER.test(n) ? Number(n) : t;
-}
+// What an input goes back to when a link, file or example holds a value the page cannot use.
+const DEFAULTS = {
+  "titrant-conc": "0.02", "sample-volume": "100", "titration-end-ph": "", "dose-target-ph": "8",
+  "dose-strength": "", "dose-density": "", "dose-flow": "", "capacity-from-ph": "", "capacity-to-ph": "",
+};
 
 /**
  * Mount the section.
@@ -81,9 +89,8 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
   // An alkalinity titration with strong acid is the everyday lab case; NaOH is the usual dose.
   if (chemById.has("HCl")) view.write("titrant-select", "HCl");
   if (chemById.has("NaOH")) view.write("dose-chemical", "NaOH");
-  const seq = { titration: 0, buffer: 0, dose: 0 };
-  const timers = {};
   let current = { scenario: null, result: null };
+  let waterNote = ""; // set while the water's inputs cannot be used
   let lastTitration = null;
 
   // -- inputs ------------------------------------------------------------------------------
@@ -91,7 +98,6 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     const raw = view.read();
     const errors = {};
     const params = { titrant: raw["titrant-select"] };
-    const chem = chemById.get(params.titrant);
     const gas = params.titrant === "CO2";
     const conc = parseNumber(raw["titrant-conc"], "the titrant concentration in mol/L, e.g. 0.02");
     if (conc.error) errors["titrant-conc"] = conc.error;
@@ -103,7 +109,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     if (end.error) errors["titration-end-ph"] = end.error;
     else if (end.value !== null) params.to_pH = end.value;
     if (gas) delete params.titrant_M; // a gas has no titrant volume; the core ignores it anyway
-    return { params, errors, chem };
+    return { params: current.scenario ? { scenario: current.scenario, ...params } : null, errors };
   }
 
   function collectDose() {
@@ -127,7 +133,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     if (params.density_kg_per_L !== undefined && params.strength_pct === undefined && !errors["dose-strength"]) {
       errors["dose-strength"] = "Give the product strength too: the density alone does not set the feed.";
     }
-    return { params, errors };
+    return { params: current.scenario ? { scenario: current.scenario, ...params } : null, errors };
   }
 
   function collectCapacity() {
@@ -140,9 +146,11 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     if (!a.error && !b.error && (a.value === null) !== (b.value === null)) {
       errors[a.value === null ? "capacity-from-ph" : "capacity-to-ph"] = "Give both pH values (or neither).";
     }
-    const capacity = a.value !== null && b.value !== null && !a.error && !b.error
-      ? { from_pH: a.value, to_pH: b.value } : null;
-    return { capacity, errors };
+    const params = current.scenario ? { scenario: current.scenario, ...BUFFER_RANGE } : null;
+    if (params && a.value !== null && b.value !== null && !a.error && !b.error) {
+      params.capacity = { from_pH: a.value, to_pH: b.value };
+    }
+    return { params, errors };
   }
 
   function coreMessage(error, fields, block) {
@@ -153,6 +161,12 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     // Anything else concerns the water itself (e.g. "scenario" or "systems[0].total").
     const about = error.field && error.field !== "scenario" ? ` (${error.field})` : "";
     return { block: `${block}: the water above could not be used${about}: ${text}` };
+  }
+
+  /** Mark a block current, or stale while the water above cannot be used. */
+  function settled(block) {
+    if (waterNote) view.setResultState(block, "stale", waterNote);
+    else view.setResultState(block, "current");
   }
 
   // -- titration ---------------------------------------------------------------------------
@@ -187,40 +201,6 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     view.markDrawn("titration");
   }
 
-  async function refreshTitration() {
-    const { params, errors, chem } = collectTitration();
-    const n = ++seq.titration;
-    view.setTitrantHint(titrantHint(chem, params.titrant));
-    if (Object.keys(errors).length || !current.scenario) {
-      view.showErrors("titration", errors);
-      view.setStale("titration", Boolean(lastTitration));
-      return false;
-    }
-    view.setBusy("titration", true);
-    try {
-      const result = await py.call("titrate", { scenario: current.scenario, ...params });
-      if (n !== seq.titration) return false;
-      view.showErrors("titration", {});
-      view.setStale("titration", false);
-      lastTitration = result;
-      drawTitration(result);
-      return true;
-    } catch (error) {
-      if (n !== seq.titration) return false;
-      const messages = coreMessage(error, TITRATION_FIELDS, "Titration");
-      view.showErrors("titration", messages);
-      // The curve no longer answers the question asked: remove it rather than leave it standing.
-      lastTitration = null;
-      plots.titration.setCurve([], [], [], "titrant added");
-      view.clearEquivalence();
-      view.setStale("titration", false);
-      view.setTitrationWarning([`No curve: ${Object.values(messages)[0]}`]);
-      return false;
-    } finally {
-      if (n === seq.titration) view.setBusy("titration", false);
-    }
-  }
-
   function titrantHint(chem, id) {
     if (id === "CO2") return "A gas: the concentration and sample volume do not apply; the curve is against dose.";
     if (chem?.note) return chem.note.charAt(0).toUpperCase() + chem.note.slice(1) + ".";
@@ -228,34 +208,60 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     return "";
   }
 
+  const titration = computation({
+    read() {
+      const id = view.read()["titrant-select"];
+      view.setTitrantHint(titrantHint(chemById.get(id), id));
+      return collectTitration();
+    },
+    call: (params) => py.call("titrate", params),
+    render(result) {
+      view.showErrors("titration", {});
+      lastTitration = result;
+      drawTitration(result);
+      settled("titration");
+    },
+    explain: (error) => coreMessage(error, TITRATION_FIELDS, "Titration"),
+    show(messages, kind) {
+      view.showErrors("titration", messages);
+      if (kind === "invalid") {
+        view.setResultState("titration", lastTitration ? "stale" : "empty",
+          "Not updated: an input of the titration cannot be used. The curve and table are for the last valid inputs.");
+        return;
+      }
+      // The curve no longer answers the question asked: remove it rather than leave it standing.
+      lastTitration = null;
+      plots.titration.setCurve([], [], [], "titrant added");
+      view.clearEquivalence();
+      view.setResultState("titration", "empty");
+      view.setTitrationWarning([`No curve: ${Object.values(messages)[0]}`]);
+    },
+    busy: (flag) => view.setBusy("titration", flag),
+  });
+
   // -- buffer ------------------------------------------------------------------------------
-  async function refreshBuffer() {
-    const { capacity, errors } = collectCapacity();
-    const n = ++seq.buffer;
-    view.showErrors("buffer", errors);
-    if (!current.scenario) return false;
-    view.setBusy("buffer", true);
-    try {
-      const params = { scenario: current.scenario, ...BUFFER_RANGE };
-      if (capacity) params.capacity = capacity;
-      const r = await py.call("buffer", params);
-      if (n !== seq.buffer) return false;
+  let bufferShown = false;
+  const buffer = computation({
+    read: collectCapacity,
+    call: (params) => py.call("buffer", params),
+    render(r) {
+      view.showErrors("buffer", {});
       plots.buffer.setCurve(r.pH, r.beta_mmol_per_L_per_pH, r.water_pH);
       view.setBufferAtPH(r.beta_at_water_pH_eq_per_L_per_pH, r.water_pH);
       view.setCapacity(r.capacity);
-      view.setStale("buffer", false);
+      bufferShown = true;
+      settled("buffer");
       view.markDrawn("buffer");
-      return true;
-    } catch (error) {
-      if (n !== seq.buffer) return false;
-      view.showErrors("buffer", { ...errors, ...coreMessage(error, BUFFER_FIELDS, "Buffer intensity") });
+    },
+    explain: (error) => coreMessage(error, BUFFER_FIELDS, "Buffer intensity"),
+    show(messages) {
+      view.showErrors("buffer", messages);
       view.setCapacity(null);
-      view.setStale("buffer", true);
-      return false;
-    } finally {
-      if (n === seq.buffer) view.setBusy("buffer", false);
-    }
-  }
+      view.setResultState("buffer", bufferShown ? "stale" : "empty",
+        "Not updated: the pH pair cannot be used. The curve is for the last valid inputs.");
+    },
+    busy: (flag) => view.setBusy("buffer", flag),
+  });
 
   // -- dose --------------------------------------------------------------------------------
   function doseHint(id) {
@@ -272,68 +278,105 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     return parts.join(" ");
   }
 
-  async function refreshDose() {
-    const { params, errors } = collectDose();
-    const n = ++seq.dose;
-    view.setDoseHint(doseHint(params.chemical));
-    if (Object.keys(errors).length || !current.scenario) {
-      view.showErrors("dose", errors);
-      view.renderDose(null); // no number beside a question that is not complete
-      return false;
+  /** The before/after table with the page's one total alkalinity (to pH 4.5) in it. */
+  function withPageAlkalinity(r) {
+    const change = { ...(r.change || {}) };
+    const before = totalAlkalinity(r.water_before);
+    const after = totalAlkalinity(r.water_after);
+    for (const [key, field] of [["total_alkalinity_mg_per_L_as_CaCO3", "mg_per_L_as_CaCO3"], ["total_alkalinity_meq_per_L", "meq_per_L"]]) {
+      if (Number.isFinite(before[field]) && Number.isFinite(after[field])) {
+        change[key] = { before: before[field], after: after[field], change: after[field] - before[field] };
+      } else {
+        delete change[key]; // the core's other definition is not shown under the same name
+      }
     }
-    view.setBusy("dose", true);
-    try {
-      const r = await py.call("dose", { scenario: current.scenario, ...params });
-      if (n !== seq.dose) return false;
-      view.showErrors("dose", {});
-      view.renderDose(r);
-      view.markDrawn("dose");
-      return true;
-    } catch (error) {
-      if (n !== seq.dose) return false;
-      view.showErrors("dose", coreMessage(error, DOSE_FIELDS, "Dose"));
-      view.renderDose(null);
-      return false;
-    } finally {
-      if (n === seq.dose) view.setBusy("dose", false);
-    }
+    return { ...r, change };
   }
 
+  const dose = computation({
+    read() {
+      view.setDoseHint(doseHint(view.read()["dose-chemical"]));
+      return collectDose();
+    },
+    call: (params) => py.call("dose", params),
+    render(r) {
+      view.showErrors("dose", {});
+      view.renderDose(withPageAlkalinity(r));
+      settled("dose");
+      view.markDrawn("dose");
+    },
+    explain: (error) => coreMessage(error, DOSE_FIELDS, "Dose"),
+    show(messages) {
+      view.showErrors("dose", messages);
+      view.renderDose(null); // no number beside a question that is not complete
+      view.setResultState("dose", "empty");
+    },
+    busy: (flag) => view.setBusy("dose", flag),
+  });
+
   // -- wiring ------------------------------------------------------------------------------
-  const refreshers = { titration: refreshTitration, buffer: refreshBuffer, dose: refreshDose };
+  const blocks = { titration, buffer, dose };
 
   function describeWater(result) {
     if (!result) return "Describe the water above; this section works on it.";
-    const alk = result.alkalinity?.equivalence_point?.total_mg_per_L_as_CaCO3;
-    const alkText = Number.isFinite(alk) ? `, total alkalinity ${fixed(alk, 1)} mg/L as CaCO₃` : "";
+    const alk = totalAlkalinity(result);
+    const alkText = Number.isFinite(alk.mg_per_L_as_CaCO3)
+      ? `, total alkalinity (to pH ${fixed(alk.end_pH, 1)}) ${fixed(alk.mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃` : "";
     return `Working on the water above: pH ${fixed(result.pH, 2)}${alkText}, ` +
       `${fixed(result.temperature_C, 1)} °C.`;
   }
 
   async function refresh() {
-    await Promise.all([refreshTitration(), refreshBuffer(), refreshDose()]);
+    await Promise.all([titration.run(), buffer.run(), dose.run()]);
   }
 
   water.onSolved((scenario, result) => {
     current = { scenario, result };
-    view.setWater(describeWater(result));
+    waterNote = "";
+    view.setWater(describeWater(result), false);
     refresh();
   });
 
-  view.bindChange((block, id) => {
-    if (id === "titrant-select") {
-      const gas = view.read()["titrant-select"] === "CO2";
-      for (const other of ["titrant-conc", "sample-volume", "titration-axis"]) view.inputs[other].disabled = gas;
+  water.onStale?.((note, result) => {
+    waterNote = result
+      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C).`
+      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    view.setWater(waterNote, true);
+    for (const name of Object.keys(blocks)) {
+      blocks[name].cancel(); // an answer for the old water must not be drawn as current
+      view.setResultState(name, "stale", waterNote);
     }
+  });
+
+  view.bindChange((block, id) => {
+    if (id === "titrant-select") view.setGasTitrant(view.read()["titrant-select"] === "CO2");
     notifyInputChange("treatment");
     if (id === "titration-axis" && lastTitration) {
       drawTitration(lastTitration); // same curve, other unit: no need to ask the core again
       return;
     }
-    clearTimeout(timers[block]);
-    const immediate = view.inputs[id].tagName === "SELECT";
-    timers[block] = setTimeout(refreshers[block], immediate ? 0 : DEBOUNCE_MS);
+    const immediate = view.isChoice(id);
+    blocks[block].schedule(immediate ? 0 : DEBOUNCE_MS);
   });
+
+  /** Put the inputs named in `problems` back to their defaults (see section.js settle). */
+  function reset(problems) {
+    const notes = [];
+    const raw = view.read();
+    for (const [id, message] of Object.entries(problems)) {
+      if (!(id in DEFAULTS) || raw[id] === DEFAULTS[id]) continue;
+      view.write(id, DEFAULTS[id]);
+      notes.push(`treatment: ${FIELD_LABEL_BY_INPUT[id] ?? id} "${String(raw[id]).slice(0, 40)}" could not be used ` +
+        `(${message.replace(/\.$/, "")}); ${DEFAULTS[id] ? DEFAULTS[id] + " is used" : "it was left empty"} instead`);
+    }
+    return notes;
+  }
+
+  async function settle() {
+    const notes = [];
+    for (const block of Object.values(blocks)) notes.push(...(await block.settle(reset)));
+    return notes;
+  }
 
   registerSection("treatment", {
     get() {
@@ -388,11 +431,11 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       const b = obj.buffer || {};
       put("capacity-from-ph", b.from_pH, "buffer capacity from pH");
       put("capacity-to-ph", b.to_pH, "buffer capacity to pH");
-      const gas = view.read()["titrant-select"] === "CO2";
-      for (const other of ["titrant-conc", "sample-volume", "titration-axis"]) view.inputs[other].disabled = gas;
+      view.setGasTitrant(view.read()["titrant-select"] === "CO2");
       return messages;
     },
     refresh,
+    settle,
   });
 
   const initial = water.scenario?.();

@@ -9,6 +9,72 @@ function byId(doc, id) {
   return el;
 }
 
+/**
+ * The one way the page shows messages about inputs: the text beside each input goes in its
+ * #<input id>-error element (aria-invalid on the input), a message about the request as a whole
+ * in the block's own error element. Used by every section's view.
+ */
+export class FieldMessages {
+  /**
+   * @param {Document} doc  the page
+   * @param {Element} scope  the block whose .error elements this object owns
+   * @param {string} blockId  id of the block's own error element (e.g. "water-error")
+   */
+  constructor(doc, scope, blockId) {
+    this.doc = doc;
+    this.scope = scope;
+    this.blockId = blockId;
+  }
+
+  /**
+   * Show one message beside each named input and clear every other message of the block.
+   *
+   * @param {Record<string, string>} messages  input id -> message; "block" (or the block's
+   *        own id) for the block; a message for an input that is not on the page goes there too
+   */
+  show(messages) {
+    const block = [messages.block, messages[this.blockId]];
+    const placed = new Set(["block", this.blockId]);
+    for (const p of this.scope.querySelectorAll(".error[id$='-error']")) {
+      if (p.id === this.blockId) continue;
+      const id = p.id.slice(0, -"-error".length);
+      const message = messages[id] || "";
+      if (message) placed.add(id);
+      p.textContent = message;
+      const input = this.doc.getElementById(id);
+      if (input && input !== p) {
+        if (message) input.setAttribute("aria-invalid", "true");
+        else input.removeAttribute("aria-invalid");
+      }
+    }
+    for (const [id, message] of Object.entries(messages)) if (!placed.has(id)) block.push(message);
+    const own = this.doc.getElementById(this.blockId);
+    if (own) own.textContent = block.filter(Boolean).join(" ");
+  }
+}
+
+/**
+ * Say whether a block of results belongs to the inputs on screen: "current" (nothing shown),
+ * "stale" (dimmed, with a note naming why and which inputs the figures belong to) or "empty".
+ *
+ * @param {HTMLElement} results  the block's results element
+ * @param {"current"|"stale"|"empty"} state
+ * @param {string} [note]  for "stale": e.g. "Not updated: the temperature cannot be used. ..."
+ */
+export function markResults(results, state, note = "") {
+  results.dataset.state = state;
+  results.classList.toggle("stale", state === "stale");
+  let box = results.querySelector(":scope > .stale-note");
+  if (!box) {
+    box = results.ownerDocument.createElement("p");
+    box.className = "stale-note";
+    box.setAttribute("role", "status");
+    results.prepend(box);
+  }
+  box.textContent = state === "stale" ? note : "";
+  box.hidden = state !== "stale";
+}
+
 /** Boot progress, busy state and fatal errors in #status; page-wide markers on <body>. */
 export class StatusView {
   /** @param {Document} doc */
@@ -42,11 +108,20 @@ export class StatusView {
     this.text.textContent = `The calculator could not start: ${reason} Try reloading; if it keeps failing, this browser may lack WebAssembly or module workers.`;
   }
 
-  /** Count one drawn result; the first one sets body[data-ready]. */
+  /** Count one drawn result of the species section on body[data-drawn]. */
   markDrawn() {
     this.drawn += 1;
     this.doc.body.dataset.drawn = String(this.drawn);
+  }
+
+  /** The page shows the scenario it was opened with (link, example or defaults): body[data-ready]. */
+  pageReady() {
     this.doc.body.dataset.ready = "true";
+  }
+
+  /** @param {number} count  computations scheduled or running (body[data-pending]; 0 = settled) */
+  setPending(count) {
+    this.doc.body.dataset.pending = String(count);
   }
 }
 
@@ -76,11 +151,10 @@ export class DistributionView {
     this.doc = doc;
     this.form = byId(doc, "distribution-form");
     this.inputs = Object.fromEntries(INPUT_IDS.map((id) => [id, byId(doc, id)]));
-    this.errors = Object.fromEntries(INPUT_IDS.map((id) => [id, byId(doc, `${id}-error`)]));
-    this.formError = byId(doc, "distribution-error");
     this.table = byId(doc, "species-table");
     this.caption = byId(doc, "species-caption");
-    this.results = doc.querySelector("#section-distribution .results");
+    this.results = byId(doc, "distribution-results");
+    this.messages = new FieldMessages(doc, this.form, "distribution-error");
     this.form.addEventListener("submit", (event) => event.preventDefault());
   }
 
@@ -131,13 +205,20 @@ export class DistributionView {
    * @param {Record<string, string>} messages  input id (or "form") -> message
    */
   showErrors(messages) {
-    for (const id of INPUT_IDS) {
-      const message = messages[id] || "";
-      this.errors[id].textContent = message;
-      if (message) this.inputs[id].setAttribute("aria-invalid", "true");
-      else this.inputs[id].removeAttribute("aria-invalid");
-    }
-    this.formError.textContent = messages.form || "";
+    this.messages.show(messages);
+  }
+
+  /**
+   * @param {"current"|"stale"|"empty"} state  whether the table and plots match the inputs
+   * @param {string} [note]  why not, for "stale"
+   */
+  setResultState(state, note) {
+    markResults(this.results, state, note);
+  }
+
+  /** @param {string} id  input id @param {string} text  put this text in it */
+  write(id, text) {
+    this.inputs[id].value = text;
   }
 
   /** @param {boolean} busy  a computation is running */

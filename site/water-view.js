@@ -3,7 +3,10 @@
 // no calls to the core; water.js decides what to show. Text goes in through textContent only.
 
 import { embedSpeciesPlot } from "./plot.js";
-import { fixed, prettyFormula, sciNumber } from "./format.js";
+import { exportNumber, fixed, prettyFormula, sciNumber, unitLabel } from "./format.js";
+import { FieldMessages, markResults } from "./view.js";
+
+export { unitLabel };
 
 function byId(doc, id) {
   const el = doc.getElementById(id);
@@ -28,20 +31,6 @@ const I_VALUE_LABEL = {
   tds: "Total dissolved solids (mg/L)",
   conductance: "Specific conductance (µS/cm at 25 °C)",
 };
-
-/**
- * Text shown for a core unit string.
- *
- * @param {string} unit  e.g. "umol/L", "mg/L", "mg/L as N"
- * @param {string|null} massBasis  formula the plain "mg/L" of a system refers to (e.g. "PO4")
- * @returns {string}  display text
- */
-export function unitLabel(unit, massBasis = null) {
-  if (unit === "umol/L") return "µmol/L";
-  if (unit === "mg/L" && massBasis) return `mg/L of ${prettyFormula(massBasis)}`;
-  if (unit.startsWith("mg/L as ")) return `mg/L as ${prettyFormula(unit.slice(8))}`;
-  return unit;
-}
 
 /**
  * Embed the section's two plots (call once, after the page's other plots).
@@ -78,7 +67,21 @@ export class WaterView {
     this.systemOptions = [];
     this.ionOptions = [];
     this.drawn = 0;
+    this.messages = new FieldMessages(doc, this.section, "water-error");
     this.form.addEventListener("submit", (event) => event.preventDefault());
+  }
+
+  /** @param {"system"|"ion"} kind @param {number} i  put the keyboard focus on row i's list */
+  focusRow(kind, i) {
+    this.doc.getElementById(`water-${kind}-${i}-id`)?.focus();
+  }
+
+  /**
+   * @param {"current"|"stale"|"empty"} state  whether the results match the inputs on screen
+   * @param {string} [note]  why not, for "stale"/"empty"
+   */
+  setResultState(state, note) {
+    markResults(this.results, state, note);
   }
 
   /**
@@ -333,19 +336,7 @@ export class WaterView {
    * @param {Record<string, string>} messages  input id (or "water-error") -> message
    */
   showErrors(messages) {
-    for (const p of this.section.querySelectorAll(".error")) {
-      const id = p.id.replace(/-error$/, "");
-      const message = p.id === "water-error" ? messages["water-error"] || "" : messages[id] || "";
-      p.textContent = message;
-      const input = this.doc.getElementById(id);
-      if (input && input !== p) {
-        if (message) input.setAttribute("aria-invalid", "true");
-        else input.removeAttribute("aria-invalid");
-      }
-    }
-    // A message for an input that is not on the page (should not happen) goes to the section.
-    const stray = Object.entries(messages).filter(([id]) => id !== "water-error" && !this.doc.getElementById(`${id}-error`));
-    if (stray.length) this.formError.textContent = [messages["water-error"], ...stray.map(([, m]) => m)].filter(Boolean).join(" ");
+    this.messages.show(messages);
   }
 
   /** @param {boolean} busy  a computation is running */
@@ -386,42 +377,49 @@ export class WaterView {
       handler(row && el.id.endsWith("-mass") ? "row-mass" : "value", row || { id: el.id });
     });
     this.displayUnit.addEventListener("change", () => handler("display-unit", {}));
-    this.plotSystem.addEventListener("change", () => handler("plot-system", {}));
+    this.plotSystem.addEventListener("change", () => {
+      this.nameFractionPlot();
+      handler("plot-system", {});
+    });
   }
 
   // -- results -------------------------------------------------------------------------------
 
-  setNumber(id, text, value) {
+  setNumber(id, text, value, exported) {
     const el = byId(this.doc, id);
     el.textContent = text;
     el.dataset.value = value === null || value === undefined ? "" : String(value);
+    if (exported !== undefined) el.dataset.export = exported;
   }
 
   /**
    * Draw the summary, warnings, species table and trail of one solved water.
    *
    * @param {object} result  the core's solve result
-   * @param {{unit: string}} display  concentration unit of the species table
+   * @param {{unit: string, activityUnit: string, rows: object[], pHLabel: string,
+   *          alkalinity: {mg_per_L_as_CaCO3: number|null, meq_per_L: number|null, end_pH: number}}} display
+   *        the species rows in the shown unit (water.js works them out) and the summary words
    * @param {string[]} palette  line colours, in plot order
    * @param {Map<string, string>} names  system key -> name shown in the tables
    */
   renderResult(result, display, palette, names) {
-    byId(this.doc, "water-ph-label").textContent = result.pH_was_given ? "pH (given)" : "Equilibrium pH";
+    byId(this.doc, "water-ph-label").textContent = display.pHLabel;
     this.setNumber("water-ph", fixed(result.pH, 2), result.pH);
     this.setNumber("water-ionic-strength", `${sciNumber(result.ionic_strength_M, 3)} mol/L`, result.ionic_strength_M);
     byId(this.doc, "water-ionic-strength-source").textContent = `(${result.ionic_strength_source})`;
     this.setNumber("water-pkw", fixed(result.pKw, 3), result.pKw);
     this.setNumber("water-temperature-shown", `${fixed(result.temperature_C, 1)} °C`, result.temperature_C);
-    const alk = result.alkalinity || {};
+    const alk = display.alkalinity;
     this.setNumber(
       "water-alk-total",
-      `${fixed(alk.total_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(alk.total_meq_per_L, 3)} meq/L`,
-      alk.total_mg_per_L_as_CaCO3,
+      `${fixed(alk.mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(alk.meq_per_L, 3)} meq/L`,
+      alk.mg_per_L_as_CaCO3,
     );
+    const a = result.alkalinity || {};
     this.setNumber(
       "water-alk-p",
-      `${fixed(alk.phenolphthalein_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(alk.phenolphthalein_meq_per_L, 3)} meq/L`,
-      alk.phenolphthalein_mg_per_L_as_CaCO3,
+      `${fixed(a.phenolphthalein_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃ · ${fixed(a.phenolphthalein_meq_per_L, 3)} meq/L`,
+      a.phenolphthalein_mg_per_L_as_CaCO3,
     );
     const beta = result.buffer_intensity_eq_per_L_per_pH;
     this.setNumber("water-buffer", `${sciNumber(beta * 1e3, 3)} mmol/L per pH unit`, beta);
@@ -444,52 +442,53 @@ export class WaterView {
       }),
     );
 
-    this.renderSpecies(result, display, palette, names);
+    this.renderSpecies(display, palette);
     this.renderTrail(result, names);
   }
 
-  renderSpecies(result, display, palette, names) {
-    const unit = display.unit;
-    byId(this.doc, "water-conc-unit").textContent = `(${unit === "mg/L" ? "mg/L of the species" : unit})`;
-    const scale = unit === "mmol/L" ? 1e3 : 1;
-    // Activities in the molar unit shown (mmol/L beside mg/L, which has no activity form).
-    const activityScale = unit === "mol/L" ? 1 : 1e3;
-    byId(this.doc, "water-activity-unit").textContent = `(${unit === "mol/L" ? "mol/L" : "mmol/L"})`;
-    const shown = (c, mm) => (unit === "mg/L" ? (mm ? c * mm * 1e3 : null) : c * scale);
-    const rows = [];
-    const add = (s, systemName, slot, percent) => {
+  renderSpecies({ unit, activityUnit, rows }, palette) {
+    const words = {
+      "mg/L": "mg/L of the species", "ug/L": "µg/L of the species", "mg/L as basis": "mg/L, as named in the row",
+    };
+    byId(this.doc, "water-conc-unit").textContent = `(${words[unit] ?? unitLabel(unit)})`;
+    this.speciesTable.dataset.exportName = `Species at equilibrium (${words[unit] ?? unitLabel(unit)})`;
+    byId(this.doc, "water-activity-unit").textContent = `(${unitLabel(activityUnit)})`;
+    const out = rows.map((r) => {
       const tr = this.doc.createElement("tr");
-      tr.dataset.species = s.name;
-      tr.dataset.system = s.system ?? "";
-      tr.dataset.concentrationM = String(s.concentration_M);
+      tr.dataset.species = r.name;
+      tr.dataset.system = r.system ?? "";
+      tr.dataset.concentrationM = String(r.concentration_M);
       const name = this.doc.createElement("th");
       name.scope = "row";
-      if (slot !== null) {
+      if (r.slot !== null) {
         const swatch = this.doc.createElement("span");
         swatch.className = "swatch";
-        swatch.style.background = palette[slot % palette.length];
+        swatch.style.background = palette[r.slot % palette.length];
         swatch.setAttribute("aria-hidden", "true");
         name.append(swatch);
       }
-      name.append(prettyFormula(s.name));
-      const value = shown(s.concentration_M, s.molar_mass_g_per_mol);
+      name.append(prettyFormula(r.name));
+      const conc = this.cell(sciNumber(r.shown, 4), r.shown, "concentration", "num", exportNumber(r.shown));
+      if (r.as) {
+        const as = this.doc.createElement("span");
+        as.className = "unit";
+        as.textContent = ` as ${prettyFormula(r.as)}`;
+        conc.append(as);
+        conc.dataset.as = r.as;
+      }
+      if (r.shown === null) conc.title = "No molar mass is known for this ion, so it has no mass concentration.";
       tr.append(
         name,
-        this.cell(systemName, null, "system", "col-system"),
-        this.cell(s.charge > 0 ? `+${s.charge}` : fixed(s.charge, 0), s.charge, "charge", "num col-charge"),
-        this.cell(sciNumber(value, 4), value, "concentration", "num"),
-        this.cell(sciNumber(s.activity_M * activityScale, 4), s.activity_M, "activity_M", "num"),
-        this.cell(fixed(s.activity_coefficient, 4), s.activity_coefficient, "activity_coefficient", "num"),
-        this.cell(percent === null ? "—" : fixed(percent, 2), percent, "percent", "num"),
+        this.cell(r.systemName, null, "system", "col-system"),
+        this.cell(r.charge > 0 ? `+${r.charge}` : fixed(r.charge, 0), r.charge, "charge", "num col-charge"),
+        conc,
+        this.cell(sciNumber(r.activityShown, 4), r.activity_M, "activity_M", "num", exportNumber(r.activityShown)),
+        this.cell(fixed(r.gamma, 4), r.gamma, "activity_coefficient", "num", exportNumber(r.gamma)),
+        this.cell(r.percent === null ? "—" : fixed(r.percent, 2), r.percent, "percent", "num", exportNumber(r.percent)),
       );
-      rows.push(tr);
-    };
-    // Slots follow the log-concentration plot: H+, OH-, then every species in order.
-    let slot = 2;
-    for (const s of result.species) add(s, names.get(s.system) ?? s.system, slot++, s.fraction * 100);
-    for (const ion of result.ions) add({ ...ion, system: "strong ion", molar_mass_g_per_mol: null }, "strong ion", null, null);
-    result.water_ions.forEach((w, k) => add({ ...w, system: "water", molar_mass_g_per_mol: w.name === "H+" ? 1.008 : 17.007 }, "water", k, null));
-    this.speciesTable.tBodies[0].replaceChildren(...rows);
+      return tr;
+    });
+    this.speciesTable.tBodies[0].replaceChildren(...out);
   }
 
   renderTrail(result, names) {
@@ -515,16 +514,17 @@ export class WaterView {
       tr.append(
         name,
         this.cell(t.charge > 0 ? `+${t.charge}` : fixed(t.charge, 0), t.charge, "charge", "num col-charge"),
-        this.cell(sciNumber(t.concentration_M * 1e3, 4), t.concentration_M, "concentration_M", "num"),
-        this.cell(sciNumber(q * 1e3, 4), q, "charge_eq_per_L", "num"),
+        this.cell(sciNumber(t.concentration_M * 1e3, 4), t.concentration_M, "concentration_M", "num",
+          exportNumber(t.concentration_M * 1e3)),
+        this.cell(sciNumber(q * 1e3, 4), q, "charge_eq_per_L", "num", exportNumber(q * 1e3)),
       );
       return tr;
     });
     this.trailTable.tBodies[0].replaceChildren(...rows);
-    this.setNumber("water-trail-positive", sciNumber(positive * 1e3, 6), positive);
-    this.setNumber("water-trail-negative", sciNumber(negative * 1e3, 6), negative);
+    this.setNumber("water-trail-positive", sciNumber(positive * 1e3, 6), positive, exportNumber(positive * 1e3));
+    this.setNumber("water-trail-negative", sciNumber(negative * 1e3, 6), negative, exportNumber(negative * 1e3));
     const residual = result.charge_balance_residual_eq_per_L;
-    this.setNumber("water-trail-residual", sciNumber(residual * 1e3, 3), residual);
+    this.setNumber("water-trail-residual", sciNumber(residual * 1e3, 3), residual, exportNumber(residual * 1e3));
     byId(this.doc, "water-trail-residual").dataset.sum = String(sum);
     byId(this.doc, "water-trail-note").textContent = result.pH_was_given
       ? "At a given pH nothing forces the charges to balance: the sum is the charge the listed " +
@@ -534,11 +534,19 @@ export class WaterView {
         "negative charge balance (the sum left over is rounding).";
   }
 
-  cell(text, value, key, className) {
+  /**
+   * @param {string} text  shown
+   * @param {number|null} value  raw number (data-value; SI units as the core gives them)
+   * @param {string} key  data-key
+   * @param {string} className
+   * @param {string} [exported]  the number in the column's own unit, for CSV (data-export)
+   */
+  cell(text, value, key, className, exported) {
     const td = this.doc.createElement("td");
     td.className = className;
     td.dataset.key = key;
     td.dataset.value = value === null || value === undefined ? "" : String(value);
+    if (exported !== undefined) td.dataset.export = exported;
     td.textContent = text;
     return td;
   }
@@ -558,6 +566,14 @@ export class WaterView {
     );
     this.plotSystem.disabled = systems.length === 0;
     if (systems.length) this.plotSystem.value = String(Math.min(chosen, systems.length - 1));
+    this.nameFractionPlot();
+  }
+
+  /** Name the fraction plot for the export menu after the system it shows. */
+  nameFractionPlot() {
+    const chosen = this.plotSystem.selectedOptions[0]?.textContent;
+    byId(this.doc, "plot-water-fraction").dataset.exportName = chosen
+      ? `Fraction of each form of ${chosen}` : "Fraction of each form (no acid–base system in the water)";
   }
 
   /** Count one drawn result on #water-section[data-drawn]. */

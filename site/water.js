@@ -1,33 +1,49 @@
 // Section "Equilibrium of a whole water": turns the composition editor into a core scenario,
-// asks the core (method "water") for the equilibrium and its curves, and draws them. Keeps the
-// last good result on screen when an input is bad, with the message beside that input.
+// asks the core (method "water") for the equilibrium and its curves, and draws them. When an
+// input is bad, the message goes beside it and the last good result stays on screen, marked as
+// belonging to the last valid inputs (never shown as current).
 //
-// mountWater({py, view, plots, palette, systems, ions}) -> {refresh, scenario, onSolved}
+// mountWater({py, view, plots, palette, systems, ions, co2MolarMass})
+//   -> {refresh, scenario, onSolved, onStale}
 //   refresh()      recompute now; resolves true when a result was drawn
 //   scenario()     the last scenario the core solved (a deep copy), or null before the first
 //   onSolved(cb)   cb(scenario, result) after every successful solve; returns an unsubscribe
+//   onStale(cb)    cb(note, lastResult) whenever the inputs on screen stop matching the result
 // State (state.js, name "water"): {scenario: <core scenario>, display: {unit, plot_system}}.
 
 import { CoreError } from "./py.js";
 import { notifyInputChange, registerSection } from "./state.js";
-import { unitLabel } from "./water-view.js";
-import { prettyFormula } from "./format.js";
-import { INTEGER, NUMBER, cleanNumberText, parseNumber } from "./parse.js";
+import { fixed, prettyFormula, unitLabel } from "./format.js";
+import { parseInteger, parseNumber, parseNumberList, parseTemperature } from "./parse.js";
+import { computation } from "./section.js";
+import { ION_WORDS } from "./share.js";
 
 const DEBOUNCE_MS = 120;
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
 const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
-const DISPLAY_UNITS = ["mol/L", "mmol/L", "mg/L"];
-const CUSTOM_SYSTEM_UNITS = ["mol/L", "mmol/L", "umol/L"];
+/** Units of the species table: molar, mass of the species, or mass as each system's basis. */
+export const DISPLAY_UNITS = ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L", "mg/L as basis"];
+const MOLAR_SCALE = { "mol/L": 1, "mmol/L": 1e3, "umol/L": 1e6 };
+const MASS_SCALE = { "mg/L": 1e3, "ug/L": 1e6, "mg/L as basis": 1e3 }; // g/L -> shown unit
 
 // The starting water is invented (not a real sample): a soft, slightly buffered water of
 // 2 mmol/L carbonate with 2 mmol/L sodium and 0.2 mmol/L chloride, at 25 °C.
 const EXAMPLE = {
   systems: [{ id: "carbonate", total: "2", unit: "mmol/L", name: "", pka: "", charge: "0" }],
   ions: [
-    { id: "Na+", total: "2", unit: "mmol/L", name: "", charge: "1", mass: "" },
-    { id: "Cl-", total: "0.2", unit: "mmol/L", name: "", charge: "-1", mass: "" },
+    { id: "sodium", total: "2", unit: "mmol/L", name: "", charge: "1", mass: "" },
+    { id: "chloride", total: "0.2", unit: "mmol/L", name: "", charge: "-1", mass: "" },
   ],
+};
+
+// What a condition input goes back to when a link, file or example holds a value that cannot
+// be used (see reset()).
+// input id -> [readConditions key, default text, what happens then, the input's name]
+const CONDITION_DEFAULTS = {
+  "water-temperature": ["temperature", "25", "25 °C is used", "temperature"],
+  "water-fixed-ph": ["fixedPH", "", "the pH is solved for", "pH to speciate at"],
+  "water-pco2": ["pco2", "", "the water is treated as closed to air", "CO₂ partial pressure"],
+  "water-istrength-value": ["iValue", "", "the ionic strength is worked out from the composition", "ionic strength"],
 };
 
 // Core scenario paths of the condition inputs -> input ids and the words the page uses.
@@ -60,26 +76,7 @@ const ROW_FIELDS = {
   "custom.molar_mass_g_per_mol": ["mass", "Molar mass"],
 };
 
-const clean = cleanNumberText;
-
-function parseInteger(text, what) {
-  const t = clean(text);
-  if (!t) return { error: `Enter ${what}.` };
-  if (!INTEGER.test(t)) return { error: `"${t}" is not a whole number; enter ${what}.`, raw: t };
-  return { value: Number(t) };
-}
-
-function parsePkaList(text) {
-  const t = clean(text);
-  if (!t) return { error: "Enter at least one pKa value, e.g. 4.76 (separate several with commas)." };
-  const values = [];
-  for (const [i, part] of t.split(",").map(clean).entries()) {
-    if (!part) return { error: `Value ${i + 1} of the list is empty; separate pKa values with single commas.`, raw: t };
-    if (!NUMBER.test(part)) return { error: `"${part}" (value ${i + 1}) is not a number.`, raw: t };
-    values.push(Number(part));
-  }
-  return { value: values };
-}
+const clean = (text) => String(text ?? "").trim();
 
 /**
  * Start a core message with the page's word for its field instead of the scenario path.
@@ -107,6 +104,29 @@ function readable(message, label) {
 }
 
 /**
+ * Resolve an ion id from a link, file or example against the core's library: the id itself,
+ * the word for an old formula id ("Ca+2" -> "calcium") or the formula for a word, the formula
+ * or the name. So links of either kind open whichever ids the core uses.
+ *
+ * @param {string} id  as stored
+ * @param {Map<string, object>} library  the core's ions by id
+ * @returns {string|null}  the library id, or null when there is none
+ */
+export function resolveIonId(id, library) {
+  if (typeof id !== "string") return null;
+  if (library.has(id)) return id;
+  const word = ION_WORDS[id];
+  if (word && library.has(word)) return word;
+  const formula = Object.keys(ION_WORDS).find((f) => ION_WORDS[f] === id);
+  if (formula && library.has(formula)) return formula;
+  const lower = id.toLowerCase();
+  for (const [key, ion] of library) {
+    if (ion.formula === id || String(ion.name).toLowerCase() === lower) return key;
+  }
+  return null;
+}
+
+/**
  * Mount the section.
  *
  * @param {object} deps
@@ -116,17 +136,23 @@ function readable(message, label) {
  * @param {string[]} deps.palette  line colours (plots.json)
  * @param {object[]} deps.systems  library systems (core "systems" method)
  * @param {object[]} deps.ions  library strong ions
+ * @param {number|null} deps.co2MolarMass  g/mol of CO2 (core "chemicals"): H2CO3* in mg/L is
+ *        shown as CO2, as the dose table shows free CO2
  * @returns {{refresh: () => Promise<boolean>, scenario: () => object|null,
- *            onSolved: (cb: (scenario: object, result: object) => void) => () => void}}
+ *            onSolved: (cb: (scenario: object, result: object) => void) => () => void,
+ *            onStale: (cb: (note: string, result: object|null) => void) => () => void}}
  */
-export function mountWater({ py, view, plots, palette, systems, ions }) {
+export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMass = null }) {
   const library = new Map((systems || []).map((s) => [s.id, s]));
   const ionLibrary = new Map((ions || []).map((s) => [s.id, s]));
+  const everyUnit = new Set([...library.values(), ...ionLibrary.values()].flatMap((s) => s.units || []));
+  const micro = everyUnit.has("ug/L") ? ["ug/L"] : []; // offered once the core reads it
+  const customSystemUnits = ["mol/L", "mmol/L", "umol/L", ...micro];
   const solvedListeners = new Set();
+  const staleListeners = new Set();
   let lastScenario = null;
-  let last = null; // {result, curves}
-  let latest = 0;
-  let timer = null;
+  let last = null; // {result, curves, scenario}
+  let wantedPlotSystem = null; // from a link, applied at the next draw
 
   view.setLibrary([...library.values()], [...ionLibrary.values()]);
 
@@ -136,7 +162,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
     const measured = view.readConditions().measured;
     if (kind === "system") {
       const system = library.get(row.id);
-      const units = system ? system.units : CUSTOM_SYSTEM_UNITS;
+      const units = system ? system.units : customSystemUnits;
       const note =
         measured && row.id === "carbonate"
           ? "Left out: the carbonate total comes from the measured pH and alkalinity below."
@@ -148,7 +174,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
     if (ion) units = ion.units;
     else {
       const mass = parseNumber(row.mass, "", { optional: true });
-      units = ["mol/L", "mmol/L", "umol/L", ...(mass.value ? ["mg/L"] : []), "meq/L"];
+      units = ["mol/L", "mmol/L", "umol/L", ...(mass.value ? ["mg/L", ...micro] : []), "meq/L"];
     }
     return { units: units.map((u) => [u, unitLabel(u)]) };
   }
@@ -180,7 +206,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       return parsed.error ? parsed.raw ?? null : parsed.value;
     };
     const scenario = {};
-    scenario.temperature_C = take("water-temperature", parseNumber(c.temperature, "a temperature in °C, e.g. 25"));
+    scenario.temperature_C = take("water-temperature", parseTemperature(c.temperature, "a temperature, e.g. 25 (°C) or 77 °F"));
     scenario.activity = c.activity;
     const iWhat = { given: "the ionic strength in mol/L", tds: "the TDS in mg/L", conductance: "the conductance in µS/cm" };
     const iKey = { given: "ionic_strength_M", tds: "tds_mg_per_L", conductance: "conductance_uS_per_cm" };
@@ -197,7 +223,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
         if (!name) errors[`${base}-name`] = "Enter a name for this acid, e.g. “my acid”.";
         entry.custom = {
           name,
-          pKa: take(`${base}-pka`, parsePkaList(row.pka)),
+          pKa: take(`${base}-pka`, parseNumberList(row.pka, "pKa value")),
           charge_most_protonated: take(`${base}-charge`, parseInteger(row.charge, "the charge of the most protonated form, e.g. 0")),
         };
       } else {
@@ -205,7 +231,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       }
       entry.total = take(`${base}-total`, parseNumber(row.total, "the total, e.g. 1 (empty rows are not allowed; remove the row instead)"));
       entry.unit = row.unit;
-      const allowed = row.id === "custom" ? CUSTOM_SYSTEM_UNITS : library.get(row.id)?.units;
+      const allowed = row.id === "custom" ? customSystemUnits : library.get(row.id)?.units;
       if (allowed && !allowed.includes(row.unit)) { // an unknown system is the core's to explain
         errors[`${base}-unit`] = `The unit ${row.unit} does not fit this system; choose one of ${allowed.map((u) => unitLabel(u)).join(", ")}.`;
       }
@@ -280,6 +306,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
     const system = curves.systems[index];
     if (!system) {
       plots.fraction.setLines(curves.pH, [], []);
+      plots.fraction.setMarker(result.pH);
       return;
     }
     plots.fraction.setLines(curves.pH, system.species.map(prettyFormula), system.fractions);
@@ -306,18 +333,83 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
     plots.logc.setYRange(top - LOG_SPAN, top);
   }
 
-  function drawTable() {
-    if (!last) return;
-    view.renderResult(last.result, { unit: view.readConditions().displayUnit }, palette, systemNames(last.result));
+  /**
+   * The species table in the chosen unit: every number the view shows, worked out here.
+   *
+   * @param {object} result  the core's solve result
+   * @param {object[]} scenarioIons  the scenario's ion entries (custom molar masses)
+   * @param {string} unit  one of DISPLAY_UNITS
+   */
+  function speciesRows(result, scenarioIons, unit) {
+    const names = systemNames(result);
+    const molar = unit in MOLAR_SCALE;
+    const activityUnit = unit === "mol/L" || unit === "umol/L" ? unit : "mmol/L";
+    const activityScale = MOLAR_SCALE[activityUnit];
+    // [shown value, what it is "as" (or "")] for a concentration c [mol/L] of a species
+    const inUnit = (c, massOf, asOf) => {
+      if (molar) return [c * MOLAR_SCALE[unit], ""];
+      if (unit === "mg/L as basis" && asOf) return [c * asOf.g * 1e3, asOf.formula];
+      return massOf ? [c * massOf.g * MASS_SCALE[unit], massOf.as] : [null, ""];
+    };
+    const rows = [];
+    let slot = 2; // slots follow the log-concentration plot: H+, OH-, then every species in order
+    for (const s of result.species) {
+      const system = library.get(s.system);
+      // Free CO2 is reported as CO2 in mass units (H2CO3* counts CO2(aq) + H2CO3 together).
+      const asCO2 = s.name === "H2CO3*" && co2MolarMass;
+      const massOf = asCO2 ? { g: co2MolarMass, as: "CO2" } : s.molar_mass_g_per_mol ? { g: s.molar_mass_g_per_mol, as: "" } : null;
+      const asOf = system?.as_formula ? { g: system.as_g_per_mol, formula: system.as_formula } : null;
+      const [shown, as] = inUnit(s.concentration_M, massOf, asOf);
+      rows.push({
+        name: s.name, system: s.system, systemName: names.get(s.system) ?? s.system, charge: s.charge,
+        concentration_M: s.concentration_M, shown, as, activity_M: s.activity_M,
+        activityShown: s.activity_M * activityScale, gamma: s.activity_coefficient,
+        percent: s.fraction * 100, slot: slot++,
+      });
+    }
+    result.ions.forEach((ion, k) => {
+      const lib = ionLibrary.get(ion.id);
+      const mass = lib?.molar_mass_g_per_mol ?? scenarioIons?.[k]?.custom?.molar_mass_g_per_mol ?? null;
+      const asOf = lib?.as_formula ? { g: lib.as_g_per_mol, formula: lib.as_formula } : null;
+      const [shown, as] = inUnit(ion.concentration_M, mass ? { g: mass, as: "" } : null, asOf);
+      rows.push({
+        name: lib ? lib.formula : ion.name, system: "strong ion", systemName: lib ? lib.name : "strong ion",
+        charge: ion.charge, concentration_M: ion.concentration_M, shown, as, activity_M: ion.activity_M,
+        activityShown: ion.activity_M * activityScale, gamma: ion.activity_coefficient, percent: null, slot: null,
+      });
+    });
+    // H+ and OH- (the molar masses of H and O+H: IUPAC 2021 standard atomic weights, abridged)
+    const waterMass = { "H+": 1.008, "OH-": 17.007 };
+    result.water_ions.forEach((w, k) => {
+      const [shown, as] = inUnit(w.concentration_M, { g: waterMass[w.name], as: "" }, null);
+      rows.push({
+        name: w.name, system: "water", systemName: "water", charge: w.charge, concentration_M: w.concentration_M,
+        shown, as, activity_M: w.activity_M, activityShown: w.activity_M * activityScale,
+        gamma: w.activity_coefficient, percent: null, slot: k,
+      });
+    });
+    return { rows, activityUnit };
   }
 
-  function draw(out) {
+  function drawTable() {
+    if (!last) return;
+    const unit = view.readConditions().displayUnit;
+    const { rows, activityUnit } = speciesRows(last.result, last.scenario.ions, unit);
+    const summary = {
+      pHLabel: last.result.inferred_from_measurements ? "pH (measured)" : last.result.pH_was_given ? "pH (given)" : "Equilibrium pH",
+      alkalinity: totalAlkalinity(last.result),
+    };
+    view.renderResult(last.result, { unit, activityUnit, rows, ...summary }, palette, systemNames(last.result));
+  }
+
+  function draw(out, scenario) {
     const previous = last;
-    last = out;
+    last = { ...out, scenario };
     const chosen = Number(view.readConditions().plotSystem) || 0;
     const sameSystems =
       previous && previous.curves.systems.map((s) => s.id).join() === out.curves.systems.map((s) => s.id).join();
-    view.setPlotSystems(out.curves.systems, sameSystems ? chosen : 0);
+    view.setPlotSystems(out.curves.systems, wantedPlotSystem ?? (sameSystems ? chosen : 0));
+    wantedPlotSystem = null;
     drawTable();
     drawFraction();
     drawLogc();
@@ -326,47 +418,62 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
 
   // -- compute ------------------------------------------------------------------------------
 
-  async function refresh() {
-    const { scenario, errors, systemRow } = collect();
-    const seq = ++latest;
-    if (Object.keys(errors).length) {
-      view.showErrors(errors); // the last good result stays on screen
-      return false;
-    }
-    view.setBusy(true);
-    try {
+  let placing = { systemRow: [] };
+
+  function staleNote(kind) {
+    const why = kind === "invalid"
+      ? "an input of the water cannot be used (see the message beside it)"
+      : "the core could not use this water (see the message above)";
+    return last
+      ? `Not updated: ${why}. The figures below belong to the last valid water (pH ${fixed(last.result.pH, 2)}, ${fixed(last.result.temperature_C, 1)} °C).`
+      : `Nothing to show yet: ${why}.`;
+  }
+
+  const block = computation({
+    read() {
+      const { scenario, errors, systemRow } = collect();
+      placing = { systemRow };
+      return { params: scenario, errors };
+    },
+    call: (scenario) => {
       const t0 = performance.now();
-      const out = await py.call("water", { ...scenario, curve: CURVE });
-      if (seq !== latest) return false; // a newer request is on its way
+      return py.call("water", { ...scenario, curve: CURVE }).then((out) => {
+        performance.measure("water:core", { start: t0, end: performance.now() });
+        return out;
+      });
+    },
+    render(out, scenario) {
       const t1 = performance.now();
       view.showErrors({});
-      draw(out);
-      // Timings for build_scripts/bench.py: the core round trip, then the table and plots.
-      performance.measure("water:core", { start: t0, end: t1 });
+      draw(out, scenario);
+      view.setResultState("current");
+      // Timings for build_scripts/bench.py: the table and plots.
       performance.measure("water:draw", { start: t1, end: performance.now() });
       lastScenario = JSON.parse(JSON.stringify(scenario));
       for (const cb of solvedListeners) {
         try {
           cb(JSON.parse(JSON.stringify(scenario)), out.result);
         } catch (error) {
-          console.warn("a listener of the water section failed:", error);
+          console.error("a listener of the water section failed:", error);
         }
       }
-      return true;
-    } catch (error) {
-      if (seq !== latest) return false;
-      if (!(error instanceof CoreError)) throw error;
-      const [id, word] = placeOf(error.field, systemRow);
-      view.showErrors({ [id]: readable(error.message, word) });
-      return false;
-    } finally {
-      if (seq === latest) view.setBusy(false);
-    }
-  }
+    },
+    explain(error) {
+      if (!(error instanceof CoreError)) return { "water-error": String(error?.message || error) };
+      const [id, word] = placeOf(error.field, placing.systemRow);
+      return { [id]: readable(error.message, word) };
+    },
+    show(messages, kind) {
+      view.showErrors(messages);
+      const note = staleNote(kind);
+      view.setResultState(last ? "stale" : "empty", note);
+      for (const cb of staleListeners) cb(note, last?.result ?? null);
+    },
+    busy: (flag) => view.setBusy(flag),
+  });
 
-  function schedule(delay = DEBOUNCE_MS) {
-    clearTimeout(timer);
-    timer = setTimeout(refresh, delay);
+  async function refresh() {
+    return (await block.run()) === "drawn";
   }
 
   view.bind((what, detail) => {
@@ -376,13 +483,13 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       const next = [...library.keys()].find((id) => !used.has(id)) ?? "custom";
       rows.systems.push({ id: next, total: "0.1", unit: "mmol/L", name: "", pka: "", charge: "0" });
       setRows(rows);
-      document.getElementById(`water-system-${rows.systems.length - 1}-id`)?.focus();
+      view.focusRow("system", rows.systems.length - 1);
     } else if (what === "add-ion") {
       const used = new Set(rows.ions.map((r) => r.id));
       const next = [...ionLibrary.keys()].find((id) => !used.has(id)) ?? "custom";
       rows.ions.push({ id: next, total: "0.1", unit: "mmol/L", name: "", charge: "1", mass: "" });
       setRows(rows);
-      document.getElementById(`water-ion-${rows.ions.length - 1}-id`)?.focus();
+      view.focusRow("ion", rows.ions.length - 1);
     } else if (what === "remove") {
       const list = detail.kind === "system" ? rows.systems : rows.ions;
       list.splice(detail.index, 1);
@@ -403,7 +510,7 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       return;
     }
     notifyInputChange("water");
-    schedule(what === "value" ? DEBOUNCE_MS : 0);
+    block.schedule(what === "value" ? DEBOUNCE_MS : 0);
   });
 
   // -- state (share links, presets, saved files) -------------------------------------------
@@ -432,31 +539,35 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
   function set(obj) {
     const messages = [];
     const sc = obj?.scenario;
-    if (!sc || typeof sc !== "object") return ["water: no scenario given; the composition was left as it was"];
-    const text = (v) => (v === null || v === undefined ? "" : String(v));
+    if (!sc || typeof sc !== "object" || Array.isArray(sc)) return ["water: no scenario given; the composition was left as it was"];
+    const text = (v) => (v === null || v === undefined ? "" : typeof v === "object" ? JSON.stringify(v) : String(v));
     const systemsIn = Array.isArray(sc.systems) ? sc.systems : [];
     const ionsIn = Array.isArray(sc.ions) ? sc.ions : [];
     const rows = {
       systems: systemsIn
         .filter((e, i) => {
-          const ok = e && (e.custom || library.has(e.id));
+          const ok = e && typeof e === "object" && (e.custom || library.has(e.id));
           if (!ok) messages.push(`water: system ${i + 1} (${JSON.stringify(e?.id ?? e)}) is not in the library and was left out`);
           return ok;
         })
         .map((e) => rowFromEntry(e, "system")),
       ions: ionsIn
+        .map((e) => (e && typeof e === "object" && !e.custom ? { ...e, id: resolveIonId(e.id, ionLibrary) ?? e.id } : e))
         .filter((e, i) => {
-          const ok = e && (e.custom || ionLibrary.has(e.id));
-          if (!ok) messages.push(`water: ion ${i + 1} (${JSON.stringify(e?.id ?? e)}) is not in the library and was left out`);
+          const ok = e && typeof e === "object" && (e.custom || ionLibrary.has(e.id));
+          if (!ok) messages.push(`water: ion ${i + 1} (${JSON.stringify(ionsIn[i]?.id ?? e)}) is not in the library and was left out`);
           return ok;
         })
         .map((e) => rowFromEntry(e, "ion")),
     };
     const iMode = sc.ionic_strength_M != null ? "given" : sc.tds_mg_per_L != null ? "tds" : sc.conductance_uS_per_cm != null ? "conductance" : "composition";
-    const m = sc.measured;
+    const m = sc.measured && typeof sc.measured === "object" ? sc.measured : null;
     const activity = ["ideal", "davies", "extended-debye-huckel"].includes(sc.activity ?? "davies") ? sc.activity ?? "davies" : "davies";
-    if (sc.activity && activity !== sc.activity) messages.push(`water: activity model ${JSON.stringify(sc.activity)} is unknown; Davies is used`);
+    if (sc.activity && activity !== sc.activity) messages.push(`water: activity model ${JSON.stringify(sc.activity).slice(0, 40)} is unknown; Davies is used`);
     const unit = obj.display?.unit;
+    if (unit !== undefined && !DISPLAY_UNITS.includes(unit)) messages.push(`water: display unit ${JSON.stringify(unit).slice(0, 40)} is not offered; kept ${view.readConditions().displayUnit}`);
+    const alkUnit = m?.alkalinity?.unit;
+    if (m && !["mg/L as CaCO3", "meq/L"].includes(alkUnit)) messages.push(`water: alkalinity unit ${JSON.stringify(alkUnit ?? null).slice(0, 40)} is not offered; mg/L as CaCO3 is used`);
     view.setConditions({
       temperature: text(sc.temperature_C ?? 25),
       activity,
@@ -467,15 +578,62 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       measured: Boolean(m),
       measuredPH: m ? text(m.pH) : undefined,
       alkValue: m ? text(m.alkalinity?.value) : undefined,
-      alkUnit: m && ["mg/L as CaCO3", "meq/L"].includes(m.alkalinity?.unit) ? m.alkalinity.unit : undefined,
+      alkUnit: m ? (["mg/L as CaCO3", "meq/L"].includes(alkUnit) ? alkUnit : "mg/L as CaCO3") : undefined,
       displayUnit: DISPLAY_UNITS.includes(unit) ? unit : undefined,
     });
+    wantedPlotSystem = Number.isInteger(obj.display?.plot_system) && obj.display.plot_system >= 0 ? obj.display.plot_system : null;
     setRows(rows);
     return messages;
   }
 
-  registerSection("water", { get, set, refresh });
-  setRows(EXAMPLE);
+  /** Put the inputs named in `problems` back to usable values (see section.js settle). */
+  function reset(problems) {
+    const notes = [];
+    const c = view.readConditions();
+    const rows = view.readRows();
+    const dropRows = { system: new Set(), ion: new Set() };
+    for (const [id, message] of Object.entries(problems)) {
+      const why = message.replace(/\.$/, "");
+      const row = /^water-(system|ion)-(\d+)-/.exec(id);
+      if (row) {
+        dropRows[row[1]].add(Number(row[2]));
+        continue;
+      }
+      if (CONDITION_DEFAULTS[id]) {
+        const [key, value, words, label] = CONDITION_DEFAULTS[id];
+        if (c[key] === value) continue;
+        view.setConditions({ [key]: value, ...(id === "water-istrength-value" ? { iMode: "composition" } : {}) });
+        notes.push(`water: ${label} "${String(c[key]).slice(0, 40)}" could not be used (${why}); ${words} instead`);
+      } else if ((id === "water-measured-ph" || id === "water-alk-value") && c.measured) {
+        view.setConditions({ measured: false });
+        refreshRowNotes();
+        notes.push(`water: the measurements (pH "${String(c.measuredPH).slice(0, 20)}", alkalinity "${String(c.alkValue).slice(0, 20)}") could not be used (${why}); they were left out`);
+      } else if (id === "water-activity" && c.activity !== "davies") {
+        view.setConditions({ activity: "davies" });
+        notes.push(`water: activity model could not be used (${why}); Davies is used instead`);
+      }
+    }
+    for (const kind of ["system", "ion"]) {
+      const list = kind === "system" ? rows.systems : rows.ions;
+      for (const index of [...dropRows[kind]].sort((a, b) => b - a)) {
+        const r = list[index];
+        if (!r) continue;
+        const what = r.id === "custom" ? `“${r.name}”` : (kind === "system" ? library.get(r.id)?.name : ionLibrary.get(r.id)?.name) ?? r.id;
+        const amount = String(r.total).trim() ? `${String(r.total).slice(0, 20)} ${unitLabel(r.unit)}` : "no amount";
+        notes.push(`water: ${kind} ${index + 1} (${what}, ${amount}) could not be used ` +
+          `(${problems[Object.keys(problems).find((k) => k.startsWith(`water-${kind}-${index}-`))].replace(/\.$/, "")}); it was left out`);
+        list.splice(index, 1);
+      }
+    }
+    if (dropRows.system.size || dropRows.ion.size) setRows(rows);
+    return notes;
+  }
+
+  registerSection("water", { get, set, refresh, settle: () => block.settle(reset) });
+  setRows({
+    systems: EXAMPLE.systems,
+    ions: EXAMPLE.ions.map((r) => ({ ...r, id: resolveIonId(r.id, ionLibrary) ?? r.id })).filter((r) => ionLibrary.has(r.id)),
+  });
   view.syncConditionFields();
 
   return {
@@ -485,5 +643,27 @@ export function mountWater({ py, view, plots, palette, systems, ions }) {
       solvedListeners.add(cb);
       return () => solvedListeners.delete(cb);
     },
+    onStale(cb) {
+      staleListeners.add(cb);
+      return () => staleListeners.delete(cb);
+    },
+  };
+}
+
+/**
+ * The page's one total alkalinity of a solved water: to the fixed end point pH 4.5 (Standard
+ * Methods 2320 B), as a lab titration reports it and as the measured-alkalinity input takes it.
+ * Read from the core's alkalinity report.
+ *
+ * @param {object} result  a core solve result (or a dose result's water_before / water_after)
+ * @returns {{mg_per_L_as_CaCO3: number|null, meq_per_L: number|null, end_pH: number}}
+ */
+export function totalAlkalinity(result) {
+  const a = result?.alkalinity || {};
+  const f = a.fixed_end_point || {};
+  return {
+    mg_per_L_as_CaCO3: f.total_mg_per_L_as_CaCO3 ?? a.total_mg_per_L_as_CaCO3 ?? null,
+    meq_per_L: f.total_meq_per_L ?? a.total_meq_per_L ?? null,
+    end_pH: f.total_end_point_pH ?? 4.5,
   };
 }

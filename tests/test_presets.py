@@ -23,6 +23,23 @@ from acidscape.boundary import api
 SITE = Path(__file__).resolve().parents[1] / "site"
 PRESETS = json.loads((SITE / "presets.json").read_text(encoding="utf-8"))["presets"]
 IDS = [p["id"] for p in PRESETS]
+# Strong ions are keyed by words from state format 2 on (site/share.js ION_WORDS maps the
+# formula ids of format 1); the core reads the words and keeps the formulas as aliases.
+ION_WORDS = {
+    "Na+": "sodium", "K+": "potassium", "Li+": "lithium", "Ca+2": "calcium", "Mg+2": "magnesium",
+    "Sr+2": "strontium", "Ba+2": "barium", "Cl-": "chloride", "Br-": "bromide", "I-": "iodide",
+    "NO3-": "nitrate", "SO4-2": "sulfate", "ClO4-": "perchlorate", "ClO3-": "chlorate", "BrO3-": "bromate",
+}
+
+
+def core_scenario(scenario: dict) -> dict:
+    """The scenario with each ion id as the core's library knows it: the word, or (for a core
+    that still keys ions by formula) the formula the page's alias table maps it from."""
+    known = {i["id"] for i in json.loads(api.handle("systems", "{}"))["result"]["ions"]}
+    back = {w: f for f, w in ION_WORDS.items()}
+    ions = [dict(e, id=back.get(e["id"], e["id"])) if "id" in e and e["id"] not in known else e
+            for e in scenario.get("ions", [])]
+    return {**scenario, "ions": ions}
 
 # The state shapes of the front-end contract (site/state.js users).
 WATER_KEYS = {"scenario", "display"}
@@ -41,13 +58,38 @@ def test_at_least_six_labelled_examples_with_distinct_ids():
         assert p["description"].strip()
 
 
+# Names that are, or read like, real places (the examples once used them).
+PLACE_LIKE = re.compile(r"(ford|fen|mere|beck|moy|cross|ton|ham|by|wick|field|bury|STW)\b", re.I)
+
+
+@pytest.mark.parametrize("preset", PRESETS, ids=IDS)
+def test_titles_name_no_place(preset):
+    # An invented example is named by a site code ("plant K-7", "well W-3") or by what the water
+    # is; apart from the first word, the only capitalised words allowed are site codes and
+    # formulas, so no title can carry a real (or real-sounding) place name.
+    words = re.findall(r"[\w₀-₉'-]+", preset["title"])
+    for word in words[1:]:
+        if word[0].isupper():
+            assert re.fullmatch(r"[A-Z]{1,2}-\d{1,3}|CO₂", word), (preset["title"], word)
+    for text in (preset["title"], preset["description"]):
+        for word in re.findall(r"[A-Z][a-z]+\w*", text)[1:]:
+            assert not PLACE_LIKE.search(word), (text, word)
+
+
+@pytest.mark.parametrize("preset", PRESETS, ids=IDS)
+def test_ions_are_keyed_by_words(preset):
+    for entry in preset["state"]["water"]["scenario"].get("ions", []):
+        if "id" in entry:
+            assert entry["id"] in ION_WORDS.values(), entry
+
+
 @pytest.mark.parametrize("preset", PRESETS, ids=IDS)
 def test_state_has_the_contract_shape(preset):
     state = preset["state"]
-    assert state["v"] == 1
+    assert state["v"] == 2
     assert set(state) <= {"v", "distribution", "water", "treatment"}
     assert set(state["water"]) == WATER_KEYS
-    assert state["water"]["display"]["unit"] in ("mol/L", "mmol/L", "mg/L")
+    assert state["water"]["display"]["unit"] in ("mol/L", "mmol/L", "umol/L", "mg/L", "ug/L", "mg/L as basis")
     assert {"titration", "dose"} <= set(state["treatment"]) <= {"titration", "dose", "buffer"}
     assert set(state["treatment"]["titration"]) == TITRATION_KEYS
     assert state["treatment"]["titration"]["axis"] in ("volume", "dose")
@@ -59,7 +101,7 @@ def test_state_has_the_contract_shape(preset):
 @pytest.mark.parametrize("preset", PRESETS, ids=IDS)
 def test_core_accepts_every_part(preset):
     state = preset["state"]
-    scenario = state["water"]["scenario"]
+    scenario = core_scenario(state["water"]["scenario"])
     out = api.solve(scenario)
     assert out["warnings"] == []
     titration = state["treatment"]["titration"]
@@ -109,7 +151,7 @@ def test_a_format_0_link_is_migrated():
     """
     r = run_node(script)
     assert r["kind"] == "state"
-    assert r["state"] == {"v": 1, "distribution": {"acid": "custom", "pKa": [4.76], "charge": 0,
+    assert r["state"] == {"v": 2, "distribution": {"acid": "custom", "pKa": [4.76], "charge": 0,
                                                    "total_M": 0.01, "pH": 5}}
     assert r["notes"] == ["an older link (format 0) was brought up to date"]
 
@@ -141,7 +183,7 @@ def test_broken_links_give_reasons():
     assert r["long"]["kind"] == "error" and "too long" in r["long"]["reason"]
     assert r["array"] == {"kind": "error", "reason": "it does not hold a scenario (found a list)"}
     assert r["proto"]["kind"] == "state"
-    assert r["proto"]["state"] == {"v": 1, "distribution": {}}
+    assert r["proto"]["state"] == {"v": 2, "distribution": {}}
     assert any('"__proto__"' in n for n in r["proto"]["notes"])
     assert any('"constructor"' in n for n in r["proto"]["notes"])
     assert r["polluted"] is True

@@ -1,0 +1,201 @@
+// The DOM side of getting things out of the page: downloads, the tables and plots the page
+// shows (named for menus), a plot as PNG and the printed report. The pure part is export.js.
+// Text from the page or a file only ever goes in through textContent.
+
+import { REPORT_CAUTIONS, flatten } from "./export.js";
+
+/**
+ * Offer a Blob as a download.
+ *
+ * @param {Document} doc  the page
+ * @param {Blob} blob  the content
+ * @param {string} filename  suggested file name
+ */
+export function downloadBlob(doc, blob, filename) {
+  const url = URL.createObjectURL(blob);
+  const a = doc.createElement("a");
+  a.href = url;
+  a.download = filename;
+  a.hidden = true;
+  doc.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 10000);
+}
+
+/**
+ * The name of a table or plot for menus and files: its data-export-name, else the text of its
+ * caption without the words of any control inside it (a drop-down shows its chosen option).
+ *
+ * @param {Element} el  the table or the plot host
+ * @param {Element|null} caption  its caption or figcaption
+ * @param {string} fallback  when there is neither
+ * @returns {string}
+ */
+export function exportName(el, caption, fallback) {
+  if (el.dataset.exportName) return el.dataset.exportName;
+  if (!caption) return fallback;
+  const copy = caption.cloneNode(true);
+  for (const select of copy.querySelectorAll("select")) {
+    const chosen = select.selectedOptions?.[0]?.textContent ?? "";
+    select.replaceWith(caption.ownerDocument.createTextNode(` ${chosen} `));
+  }
+  for (const control of copy.querySelectorAll("input, button, textarea")) control.remove();
+  return (copy.textContent || fallback).trim().replace(/\s+/g, " ");
+}
+
+/**
+ * Every visible table of the page, with a name for menus.
+ *
+ * @param {Document} doc  the page
+ * @returns {{name: string, table: HTMLTableElement}[]}
+ */
+export function pageTables(doc) {
+  return [...doc.querySelectorAll("main table")]
+    .filter((t) => t.tBodies[0]?.rows.length && t.getClientRects().length)
+    .map((table, i) => ({ name: exportName(table, table.caption, table.id || `table ${i + 1}`), table }));
+}
+
+/**
+ * A table as CSV rows: header cells as shown (with their units), body cells as the number in
+ * that unit when the cell carries data-export (seven significant figures), else as shown.
+ * (data-value holds the raw SI number for tests; it is never written under a unit header.)
+ *
+ * @param {HTMLTableElement} table  a table of the page
+ * @returns {string[][]}  rows of cell texts
+ */
+export function tableRows(table) {
+  const text = (el) => el.textContent.trim().replace(/\s+/g, " ");
+  const rows = [];
+  const head = table.tHead?.rows[table.tHead.rows.length - 1];
+  if (head) rows.push([...head.cells].map(text));
+  for (const body of table.tBodies) {
+    for (const tr of body.rows) {
+      rows.push([...tr.cells].map((c) => (c.dataset.export !== undefined ? c.dataset.export : text(c))));
+    }
+  }
+  return rows;
+}
+
+/** Canvases inside an element, looking through open shadow roots (BokehJS draws in them). */
+function canvasesIn(root) {
+  const found = [];
+  const walk = (node) => {
+    if (node instanceof HTMLCanvasElement) found.push(node);
+    if (node.shadowRoot) walk(node.shadowRoot);
+    for (const child of node.children || []) walk(child);
+  };
+  walk(root);
+  return found.filter((c) => c.width > 0 && c.height > 0 && c.getClientRects().length);
+}
+
+/**
+ * Every plot host of the page (elements with class "plot"), named by its figure caption.
+ *
+ * @param {Document} doc  the page
+ * @returns {{name: string, host: Element}[]}
+ */
+export function pagePlots(doc) {
+  return [...doc.querySelectorAll("main .plot")]
+    .filter((host) => host.getClientRects().length && canvasesIn(host).length)
+    .map((host) => ({ name: exportName(host, host.closest("figure")?.querySelector("figcaption") ?? null, host.id), host }));
+}
+
+/**
+ * A plot as a PNG: its canvas layers drawn, in order, onto one white canvas at their places.
+ *
+ * @param {Element} host  the plot's host element
+ * @returns {Promise<Blob>}  image/png
+ */
+export function plotPng(host) {
+  const layers = canvasesIn(host);
+  if (!layers.length) return Promise.reject(new Error("this plot has not been drawn yet"));
+  const box = host.getBoundingClientRect();
+  const scale = layers[0].width / Math.max(1, layers[0].getBoundingClientRect().width);
+  const out = document.createElement("canvas");
+  out.width = Math.round(box.width * scale);
+  out.height = Math.round(box.height * scale);
+  const ctx = out.getContext("2d");
+  ctx.fillStyle = "#ffffff";
+  ctx.fillRect(0, 0, out.width, out.height);
+  for (const layer of layers) {
+    const r = layer.getBoundingClientRect();
+    ctx.drawImage(layer, (r.left - box.left) * scale, (r.top - box.top) * scale, r.width * scale, r.height * scale);
+  }
+  return new Promise((resolve, reject) =>
+    out.toBlob((blob) => (blob ? resolve(blob) : reject(new Error("the browser could not make a PNG"))), "image/png"),
+  );
+}
+
+function el(doc, tag, text, className) {
+  const node = doc.createElement(tag);
+  if (text !== undefined) node.textContent = text;
+  if (className) node.className = className;
+  return node;
+}
+
+/**
+ * Fill the hidden report block with everything a printout needs (it is shown only in print).
+ *
+ * @param {Document} doc  the page
+ * @param {HTMLElement} report  the #report element
+ * @param {{state: object, link: string, versions: object, manifest: object|null,
+ *          notes?: string[]}} info  inputs, the link, versions and the build manifest
+ */
+export function fillReport(doc, report, { state, link, versions, manifest }) {
+  const parts = [];
+  parts.push(el(doc, "h2", "Acidscape report"));
+  const meta = el(doc, "dl", undefined, "report-meta");
+  const v = { ...(manifest?.versions || {}), ...(versions || {}) };
+  const wheel = manifest?.wheel && manifest?.files?.[manifest.wheel];
+  const metaRows = [
+    ["Printed", new Date().toLocaleString()],
+    ["Tool version", `Acidscape ${v.acidscape ?? "?"} (Python ${v.python ?? "?"} on Pyodide ${v.pyodide ?? "?"})`],
+    ["Constants version", manifest?.constants?.sha256
+      ? `cited data tables and constants, sha256 ${manifest.constants.sha256.slice(0, 16)}`
+      : wheel ? `core package with its cited data tables, sha256 ${wheel.slice(0, 16)} (${manifest.wheel})` : "unknown (no build manifest)"],
+    ["Scenario link", link],
+  ];
+  for (const [k, text] of metaRows) meta.append(el(doc, "dt", k), el(doc, "dd", text));
+  parts.push(meta);
+
+  parts.push(el(doc, "h3", "Inputs"));
+  for (const [section, value] of Object.entries(state)) {
+    if (section === "v") continue;
+    const table = el(doc, "table", undefined, "report-inputs");
+    table.append(el(doc, "caption", section));
+    const body = el(doc, "tbody");
+    for (const [path, text] of flatten(value, "", [])) {
+      const tr = el(doc, "tr");
+      tr.append(el(doc, "th", path), el(doc, "td", text));
+      body.append(tr);
+    }
+    table.append(body);
+    parts.push(table);
+  }
+
+  parts.push(el(doc, "h3", "Results and calculation trail"));
+  for (const summary of doc.querySelectorAll("main .water-summary, main [data-report-summary]")) {
+    const copy = summary.cloneNode(true);
+    for (const node of copy.querySelectorAll("[id]")) node.removeAttribute("id");
+    parts.push(copy);
+  }
+  for (const { name, table } of pageTables(doc)) {
+    if (report.contains(table)) continue;
+    const copy = table.cloneNode(true);
+    copy.removeAttribute("id");
+    for (const node of copy.querySelectorAll("[id]")) node.removeAttribute("id");
+    if (!copy.caption) copy.createCaption().textContent = name;
+    parts.push(copy);
+  }
+
+  parts.push(el(doc, "h3", "Cautions"));
+  const cautions = el(doc, "ul", undefined, "report-cautions");
+  const onPage = [...doc.querySelectorAll("main .cautions li, main .caution, main [data-caution]")]
+    .map((n) => n.textContent.trim().replace(/\s+/g, " "))
+    .filter(Boolean);
+  for (const text of [...new Set(onPage), ...REPORT_CAUTIONS]) cautions.append(el(doc, "li", text));
+  parts.push(cautions);
+  report.replaceChildren(...parts);
+  report.dataset.filled = new Date().toISOString();
+}

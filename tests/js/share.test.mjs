@@ -1,0 +1,53 @@
+// Unit tests of site/share.js (no DOM): the link codec and the format migrations, with a saved
+// format-1 scenario (formula ion ids) as the fixture of the 1 -> 2 step.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { readFileSync } from "node:fs";
+import { ION_WORDS, encodeState, migrate, readFragment, readStateJson, toBase64Url } from "../../site/share.js";
+import { STATE_VERSION } from "../../site/state.js";
+
+const fixture = (name) => JSON.parse(readFileSync(new URL(`./fixtures/${name}`, import.meta.url), "utf8"));
+const SECTIONS = ["distribution", "water", "treatment"];
+
+test("the page writes format 2", () => {
+  assert.equal(STATE_VERSION, 2);
+  assert.ok(encodeState({ v: STATE_VERSION, water: {} }).startsWith("s=2."));
+});
+
+test("a format-1 file migrates to word ion ids, everything else unchanged", () => {
+  const { state, notes } = migrate(fixture("scenario-v1.json"));
+  assert.deepEqual(state, fixture("scenario-v2.json"));
+  assert.deepEqual(notes, []);
+  // and through the file reader, with the sanitiser after it
+  const read = readStateJson(JSON.stringify(fixture("scenario-v1.json")), SECTIONS);
+  assert.deepEqual(read.state, fixture("scenario-v2.json"));
+});
+
+test("a format-1 link opens as format 2", () => {
+  const v1 = fixture("scenario-v1.json");
+  const link = `#s=1.${toBase64Url(new TextEncoder().encode(JSON.stringify(v1)))}`;
+  const r = readFragment(link, SECTIONS);
+  assert.equal(r.kind, "state");
+  assert.deepEqual(r.state, fixture("scenario-v2.json"));
+});
+
+test("a format-0 link migrates through 1 to 2", () => {
+  const old = { version: 0, acid: "custom", pka: "4.76", z: 0, c: 0.01, ph: 5 };
+  const r = readFragment(`#s=0.${toBase64Url(new TextEncoder().encode(JSON.stringify(old)))}`, ["distribution"]);
+  assert.equal(r.kind, "state");
+  assert.deepEqual(r.state, { v: 2, distribution: { acid: "custom", pKa: [4.76], charge: 0, total_M: 0.01, pH: 5 } });
+  assert.deepEqual(r.notes, ["an older link (format 0) was brought up to date"]);
+});
+
+test("every formula id has a word, and no word is a formula", () => {
+  for (const [formula, word] of Object.entries(ION_WORDS)) {
+    assert.match(formula, /[+-]\d*$/);
+    assert.match(word, /^[a-z]+$/);
+  }
+});
+
+test("a link from a newer page is refused with the reason", () => {
+  const r = readFragment(`#s=3.${toBase64Url(new TextEncoder().encode('{"v":3}'))}`, SECTIONS);
+  assert.equal(r.kind, "error");
+  assert.match(r.reason, /newer Acidscape \(format 3\)/);
+});
