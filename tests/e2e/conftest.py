@@ -8,10 +8,17 @@
   installs it with apt when missing); Playwright's own browser builds are not used.
 - ``watch``: a page whose console errors, uncaught exceptions, CSP violations and request
   origins are recorded; ``watch.assert_clean()`` checks them.
+- ``settled(page)``: wait until the page has no computation scheduled or running
+  (body[data-pending] = "0"), a condition rather than a timeout.
+- ``core_scenario(scenario)``: a page scenario with each ion id as the core's library has it
+  (word ids, or the formula ids of a core that has not moved to words yet).
+- ``AXE``: axe-core's axe.min.js (build_scripts/node_modules, a dev dependency) for the
+  accessibility checks.
 """
 
 from __future__ import annotations
 
+import json
 import subprocess
 import sys
 import threading
@@ -23,6 +30,31 @@ import pytest
 REPO = Path(__file__).resolve().parents[2]
 DIST = REPO / "dist"
 CHROMIUM = Path("/usr/bin/chromium")
+AXE = REPO / "build_scripts" / "node_modules" / "axe-core" / "axe.min.js"
+
+# Format-1 formula ids -> format-2 word ids of the strong ions (site/share.js ION_WORDS).
+ION_WORDS = {
+    "Na+": "sodium", "K+": "potassium", "Li+": "lithium", "Ca+2": "calcium", "Mg+2": "magnesium",
+    "Sr+2": "strontium", "Ba+2": "barium", "Cl-": "chloride", "Br-": "bromide", "I-": "iodide",
+    "NO3-": "nitrate", "SO4-2": "sulfate", "ClO4-": "perchlorate", "ClO3-": "chlorate", "BrO3-": "bromate",
+}
+
+
+def core_scenario(scenario: dict) -> dict:
+    """``scenario`` with each ion id spelled as the core's library has it (see module doc)."""
+    from acidscape.boundary import api
+
+    known = {i["id"] for i in json.loads(api.handle("systems", "{}"))["result"]["ions"]}
+    back = {w: f for f, w in ION_WORDS.items()}
+    ions = [dict(e, id=back.get(e["id"], ION_WORDS.get(e["id"], e["id"])))
+            if isinstance(e, dict) and "id" in e and e["id"] not in known else e
+            for e in scenario.get("ions", [])]
+    return {**scenario, "ions": ions}
+
+
+def settled(page, timeout: int = 30_000) -> None:
+    """Wait until no computation of the page is scheduled or with the core."""
+    page.wait_for_function("() => document.body.dataset.pending === '0'", timeout=timeout)
 
 sys.path.insert(0, str(REPO / "build_scripts"))
 from serve import make_server  # noqa: E402

@@ -11,6 +11,7 @@ import json
 import math
 
 import pytest
+from conftest import settled
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -66,19 +67,11 @@ def set_field(page: Page, selector: str, text: str) -> None:
     wait_redrawn(page, before)
 
 
-def eventually(page: Page, check, timeout_ms: int = 10_000) -> None:
-    """Retry ``check`` until it passes: a redraw requested before an input (at boot, or by a
-    link being applied) may land just after it, so the first redraw seen is not always ours."""
-    waited = 0
-    while True:
-        try:
-            check()
-            return
-        except AssertionError:
-            if waited >= timeout_ms:
-                raise
-            page.wait_for_timeout(100)
-            waited += 100
+def eventually(page: Page, check) -> None:
+    """Check once the page has settled: no computation scheduled or with the core (a redraw
+    requested before an input must not be taken for ours)."""
+    settled(page)
+    check()
 
 
 def assert_table_matches(rows: list[dict], expected: dict) -> None:
@@ -171,7 +164,7 @@ def test_bad_input_is_explained_beside_its_field_and_the_last_result_stays(page:
     error = page.locator(f"{selector}-error")
     expect(error).to_contain_text(needle, timeout=10_000)
     expect(page.locator(selector)).to_have_attribute("aria-invalid", "true")
-    page.wait_for_timeout(300)  # let any (wrongly) scheduled redraw happen
+    settled(page)  # any (wrongly) scheduled redraw has happened by now
     assert drawn(page) == kept_count
     assert table_rows(page) == kept_rows
     assert page.evaluate(READ_SOURCE, "fraction_src") == kept_plot

@@ -13,6 +13,7 @@ import json
 import math
 
 import pytest
+from conftest import core_scenario, settled
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -38,7 +39,7 @@ READ_WATER_SOURCE = """(name) => {
 
 
 def solve(scenario: dict) -> dict:
-    reply = json.loads(api.handle("solve", json.dumps(scenario)))
+    reply = json.loads(api.handle("solve", json.dumps(core_scenario(scenario))))
     assert reply["ok"], reply
     return reply["result"]
 
@@ -53,16 +54,11 @@ def open_page(page: Page) -> None:
 
 
 def settle(page: Page, before: int) -> None:
-    """Wait for a redraw after ``before``, then until no further one is on its way."""
+    """Wait for a redraw after ``before``, then until nothing is scheduled or with the core."""
     page.wait_for_function(
         "(n) => Number(document.querySelector('#water-section').dataset.drawn) > n", arg=before, timeout=10_000
     )
-    while True:
-        n = water_drawn(page)
-        page.wait_for_timeout(400)  # longer than the page's 120 ms debounce
-        busy = page.get_attribute("#water-results", "aria-busy")
-        if water_drawn(page) == n and busy != "true":
-            return
+    settled(page)
 
 
 def number(page: Page, selector: str) -> float:
@@ -101,7 +97,7 @@ def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Pa
     start = {
         "temperature_C": 25, "activity": "davies",
         "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
-        "ions": [{"id": "Na+", "total": 2, "unit": "mmol/L"}, {"id": "Cl-", "total": 0.2, "unit": "mmol/L"}],
+        "ions": [{"id": "sodium", "total": 2, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}],
     }
     assert_page_matches(page, start)
 
@@ -118,7 +114,8 @@ def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Pa
     page.fill("#water-system-2-charge", "0")
     page.fill("#water-system-2-total", "0.05")
     page.click("#water-add-ion")
-    page.select_option("#water-ion-2-id", "Ca+2")
+    page.select_option("#water-ion-2-id", page.eval_on_selector(
+        "#water-ion-2-id", "(s) => [...s.options].find((o) => o.value === 'calcium' || o.value === 'Ca+2').value"))
     page.select_option("#water-ion-2-unit", "mg/L")
     page.fill("#water-ion-2-total", "20")
     page.fill("#water-temperature", "12")
@@ -135,15 +132,22 @@ def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Pa
              "total": 0.05, "unit": "mmol/L"},
         ],
         "ions": [
-            {"id": "Na+", "total": 2, "unit": "mmol/L"},
-            {"id": "Cl-", "total": 0.2, "unit": "mmol/L"},
-            {"id": "Ca+2", "total": 20, "unit": "mg/L"},
+            {"id": "sodium", "total": 2, "unit": "mmol/L"},
+            {"id": "chloride", "total": 0.2, "unit": "mmol/L"},
+            {"id": "calcium", "total": 20, "unit": "mg/L"},
         ],
     }
     want = assert_page_matches(page, scenario)
     # The section's state is exactly that scenario (what share links carry).
     state = page.evaluate("() => import('./state.js').then((m) => m.collectState().water)")
     assert solve(state["scenario"])["pH"] == want["pH"]
+    # Temperatures typed in °F with a decimal comma are read as °C: (53,6 - 32) x 5/9 = 12.
+    before = water_drawn(page)
+    page.fill("#water-temperature", "53,6 °F")
+    settle(page, before)
+    assert math.isclose(page.evaluate("() => import('./state.js').then((m) => m.collectState().water.scenario.temperature_C)"),
+                        12, rel_tol=1e-12)
+    assert math.isclose(number(page, "#water-ph"), want["pH"], rel_tol=1e-9)
 
     # Trail: its terms add up to the residual the core reports, which is tiny beside the
     # charge carried (the pH is where the balance closes).
@@ -185,7 +189,7 @@ def test_measured_ph_and_alkalinity_and_a_fixed_ph(page: Page, watch):
     expect(page.locator("#water-system-0-total")).to_be_disabled()
     scenario = {
         "temperature_C": 25, "activity": "davies", "systems": [],
-        "ions": [{"id": "Na+", "total": 2, "unit": "mmol/L"}, {"id": "Cl-", "total": 0.2, "unit": "mmol/L"}],
+        "ions": [{"id": "sodium", "total": 2, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}],
         "measured": {"pH": 7.6, "alkalinity": {"value": 2.4, "unit": "meq/L"}},
     }
     want = assert_page_matches(page, scenario)
@@ -201,7 +205,7 @@ def test_measured_ph_and_alkalinity_and_a_fixed_ph(page: Page, watch):
     fixed = {
         "temperature_C": 25, "activity": "davies", "pH": 8.3,
         "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
-        "ions": [{"id": "Na+", "total": 2, "unit": "mmol/L"}, {"id": "Cl-", "total": 0.2, "unit": "mmol/L"}],
+        "ions": [{"id": "sodium", "total": 2, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}],
     }
     want = assert_page_matches(page, fixed)
     assert math.isclose(sum(trail(page)), want["charge_balance_residual_eq_per_L"], rel_tol=1e-9)
@@ -237,7 +241,7 @@ def test_bad_input_is_explained_beside_its_field_and_the_last_result_stays(page:
         error = page.locator(f"{selector}-error")
         expect(error).to_contain_text(needle, timeout=10_000)
         expect(page.locator(selector)).to_have_attribute("aria-invalid", "true")
-        page.wait_for_timeout(300)  # let any (wrongly) scheduled redraw happen
+        settled(page)  # any (wrongly) scheduled redraw has happened by now
         assert water_drawn(page) == kept_count, selector
         assert page.get_attribute("#water-ph", "data-value") == kept_pH
         assert species_rows(page) == kept_rows
@@ -245,7 +249,7 @@ def test_bad_input_is_explained_beside_its_field_and_the_last_result_stays(page:
         page.evaluate("""() => import('./state.js').then((m) => m.applyState({v: 1, water: {
             scenario: {temperature_C: 25, activity: 'davies',
               systems: [{id: 'carbonate', total: 2, unit: 'mmol/L'}],
-              ions: [{id: 'Na+', total: 2, unit: 'mmol/L'}, {id: 'Cl-', total: 0.2, unit: 'mmol/L'}]},
+              ions: [{id: 'sodium', total: 2, unit: 'mmol/L'}, {id: 'chloride', total: 0.2, unit: 'mmol/L'}]},
             display: {unit: 'mmol/L'}}}))""")
         expect(error).to_be_empty()
         assert water_drawn(page) > kept_count

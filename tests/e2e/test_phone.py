@@ -4,6 +4,7 @@ a label, and the scenario controls work from the keyboard."""
 from __future__ import annotations
 
 import pytest
+from conftest import settled
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
@@ -19,8 +20,11 @@ def test_phone_width_has_no_horizontal_overflow_and_inputs_are_labelled(page: Pa
     page.fill("#batch-text", "Sample,pH,Temp C,Alk\nA,7.2,12,80\n")
     page.click("#batch-read")
     expect(page.locator("#batch-mapping")).to_be_visible()
+    rows = page.locator("#batch-totals > *")
+    count = rows.count()
     page.click("#batch-add-total")
-    page.wait_for_timeout(500)
+    expect(rows).to_have_count(count + 1)
+    settled(page)
     width = page.evaluate("() => [document.documentElement.scrollWidth, window.innerWidth]")
     page.screenshot(path="/tmp/acidscape-phone-390.png", full_page=True)
     assert width[0] <= width[1], f"page is {width[0]} px wide in a {width[1]} px window"

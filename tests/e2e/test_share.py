@@ -13,6 +13,7 @@ import math
 from pathlib import Path
 
 import pytest
+from conftest import ION_WORDS, core_scenario, settled
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -28,6 +29,17 @@ def open_at(page: Page, fragment: str = "") -> None:
     expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
 
 
+def opened(page: Page) -> int:
+    """How many times the page has opened something (a link, example, file, recent item)."""
+    return int(page.get_attribute("body", "data-opened") or 0)
+
+
+def as_words(scenario: dict) -> dict:
+    """A scenario with its ion ids as words (the core may answer with either)."""
+    return {**scenario, "ions": [dict(e, id=ION_WORDS.get(e["id"], e["id"])) if "id" in e else e
+                                 for e in scenario.get("ions", [])]}
+
+
 def water_ph(page: Page, want: float) -> float:
     """Wait until the water section shows ``want`` (to round-off) and return the shown value."""
     page.wait_for_function(
@@ -37,7 +49,7 @@ def water_ph(page: Page, want: float) -> float:
 
 
 def state_of(fragment: str) -> dict:
-    assert fragment.startswith("#s=1."), fragment[:40]
+    assert fragment.startswith("#s=2."), fragment[:40]
     payload = fragment[5:]
     return json.loads(base64.urlsafe_b64decode(payload + "=" * (-len(payload) % 4)).decode("utf-8"))
 
@@ -52,7 +64,7 @@ def test_each_example_opens_from_the_menu_and_as_a_link_and_matches_the_core(pag
     for i, preset in enumerate(PRESETS):
         if i:
             page.select_option("#preset-select", preset["id"])
-        want = api.solve(preset["state"]["water"]["scenario"])
+        want = api.solve(core_scenario(preset["state"]["water"]["scenario"]))
         got = water_ph(page, want["pH"])
         assert math.isclose(got, want["pH"], rel_tol=1e-12)
         ionic = float(page.get_attribute("#water-ionic-strength", "data-value"))
@@ -67,10 +79,14 @@ def test_each_example_opens_from_the_menu_and_as_a_link_and_matches_the_core(pag
 
 def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, watch):
     open_at(page, "preset=hatchery-tank")
-    water_ph(page, api.solve(PRESETS[-1]["state"]["water"]["scenario"])["pH"])
+    water_ph(page, api.solve(core_scenario(PRESETS[-1]["state"]["water"]["scenario"]))["pH"])
     page.fill("#ph-input", "6.85")
-    page.wait_for_function("() => location.hash.startsWith('#s=1.')")
-    page.wait_for_timeout(400)
+    page.wait_for_function("""() => {
+        if (!location.hash.startsWith('#s=2.')) return false;
+        const b64 = location.hash.slice(5).replace(/-/g, '+').replace(/_/g, '/');
+        return JSON.parse(new TextDecoder().decode(Uint8Array.from(atob(b64), (c) => c.charCodeAt(0))))
+          .distribution.pH === 6.85; }""")
+    settled(page)
     first = state_of(page.evaluate("location.hash"))
     assert first["distribution"]["pH"] == 6.85
     assert first["water"]["scenario"]["temperature_C"] == 12.0
@@ -84,7 +100,7 @@ def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, 
     expect(other.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
     water_ph(other, float(ph))
     other.wait_for_function("() => document.getElementById('ph-input').value === '6.85'")
-    other.wait_for_timeout(300)
+    settled(other)
     assert state_of(other.evaluate("location.hash")) == first
     assert other.get_attribute("#water-ph", "data-value") == ph
     assert other.eval_on_selector_all("#species-table td", "tds => tds.map((td) => td.dataset.value)") == species
@@ -122,14 +138,16 @@ def test_hostile_and_broken_links_are_refused_with_a_message_and_run_nothing(pag
     dialogs = []
     page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
     open_at(page, HOSTILE[0][0])
-    for i, (fragment, words) in enumerate(HOSTILE):
+    for i, (fragment, needle) in enumerate(HOSTILE):
         if i:
+            before = opened(page)
             page.evaluate("(h) => { location.hash = h; }", fragment)
+            page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before)
+        settled(page)
         message = page.locator("#share-message")
         expect(message).to_be_visible()
-        if words:
-            expect(message).to_contain_text(words, timeout=10_000)
-        page.wait_for_timeout(150)
+        if needle:
+            expect(message).to_contain_text(needle)
         assert page.evaluate("() => window.__pwned") is None, fragment[:60]
         assert page.evaluate("() => ({}).polluted === undefined && Object.prototype.polluted === undefined")
         assert page.locator("img[src='x'], main script").count() == 0
@@ -149,14 +167,14 @@ def test_a_format_0_link_opens_migrated(page: Page, watch):
     expect(page.locator("#share-message")).to_contain_text("an older link (format 0) was brought up to date")
     page.wait_for_function("() => document.getElementById('pka-input').value === '4.76'")
     assert page.input_value("#total-input") == "0.01" and page.input_value("#ph-input") == "5"
-    page.wait_for_function("() => location.hash.startsWith('#s=1.')")
+    page.wait_for_function("() => location.hash.startsWith('#s=2.')")
     assert state_of(page.evaluate("location.hash"))["distribution"] == {
         "acid": "custom", "pKa": [4.76], "charge": 0, "total_M": 0.01, "pH": 5}
 
 
 def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     open_at(page, "preset=co2-well")
-    water_ph(page, api.solve(PRESETS[1]["state"]["water"]["scenario"])["pH"])
+    water_ph(page, api.solve(core_scenario(PRESETS[1]["state"]["water"]["scenario"]))["pH"])
     # Copy link: the clipboard (granted here) or the selected-text fallback; either says so.
     context.grant_permissions(["clipboard-read", "clipboard-write"])
     page.click("#share-copy")
@@ -170,7 +188,7 @@ def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     info.value.save_as(saved)
     state = json.loads(saved.read_text())
     # The water section writes an empty list where the example leaves a key out.
-    assert {k: v for k, v in state["water"]["scenario"].items() if v != []} == PRESETS[1]["state"]["water"]["scenario"]
+    assert as_words({k: v for k, v in state["water"]["scenario"].items() if v != []}) == PRESETS[1]["state"]["water"]["scenario"]
     page.fill("#ph-input", "3.3")
     page.set_input_files("#load-json", str(saved))
     expect(page.locator("#share-message")).to_contain_text('Opened the scenario from the file "scenario.json"')
@@ -198,15 +216,18 @@ def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     assert report.locator("table").count() >= 3
     assert page.locator("#report [id]").count() == 0  # copies carry no duplicate ids
 
-    # Exports: a table as CSV with the full-precision numbers, and a plot as a PNG.
+    # Exports: a table as CSV with the numbers in its header's units, and a plot as a PNG.
+    # The menus fill when the details open (an asynchronous toggle): wait for the option.
     page.click(".share-exports summary")
-    page.select_option("#export-table-select", label=page.eval_on_selector(
-        "#export-table-select", "s => [...s.options].find(o => o.text.startsWith('Species at')).text"))
+    option = page.locator("#export-table-select option", has_text="Species at")
+    expect(option).to_have_count(1)
+    page.select_option("#export-table-select", label=option.inner_text())
     with page.expect_download() as info:
         page.click("#export-table-csv")
     csv_text = Path(info.value.path()).read_text()
-    first_value = page.get_attribute("#water-species-table tbody td[data-value]:not([data-value=''])", "data-value")
+    first_value = page.get_attribute("#water-species-table tbody td[data-export]:not([data-export=''])", "data-export")
     assert first_value in csv_text
+    expect(page.locator("#export-plot-select option").first).to_be_attached()
     with page.expect_download() as info:
         page.click("#export-plot-png")
     assert Path(info.value.path()).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
