@@ -1,10 +1,13 @@
 // The page's side of the worker protocol: starts worker.js and turns its messages into Promises.
 //
-// Protocol version 1 (every message carries v: 1):
+// Every message carries v: PROTOCOL_VERSION (below; worker.js imports it from here, so the
+// number is written in this one place):
 //   page -> worker   {v, id, method, params}
 //   worker -> page   {v, id, ok: true, result} | {v, id, ok: false, error: {type, message, field}}
 //   worker -> page   {v, type: "progress", stage, fraction, text} while booting,
-//                    then exactly one {v, type: "ready", versions} or {v, type: "fatal", message}
+//                    then exactly one {v, type: "ready", versions, boot} or {v, type: "fatal", message}
+//                    (boot: {snapshot: whether Python started from the build's memory snapshot,
+//                    origin: the worker's performance.timeOrigin, ms: {step: ms since then}})
 
 export const PROTOCOL_VERSION = 1;
 
@@ -28,16 +31,22 @@ export class CoreError extends Error {
  * @param {(p: {stage: string, fraction: number, text: string}) => void} [options.onProgress]
  *        called for each boot step
  * @param {number} [options.bootTimeoutMs]  give up if "ready" has not come by then [ms]
- * @returns {{ready: Promise<object>, call: (method: string, params?: object) => Promise<any>,
- *            terminate: () => void}}  `ready` resolves with the versions Python reports
+ * @returns {{ready: Promise<object>, boot: Promise<object>,
+ *            call: (method: string, params?: object) => Promise<any>, terminate: () => void}}
+ *          `ready` resolves with the versions Python reports, `boot` with how it started
  */
 export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = {}) {
+  performance.mark("py:worker-start");
   const worker = new Worker(new URL("./worker.js", import.meta.url), { type: "module" });
   const pending = new Map();
   let nextId = 1;
   let settleBoot;
+  let settleInfo;
   const ready = new Promise((resolve, reject) => {
     settleBoot = { resolve, reject };
+  });
+  const boot = new Promise((resolve) => {
+    settleInfo = resolve;
   });
   const fail = (message) => {
     settleBoot.reject(new Error(message));
@@ -64,6 +73,7 @@ export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = 
     } else if (msg.type === "ready") {
       clearTimeout(timer);
       settleBoot.resolve(msg.versions || {});
+      settleInfo(msg.boot || {});
     } else if (msg.type === "fatal") {
       clearTimeout(timer);
       fail(msg.message);
@@ -84,13 +94,19 @@ export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = 
    */
   function call(method, params = {}) {
     const id = nextId++;
+    const start = performance.now();
+    const measured = (settle) => (value) => {
+      // One entry per call (performance.getEntriesByName("py:<method>")), for benchmarks.
+      performance.measure(`py:${method}`, { start });
+      settle(value);
+    };
     return new Promise((resolve, reject) => {
-      pending.set(id, { resolve, reject });
+      pending.set(id, { resolve: measured(resolve), reject: measured(reject) });
       worker.postMessage({ v: PROTOCOL_VERSION, id, method, params });
     });
   }
 
-  return { ready, call, terminate: () => worker.terminate() };
+  return { ready, boot, call, terminate: () => worker.terminate() };
 }
 
 let shared = null;
@@ -101,8 +117,8 @@ const progressListeners = new Set();
  * The page's one Python worker, started on first use. `boot.js` calls this before BokehJS
  * is parsed so that Pyodide starts loading at once; main.js gets the same instance.
  *
- * @returns {{ready: Promise<object>, call: (method: string, params?: object) => Promise<any>,
- *            terminate: () => void}}
+ * @returns {{ready: Promise<object>, boot: Promise<object>,
+ *            call: (method: string, params?: object) => Promise<any>, terminate: () => void}}
  */
 export function sharedPython() {
   if (!shared) {

@@ -1,15 +1,30 @@
-// Module worker: boots Pyodide from ./vendor/pyodide/, installs the acidscape wheel named in
-// manifest.json and answers requests with acidscape.boundary.api.handle (JSON strings in and out, so no
-// Python proxies cross over). Protocol: see py.js.
+// Module worker: boots Pyodide from ./vendor/pyodide/ and answers requests with
+// acidscape.boundary.api.handle (JSON strings in and out, so no Python proxies cross over).
+// Protocol: see py.js (the one place its version is written).
+//
+// Boot. manifest.json names the core wheel and, when the build made one, a memory snapshot:
+// the Python heap saved at build time after the whole core was imported and its data loaded
+// (build_scripts/snapshot.mjs). Booting from it skips CPython's start-up and the imports.
+// The snapshot is used only if it was made by this Pyodide version, Pyodide accepts it (it
+// checks its own build id), and the key stored inside it equals the manifest's (Pyodide
+// version + sha256 of the wheel). Otherwise, or if it fails to load, the worker boots Pyodide
+// the ordinary way and installs the wheel. Files of Pyodide's file system do not survive a
+// snapshot, so the wheel is unpacked again after a snapshot boot: a module imported lazily or
+// a data file read later is found as usual.
 
-import { loadPyodide } from "./vendor/pyodide/pyodide.mjs";
+import { loadPyodide, version as pyodideVersion } from "./vendor/pyodide/pyodide.mjs";
+import { PROTOCOL_VERSION } from "./py.js";
 
-const PROTOCOL_VERSION = 1;
 // loadPyodide hangs rather than rejects when the wasm cannot be instantiated: always time out.
 const BOOT_TIMEOUT_MS = 90000;
+const INDEX_URL = new URL("./vendor/pyodide/", import.meta.url).href;
 
 const post = (message) => self.postMessage({ v: PROTOCOL_VERSION, ...message });
 const progress = (stage, fraction, text) => post({ type: "progress", stage, fraction, text });
+const timings = {}; // ms since the worker started, per boot step (reported with "ready")
+const mark = (name) => {
+  timings[name] = Math.round(performance.now());
+};
 
 async function fetchOk(url, what) {
   const response = await fetch(url);
@@ -17,32 +32,132 @@ async function fetchOk(url, what) {
   return response;
 }
 
-async function boot() {
-  progress("runtime", 0.15, "Loading the Python runtime (about 13 MB the first time)…");
-  // The runtime, the manifest and the wheel load side by side.
-  const runtime = loadPyodide({
-    indexURL: new URL("./vendor/pyodide/", import.meta.url).href,
-    stdout: () => {},
-    stderr: (line) => console.warn("[python]", line),
+/** Read a stream of byte chunks into one array of the expected size. */
+async function readExactly(stream, size, what) {
+  const out = new Uint8Array(size);
+  let at = 0;
+  const reader = stream.getReader();
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    if (at + value.length > size) throw new Error(`${what} is larger than the manifest says (${size} bytes)`);
+    out.set(value, at);
+    at += value.length;
+  }
+  if (at !== size) throw new Error(`${what} has ${at} bytes, the manifest says ${size}`);
+  return out;
+}
+
+/** The snapshot's bytes (inflated as they arrive when the build gzipped them). */
+async function fetchSnapshot(entry) {
+  const response = await fetchOk(new URL(entry.file, import.meta.url), "the Python snapshot");
+  let body = response.body;
+  if (entry.encoding === "gzip") {
+    // A host that serves the file with Content-Encoding: gzip has inflated it already: look at
+    // the first bytes for gzip's magic number before inflating.
+    const reader = body.getReader();
+    const first = await reader.read();
+    const gzip = !first.done && first.value[0] === 0x1f && first.value[1] === 0x8b;
+    body = new ReadableStream({
+      start(controller) {
+        if (!first.done) controller.enqueue(first.value);
+      },
+      async pull(controller) {
+        const { done, value } = await reader.read();
+        if (done) controller.close();
+        else controller.enqueue(value);
+      },
+    });
+    if (gzip) body = body.pipeThrough(new DecompressionStream("gzip"));
+  }
+  const bytes = await readExactly(body, entry.bytes, "the Python snapshot");
+  mark("snapshot_fetched");
+  return bytes;
+}
+
+const pyodideOptions = {
+  indexURL: INDEX_URL,
+  stdout: () => {},
+  stderr: (line) => console.warn("[python]", line),
+};
+
+class NoSnapshot extends Error {}
+
+/**
+ * A Pyodide restored from the build's snapshot, or null (after a console warning) when there
+ * is none, it belongs to another Pyodide or another core, or it fails to load. Pyodide's own
+ * files (runtime module, wasm, standard library) start loading at once, beside the manifest
+ * and the snapshot.
+ */
+async function bootFromSnapshot(manifestPromise) {
+  const snapshot = manifestPromise.then((manifest) => {
+    const entry = manifest.snapshot;
+    if (!entry) throw new NoSnapshot("this build has none");
+    if (!entry.key || JSON.parse(entry.key).pyodide !== pyodideVersion) {
+      throw new NoSnapshot(`it was made for another Pyodide (this is ${pyodideVersion})`);
+    }
+    return fetchSnapshot(entry);
   });
-  runtime.catch(() => {}); // its failure is reported through the await below, not as unhandled
-  const manifest = await (await fetchOk(new URL("./manifest.json", import.meta.url), "manifest.json")).json();
-  if (!manifest.wheel) throw new Error("manifest.json names no wheel");
-  const wheelUrl = new URL(manifest.wheel, import.meta.url);
-  const wheel = fetchOk(wheelUrl, "the acidscape package").then((r) => r.arrayBuffer());
-  const pyodide = await runtime;
+  try {
+    const pyodide = await loadPyodide({ ...pyodideOptions, _loadSnapshot: snapshot });
+    const stored = pyodide.globals.get("_acidscape_snapshot");
+    if (stored !== (await manifestPromise).snapshot.key) {
+      throw new NoSnapshot("it was made from another build of the core");
+    }
+    return pyodide;
+  } catch (error) {
+    const why = String(error?.message || error);
+    if (error instanceof NoSnapshot) console.info(`Python starts without a snapshot: ${why}`);
+    else console.warn(`The Python snapshot could not be loaded (${why}); starting Python the ordinary way.`);
+    return null;
+  }
+}
+
+async function boot() {
+  progress("runtime", 0.15, "Loading the Python runtime (about 20 MB the first time)…");
+  const manifestPromise = fetchOk(new URL("./manifest.json", import.meta.url), "manifest.json")
+    .then((response) => response.json())
+    .then((manifest) => {
+      mark("manifest");
+      if (!manifest.wheel) throw new Error("manifest.json names no wheel");
+      return manifest;
+    });
+  const wheel = manifestPromise
+    .then((manifest) => fetchOk(new URL(manifest.wheel, import.meta.url), "the acidscape package"))
+    .then((response) => response.arrayBuffer());
+  wheel.catch(() => {}); // its failure is reported where it is awaited
+
+  let pyodide = await bootFromSnapshot(manifestPromise);
+  const manifest = await manifestPromise; // a failed manifest fails the boot here
+  const fromSnapshot = Boolean(pyodide);
+  if (!pyodide) {
+    progress("runtime", 0.5, "Starting Python…");
+    pyodide = await loadPyodide(pyodideOptions);
+  }
+  mark("runtime");
 
   progress("package", 0.85, "Installing the Acidscape core…");
+  const wheelBytes = await wheel;
+  mark("wheel_fetched");
   const sitePackages = pyodide.runPython("import site; site.getsitepackages()[0]");
-  pyodide.unpackArchive(await wheel, "wheel", { extractDir: sitePackages });
+  pyodide.unpackArchive(wheelBytes, "wheel", { extractDir: sitePackages });
+  // Defined in the image by build_scripts/snapshot.mjs: fresh directory listings and random seed.
+  if (fromSnapshot) {
+    const afterRestore = pyodide.globals.get("_acidscape_after_restore");
+    afterRestore();
+    afterRestore.destroy();
+  }
+  mark("package");
 
   progress("import", 0.95, "Importing the Acidscape core…");
   const api = pyodide.pyimport("acidscape.boundary.api");
   const handle = api.handle; // kept for the worker's lifetime, like the module proxy
   const version = JSON.parse(handle("version", "{}"));
+  mark("ready");
   return {
     handle,
-    versions: { ...(manifest.versions || {}), ...(version.ok ? version.result : {}) },
+    versions: { ...(manifest.versions || {}), ...(version.ok ? version.result : {}), protocol: PROTOCOL_VERSION },
+    boot: { snapshot: fromSnapshot, origin: performance.timeOrigin, ms: timings },
   };
 }
 
@@ -56,7 +171,7 @@ function withTimeout(promise, ms) {
 
 const ready = withTimeout(boot(), BOOT_TIMEOUT_MS).then(
   (core) => {
-    post({ type: "ready", versions: core.versions });
+    post({ type: "ready", versions: core.versions, boot: core.boot });
     return core;
   },
   (error) => {
