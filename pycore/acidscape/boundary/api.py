@@ -312,6 +312,14 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     result["buffer_intensity_basis"] = "closed water at its ionic strength, per unit of meter pH"
     if inferred is not None:
         result["inferred_from_measurements"] = inferred
+    # calcium carbonate indices: pHs, LSI, RSI, CCPP (Standard Methods 2330); null without Ca or carbonate
+    from ..operations.indices import calcium_carbonate
+
+    result["calcium_carbonate"], cc_warnings = calcium_carbonate(
+        wm, sol, pH_given=parsed.pH, allow_solids=parsed.precipitate,
+        open_CO2_partial_pressure_atm=parsed.ccpp_open_CO2_partial_pressure_atm,
+        temperatures_C=parsed.ccpp_temperatures_C, uncertainty=parsed.uncertainty)
+    warnings.extend(cc_warnings)
     return result
 
 

@@ -13,6 +13,10 @@ A scenario is a dict with these keys (all optional except as noted):
 ``gas``                  ``{"CO2_partial_pressure_atm": p}``: open to CO2 at that partial pressure
 ``complexes``            true (default) or false: ion pairs and metal complexes of the database on or off
 ``precipitate``          list of solid ids (``"calcite"``...) allowed to precipitate or dissolve to equilibrium
+``ccpp_open_CO2_partial_pressure_atm``  also report the CCPP of the water open to CO2 at this partial pressure [atm]
+``ccpp_temperatures_C``  list of up to 8 further temperatures [°C] for the calcium carbonate indices (heater, boiling)
+``uncertainty``          true: also report how the calcium carbonate indices move with the usual measurement
+                         uncertainties and the spread of the constants (costs about 30 more solves)
 
 Ion ids are words (``"calcium"``, ``"lead"``, ``"iron(III)"``); the older formula spellings
 (``"Ca+2"``) are accepted as aliases. An ion that is the base of an acid-base system
@@ -50,6 +54,8 @@ MAX_TOTAL_M = 5.0
 KNOWN_KEYS = {
     "temperature_C", "activity", "ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm",
     "pH", "systems", "ions", "gas", "measured", "name", "note", "version", "complexes", "precipitate",
+    # calcium carbonate indices (acidscape.operations.indices)
+    "ccpp_open_CO2_partial_pressure_atm", "ccpp_temperatures_C", "uncertainty",
 }
 
 
@@ -96,6 +102,9 @@ class Parsed:
     warnings: list[str] = field(default_factory=list)
     complexes: bool = True
     precipitate: tuple[str, ...] = ()
+    ccpp_open_CO2_partial_pressure_atm: float | None = None
+    ccpp_temperatures_C: tuple[float, ...] = ()
+    uncertainty: bool = False
 
 
 def _num(value, field_name: str, *, lo=None, hi=None) -> float:
@@ -315,7 +324,33 @@ def read_scenario(scenario: dict) -> Parsed:
     return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
                   components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
                   CO2_partial_pressure_atm=pCO2, warnings=warnings, complexes=complexes,
-                  precipitate=_read_precipitate(scenario))
+                  precipitate=_read_precipitate(scenario), **_read_indices_options(scenario))
+
+
+def _read_indices_options(scenario: dict) -> dict:
+    """The options of the calcium carbonate indices (see acidscape.operations.indices)."""
+    out: dict = {}
+    p = scenario.get("ccpp_open_CO2_partial_pressure_atm")
+    if p is not None:
+        p = _num(p, "ccpp_open_CO2_partial_pressure_atm", lo=0.0, hi=10.0)
+        if p <= 0.0:
+            raise InputError("ccpp_open_CO2_partial_pressure_atm must be above 0 atm (air holds about 0.00042)",
+                             field="ccpp_open_CO2_partial_pressure_atm")
+        out["ccpp_open_CO2_partial_pressure_atm"] = p
+    temps = scenario.get("ccpp_temperatures_C")
+    if temps is not None:
+        if not isinstance(temps, list):
+            temps = [temps]
+        if len(temps) > 8:
+            raise InputError(f"ccpp_temperatures_C lists {len(temps)} temperatures; at most 8 are allowed",
+                             field="ccpp_temperatures_C")
+        out["ccpp_temperatures_C"] = tuple(_num(t, f"ccpp_temperatures_C[{k}]", lo=0.0, hi=100.0)
+                                           for k, t in enumerate(temps))
+    unc = scenario.get("uncertainty", False)
+    if not isinstance(unc, bool):
+        raise InputError(f"uncertainty must be true or false, got {unc!r}", field="uncertainty")
+    out["uncertainty"] = unc
+    return out
 
 
 def _read_precipitate(scenario: dict) -> tuple[str, ...]:
