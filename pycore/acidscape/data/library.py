@@ -1225,11 +1225,18 @@ def solids() -> tuple[Solid, ...]:
     return _solids()
 
 
-def _unknown(kind: str, key, known) -> UnknownIdError:
+def _unknown(kind: str, key, known, aliases=None) -> UnknownIdError:
+    """UnknownIdError listing ``known`` ids; close matches are sought among ids and aliases
+    (an alias suggests the id it stands for)."""
     known = list(known)
-    by_lower = {k.lower(): k for k in known}
-    close = difflib.get_close_matches(str(key).lower(), list(by_lower), n=3, cutoff=0.6)
-    hint = f"; did you mean {', '.join(repr(by_lower[c]) for c in close)}?" if close else ""
+    target = dict(aliases or {})
+    target.update({k: k for k in known})
+    by_lower: dict[str, str] = {}
+    for k in target:
+        by_lower.setdefault(k.lower(), k)
+    close = difflib.get_close_matches(str(key).lower(), list(by_lower), n=5, cutoff=0.6)
+    ids = list(dict.fromkeys(target[by_lower[c]] for c in close))[:3]
+    hint = f"; did you mean {', '.join(repr(i) for i in ids)}?" if ids else ""
     return UnknownIdError(f"unknown {kind} id {key!r}{hint}; known: {', '.join(known)}", field=None)
 
 
@@ -1290,8 +1297,7 @@ def get_ion(id: str) -> StrongIon:
     table = _ions()
     if isinstance(id, str) and id in table:
         return table[id]
-    known = list(table) + list(table._aliases)
-    raise _unknown("ion", id, known)
+    raise _unknown("ion", id, list(table), table._aliases)
 
 
 def get_complex(id: str) -> Complex:
