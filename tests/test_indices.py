@@ -417,3 +417,20 @@ def test_uncertainty_ranges():
     lo, hi = rows["alkalinity"]["LSI"]
     assert lo < cc["LSI"] < hi
     assert "uncertainty" not in solve(scenario(25.0, Ca, C, K, Cl))["calcium_carbonate"]
+
+
+def test_a_ccpp_that_does_not_converge_leaves_the_indices(monkeypatch):
+    """If the CCPP solve fails, the water's result and its pHs/LSI/RSI are still returned,
+    with the CCPP null and a note saying why."""
+    from acidscape.errors import ConvergenceError
+    from acidscape.operations import indices
+
+    def fail(*args, **kwargs):
+        raise ConvergenceError("the equilibrium search did not converge", field=None)
+
+    monkeypatch.setattr(indices, "_ccpp", fail)
+    out = solve(scenario(25.0, *HARD, ccpp_temperatures_C=[60]))
+    cc = out["calcium_carbonate"]
+    assert cc["LSI"] is not None and cc["CCPP_mg_per_L_as_CaCO3"] is None and cc["pH_after_CCPP"] is None
+    assert any("CCPP not computed" in n for n in cc["notes"])
+    assert any("CCPP not computed" in n for n in cc["at_temperatures"][1]["notes"])

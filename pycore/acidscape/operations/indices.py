@@ -73,7 +73,7 @@ from dataclasses import dataclass
 
 from ..constants import M_CaCO3, T0
 from ..data import library
-from ..errors import AcidscapeError, UnknownIdError
+from ..errors import AcidscapeError, ConvergenceError, UnknownIdError
 from ..science import purewater, temperature
 from ..science.tableau import IonInput, WaterModel
 
@@ -355,13 +355,13 @@ def _evaluate(rec: _Recipe, wm: WaterModel, sol, open_pCO2: float | None, *, cla
     """Every index of one closed neutral water."""
     out = _indices(wm, sol)
     out = {"temperature_C": rec.T - T0, "pH": sol.pH, **out}
-    ccpp, pH_after = _ccpp(rec, wm, sol)
-    out["CCPP_mg_per_L_as_CaCO3"] = _mg(ccpp)
-    out["pH_after_CCPP"] = pH_after
-    if open_pCO2 is not None:
-        ccpp_o, pH_o = _ccpp(rec, wm, sol, open_pCO2)
-        out["CCPP_open_mg_per_L_as_CaCO3"] = _mg(ccpp_o)
-        out["pH_after_CCPP_open"] = pH_o
+    for suffix, p in (("", None), ("_open", open_pCO2)) if open_pCO2 is not None else (("", None),):
+        try:
+            ccpp, pH_after = _ccpp(rec, wm, sol, p)
+            out[f"CCPP{suffix}_mg_per_L_as_CaCO3"], out[f"pH_after_CCPP{suffix}"] = _mg(ccpp), pH_after
+        except (ConvergenceError, ValueError) as exc:  # the indices stay; the water's solve is not lost
+            out[f"CCPP{suffix}_mg_per_L_as_CaCO3"] = out[f"pH_after_CCPP{suffix}"] = None
+            out.setdefault("errors", []).append(f"CCPP{suffix.replace('_', ' ')} not computed: {exc}")
     out["tendency"] = _tendency(out["LSI"])
     if classic:
         out["classic"] = _classic(wm, sol, _total_alkalinity(wm, _dissolved(wm, sol)))
@@ -434,25 +434,32 @@ def _uncertainty(rec: _Recipe, wm: WaterModel, sol, base: dict, open_pCO2: float
     for name, what, recs, pHs in _perturbations(rec, wm, sol):
         row = {"input": name, "perturbation": what}
         vals = []
-        for r, pH in zip(recs, pHs):
-            r2, wm2, sol2 = _at_pH(r, pH, sol.state)
-            vals.append(_evaluate(r2, wm2, sol2, open_pCO2, classic=False))
+        try:
+            for r, pH in zip(recs, pHs):
+                r2, wm2, sol2 = _at_pH(r, pH, sol.state)
+                vals.append(_evaluate(r2, wm2, sol2, open_pCO2, classic=False))
+        except ConvergenceError as exc:
+            row["error"] = f"not computed: {exc}"
+            rows.append(row)
+            continue
         for key, _ in _RANGE_KEYS:
-            if key in base and base[key] is not None:
+            if base.get(key) is not None and vals[0].get(key) is not None and vals[1].get(key) is not None:
                 row[key] = [vals[0][key], vals[1][key]]
         rows.append(row)
     out = {"inputs": rows}
     for key, rkey in _RANGE_KEYS:
-        if key not in base or base[key] is None:
+        if base.get(key) is None or not any(key in row for row in rows):
             continue
         up = down = 0.0
         for row in rows:
+            if key not in row:
+                continue
             d = [v - base[key] for v in row[key]]
             up += max(0.0, *d) ** 2
             down += max(0.0, *[-x for x in d]) ** 2
         out[rkey] = [base[key] - math.sqrt(down), base[key] + math.sqrt(up)]
-    out["dominant"] = {key: max(rows, key=lambda r: abs(r[key][1] - r[key][0]))["input"]
-                       for key, _ in _RANGE_KEYS if rows and key in rows[0]}
+    out["dominant"] = {key: max((r for r in rows if key in r), key=lambda r: abs(r[key][1] - r[key][0]))["input"]
+                       for key, rkey in _RANGE_KEYS if rkey in out}
     out["method"] = ("one input at a time moved by its uncertainty and the water solved again at the measured "
                      "pH (inert ion rebalanced); the ranges add the deviations in quadrature (independent errors); "
                      "'dominant' names the input that moves each number most")
@@ -515,8 +522,18 @@ def calcium_carbonate(wm: WaterModel, sol, *, pH_given: float | None = None, all
             missing = "carbonate (alkalinity or DIC)" if has_ca else "calcium"
             warnings.append(f"calcium carbonate indices (LSI, RSI, CCPP) not computed: the water has no {missing}")
         return None, warnings
-    if CALCITE not in wm.solid_index:
+    if CALCITE not in wm.solid_index:  # the database always holds calcite; a custom tableau may not
         return None, warnings
+    try:
+        return _calcium_carbonate(wm, sol, pH_given, allow_solids, open_CO2_partial_pressure_atm, temperatures_C,
+                                  uncertainty), warnings
+    except ConvergenceError as exc:  # the water's own answer is not lost for want of an index
+        warnings.append(f"calcium carbonate indices not computed: {exc}")
+        return None, warnings
+
+
+def _calcium_carbonate(wm, sol, pH_given, allow_solids, open_CO2_partial_pressure_atm, temperatures_C,
+                       uncertainty) -> dict:
     rec = _recipe(wm, sol, allow_solids)
     notes: list[str] = []
     if pH_given is not None or wm.fixed_species:
@@ -546,6 +563,7 @@ def calcium_carbonate(wm: WaterModel, sol, *, pH_given: float | None = None, all
                                     if base["classic"] and base["LSI"] is not None else None),
         "CCPP_method": METHOD_CCPP,
     }
+    notes.extend(base.pop("errors", []))
     if base["classic"] is None:
         notes.append("classic index not computed: the total alkalinity leaves no bicarbonate at this pH")
     if open_CO2_partial_pressure_atm is not None:
@@ -567,9 +585,14 @@ def calcium_carbonate(wm: WaterModel, sol, *, pH_given: float | None = None, all
         rec_T, tnotes = rec.at_temperature(t_C + T0)
         wm_T = rec_T.build()
         notes_T = tnotes + wm_T.notes
-        sol_T = wm_T.solve(allow_solids=rec_T.allow, guess=sol_b.state)
+        try:
+            sol_T = wm_T.solve(allow_solids=rec_T.allow, guess=sol_b.state)
+        except ConvergenceError as exc:
+            rows.append({"temperature_C": t_C, "pHs": None, "LSI": None, "RSI": None,
+                         "CCPP_mg_per_L_as_CaCO3": None, "notes": [f"not computed: {exc}"]})
+            continue
         row = _evaluate(rec_T, wm_T, sol_T, open_CO2_partial_pressure_atm)
-        notes_T += sol_T.warnings
+        notes_T += sol_T.warnings + row.pop("errors", [])
         if t_C > 90.0:
             notes_T.append("the Plummer & Busenberg (1982) fits are measured to 90 °C; extrapolated")
         row = row_of(row)
@@ -579,4 +602,4 @@ def calcium_carbonate(wm: WaterModel, sol, *, pH_given: float | None = None, all
     if uncertainty:
         out["uncertainty"] = _uncertainty(rec, wm_b, sol_b, base, open_CO2_partial_pressure_atm)
     out["notes"] = notes
-    return out, warnings
+    return out
