@@ -365,6 +365,8 @@ def titrate(params: dict) -> dict:
 
     ``params``: ``scenario`` (object), ``titrant`` (id), optional ``titrant_M`` [mol/L]
     (default 0.1), ``sample_mL`` [mL] (default 100), ``to_pH`` [-], ``points`` (default 400).
+    Titrant ``"EDTA"`` or a ``fixed_pH`` gives the hardness titration at a buffered pH instead
+    (:func:`acidscape.operations.hardness.edta_titration`; ``fixed_pH`` default 10, ``to_mL``).
 
     Examples
     --------
@@ -380,6 +382,8 @@ def titrate(params: dict) -> dict:
     titrant = params.get("titrant")
     if not isinstance(titrant, str):
         raise InputError(f"titrant must be a chemical id such as 'NaOH', got {titrant!r}", field="titrant")
+    if titrant.strip().upper() == "EDTA" or params.get("fixed_pH") is not None:
+        return _edta_titration(params, titrant)
     to_pH = params.get("to_pH")
     return titration_curve(
         _scenario_param(params), titrant,
@@ -410,6 +414,129 @@ def dose(params: dict) -> dict:
                       flow=opt["flow"], flow_unit=params.get("flow_unit"))
 
 
+def _parsed_water(params: dict):
+    """The ``scenario`` of ``params`` read (a measured pH and alkalinity closed first)."""
+    from .scenario import read_scenario
+
+    scenario = _scenario_param(params)
+    if scenario.get("measured") is not None:
+        from ..operations.closure import resolve_measured
+
+        scenario, _ = resolve_measured(scenario)
+    return read_scenario(scenario)
+
+
+def _edta_titration(params: dict, titrant: str) -> dict:
+    """Hardness by EDTA at a fixed pH (:func:`acidscape.operations.hardness.edta_titration`).
+
+    ``params``: ``scenario``, ``titrant`` ("EDTA"), ``titrant_M`` [mol/L] (default 0.01),
+    ``sample_mL`` [mL] (default 50), ``fixed_pH`` (default 10), ``points``, ``to_mL`` [mL].
+    """
+    from ..operations import hardness
+
+    if titrant.strip().upper() != "EDTA":
+        raise InputError(f"a titration at a fixed pH is an EDTA (complexometric) titration; titrant must be "
+                         f"'EDTA', got {titrant!r}", field="titrant")
+    to_mL = params.get("to_mL")
+    out = hardness.edta_titration(
+        _parsed_water(params),
+        titrant_M=_number(params, "titrant_M", 0.01, lo=1e-9, hi=20.0),
+        sample_mL=_number(params, "sample_mL", 50.0, lo=1e-6, hi=1e6),
+        fixed_pH=_number(params, "fixed_pH", hardness.STANDARD_PH, lo=0.0, hi=14.0),
+        points=_integer(params, "points", hardness.DEFAULT_POINTS, lo=3, hi=MAX_POINTS),
+        to_mL=None if to_mL is None else _number(params, "to_mL", lo=1e-9, hi=1e6),
+    )
+    if params.get("fixed_pH") is None:
+        out["warnings"].append(f"pH {hardness.STANDARD_PH:g} assumed: the standard method's buffer (common practice)")
+    if params.get("to_pH") is not None:
+        out["warnings"].append("to_pH does not apply at a fixed pH and was ignored")
+    return out
+
+
+def conditional_constants(params: dict) -> dict:
+    """Conditional metal-EDTA formation constants against pH
+    (:func:`acidscape.operations.hardness.conditional_constants`).
+
+    ``params``: ``scenario`` (optional, default pure water at I = 0.1 mol/L), ``metals`` (ion ids,
+    default calcium and magnesium), ``pH_from``, ``pH_to`` [-], ``points``.
+    """
+    from ..operations import hardness
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    if params.get("scenario") is None:
+        params = dict(params, scenario={"ionic_strength_M": 0.1})
+    metals = params.get("metals", list(hardness.HARDNESS_METALS))
+    if not isinstance(metals, list) or not metals or not all(isinstance(m, str) for m in metals):
+        raise InputError("metals must be a list of ion ids such as [\"calcium\", \"magnesium\"]", field="metals")
+    return hardness.conditional_constants(
+        _parsed_water(params), metals,
+        pH_from=_number(params, "pH_from", 6.0, lo=0.0, hi=14.0),
+        pH_to=_number(params, "pH_to", 13.0, lo=0.0, hi=14.0),
+        points=_integer(params, "points", 71, lo=1, hi=MAX_POINTS),
+    )
+
+
+#: Default grid of each solubility axis and the unit of its ends.
+SOLUBILITY_AXES = {"pH": (6.5, 10.5, None), "DIC": (1.0, 100.0, "mg/L as C"),
+                   "orthophosphate": (0.0, 3.0, "mg/L")}
+
+
+def solubility(params: dict) -> dict:
+    """Dissolved lead or copper against pH, DIC or orthophosphate
+    (:func:`acidscape.operations.solubility.solubility_curve`).
+
+    ``params``: ``scenario``, ``metal`` ("lead" | "copper"), ``axis`` ("pH" | "DIC" |
+    "orthophosphate"), ``from``, ``to`` (pH, or in ``unit``: default "mg/L as C" for DIC and
+    "mg/L" (as PO4) for orthophosphate), ``points`` (default 81), ``fixed_pH`` (DIC and
+    orthophosphate axes; default the water's pH), ``solids`` (candidate solid ids).
+    Each point gains ``x``, the axis value in the axis unit.
+
+    Examples
+    --------
+    >>> out = solubility({"scenario": {"systems": [{"id": "carbonate", "total": 10, "unit": "mg/L as C"}]},
+    ...                   "metal": "lead", "axis": "pH", "from": 8, "to": 8, "points": 1})
+    >>> out["points"][0]["controlling_solid"]
+    'hydrocerussite'
+    """
+    from ..data import library
+    from ..operations import solubility as sol
+    from .units import from_molar, to_molar
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    metal = params.get("metal", "lead")
+    if not isinstance(metal, str) or metal not in sol.METALS:
+        raise InputError(f"metal must be one of {', '.join(sol.METALS)}, got {metal!r}", field="metal")
+    axis = params.get("axis", "pH")
+    if axis not in SOLUBILITY_AXES:
+        raise InputError(f"axis must be one of {', '.join(SOLUBILITY_AXES)}, got {axis!r}", field="axis")
+    lo, hi, unit = SOLUBILITY_AXES[axis]
+    start = _number(params, "from", lo, lo=0.0, hi=14.0 if axis == "pH" else 1e6)
+    stop = _number(params, "to", hi, lo=0.0, hi=14.0 if axis == "pH" else 1e6)
+    solids = params.get("solids")
+    if solids is not None:
+        if not isinstance(solids, list) or not all(isinstance(x, str) for x in solids):
+            raise InputError("solids must be a list of solid ids such as [\"cerussite\"]", field="solids")
+        solids = [library.get_solid(x).id for x in solids]
+    system = None
+    if unit is not None:
+        unit = params.get("unit", unit)
+        system = library.get_system(sol.AXIS_COMPONENT[axis])
+        start, stop = to_molar(start, unit, system, field="from"), to_molar(stop, unit, system, field="to")
+    fixed = params.get("fixed_pH")
+    out = sol.solubility_curve(
+        _parsed_water(params), metal, axis, start, stop,
+        _integer(params, "points", 81, lo=1, hi=sol.MAX_POINTS),
+        fixed_pH=None if fixed is None else _number(params, "fixed_pH", lo=0.0, hi=14.0),
+        solids=solids,
+    )
+    out["axis_unit"] = unit if unit is not None else "pH"
+    for p in out["points"]:
+        p["x"] = p["pH"] if system is None else from_molar(p["axis_M"], unit, system)
+    return out
+
+
 @functools.cache
 def _methods() -> dict[str, Callable[[dict], dict]]:
     """The methods :func:`handle` dispatches to, built once on the first request."""
@@ -425,6 +552,9 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "water": water,
         "titrate": titrate,
         "dose": dose,
+        # lead and copper solubility; conditional metal-EDTA constants (operations/solubility, hardness)
+        "solubility": solubility,
+        "conditional_constants": conditional_constants,
         # many samples from a CSV, streamed in chunks by the page (site/batch.js)
         "batch_chunk": batch_chunk,
         # buffer-intensity curve of a water for the page's treatment section

@@ -6,7 +6,11 @@ solve FILE|-          read a scenario (JSON) and print the water's equilibrium a
 systems               print the library of acid-base systems and strong ions as JSON
 solids                print the solids (solubility constants, temperature data, citations) as JSON
 titrate FILE --titrant ID [--titrant-M C] [--sample-mL V] [--to-pH X] [--points N]
-                      titration curve (points, equivalence points) as JSON
+                      titration curve (points, equivalence points) as JSON; with --titrant EDTA
+                      and --fixed-pH X (default 10): hardness titration (pM, end points, mg/L CaCO3)
+solubility FILE --metal lead|copper --axis pH|DIC|orthophosphate --from A --to B [--points N]
+           [--fixed-pH X] [--unit U] [--solids ID,ID]
+                      dissolved lead or copper in equilibrium with its least soluble solid, as JSON
 dose FILE --chemical ID --target-pH X [--strength-pct S] [--density-kg-per-L D]
      [--flow VALUE --flow-unit U]
                       dose to a target pH, product feed and the water after, as JSON
@@ -62,6 +66,22 @@ def _add_commands(sub) -> None:
     t.add_argument("--sample-mL", type=float, default=100.0, metavar="V", help="sample volume [mL]")
     t.add_argument("--to-pH", type=float, default=None, metavar="X", help="pH where the curve ends")
     t.add_argument("--points", type=int, default=400, metavar="N", help="number of points")
+    t.add_argument("--fixed-pH", type=float, default=None, metavar="X",
+                   help="buffered pH of an EDTA (hardness) titration (default 10 with --titrant EDTA)")
+    so = sub.add_parser("solubility", help="dissolved lead or copper in equilibrium with its least soluble solid")
+    so.add_argument("file", metavar="FILE")
+    so.add_argument("--metal", default="lead", choices=("lead", "copper"))
+    so.add_argument("--axis", default="pH", choices=("pH", "DIC", "orthophosphate"))
+    so.add_argument("--from", dest="start", type=float, default=None, metavar="A",
+                    help="first axis value (pH, or DIC / orthophosphate in --unit)")
+    so.add_argument("--to", dest="stop", type=float, default=None, metavar="B", help="last axis value")
+    so.add_argument("--points", type=int, default=81, metavar="N", help="number of points")
+    so.add_argument("--fixed-pH", type=float, default=None, metavar="X",
+                    help="pH of a DIC or orthophosphate axis (default: the water's pH)")
+    so.add_argument("--unit", default=None, metavar="U",
+                    help="unit of --from/--to on a DIC (default 'mg/L as C') or orthophosphate (default 'mg/L', "
+                    "as PO4) axis")
+    so.add_argument("--solids", default=None, metavar="ID,ID", help="candidate solids (default: all that hold the metal)")
     d = sub.add_parser("dose", help="dose of a chemical that brings a water to a target pH")
     d.add_argument("file", metavar="FILE")
     d.add_argument("--chemical", required=True, metavar="ID")
@@ -110,7 +130,19 @@ def run(argv: list[str] | None = None) -> int:
             from .api import titrate
 
             _print(titrate({"scenario": _read_json(args.file), "titrant": args.titrant, "titrant_M": args.titrant_M,
-                            "sample_mL": args.sample_mL, "to_pH": args.to_pH, "points": args.points}))
+                            "sample_mL": args.sample_mL, "to_pH": args.to_pH, "points": args.points,
+                            "fixed_pH": args.fixed_pH}))
+        elif args.command == "solubility":
+            from .api import solubility
+
+            params = {"scenario": _read_json(args.file), "metal": args.metal, "axis": args.axis,
+                      "points": args.points, "fixed_pH": args.fixed_pH}
+            for key, value in (("from", args.start), ("to", args.stop), ("unit", args.unit)):
+                if value is not None:
+                    params[key] = value
+            if args.solids:
+                params["solids"] = [x.strip() for x in args.solids.split(",") if x.strip()]
+            _print(solubility(params))
         elif args.command == "dose":
             from .api import dose
 
