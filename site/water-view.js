@@ -448,7 +448,7 @@ export class WaterView {
 
   renderSpecies({ unit, activityUnit, rows }, palette) {
     const words = {
-      "mg/L": "mg/L of the species", "ug/L": "µg/L of the species", "mg/L as basis": "mg/L, as named in the row",
+      "mg/L": "mg/L of the species", "ug/L": "µg/L of the species", "mg/L as basis": "mg/L as in the row",
     };
     byId(this.doc, "water-conc-unit").textContent = `(${words[unit] ?? unitLabel(unit)})`;
     this.speciesTable.dataset.exportName = `Species at equilibrium (${words[unit] ?? unitLabel(unit)})`;
@@ -471,8 +471,8 @@ export class WaterView {
       const conc = this.cell(sciNumber(r.shown, 4), r.shown, "concentration", "num", exportNumber(r.shown));
       if (r.as) {
         const as = this.doc.createElement("span");
-        as.className = "unit";
-        as.textContent = ` as ${prettyFormula(r.as)}`;
+        as.className = "unit as-basis";
+        as.textContent = `as ${prettyFormula(r.as)}`;
         conc.append(as);
         conc.dataset.as = r.as;
       }

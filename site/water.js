@@ -621,7 +621,8 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
         const what = r.id === "custom" ? `“${r.name}”` : (kind === "system" ? library.get(r.id)?.name : ionLibrary.get(r.id)?.name) ?? r.id;
         const amount = String(r.total).trim() ? `${String(r.total).slice(0, 20)} ${unitLabel(r.unit)}` : "no amount";
         notes.push(`water: ${kind} ${index + 1} (${what}, ${amount}) could not be used ` +
-          `(${problems[Object.keys(problems).find((k) => k.startsWith(`water-${kind}-${index}-`))].replace(/\.$/, "")}); it was left out`);
+          `(${problems[Object.keys(problems).find((k) => k.startsWith(`water-${kind}-${index}-`))]
+            .replace(/ \(empty rows are not allowed; remove the row instead\)/, "").replace(/\.$/, "")}); it was left out`);
         list.splice(index, 1);
       }
     }
