@@ -4,12 +4,19 @@ Usage:  .venv/bin/python build_scripts/bench.py [--repeats N] [--chromium PATH]
 
 - ``cpython_alpha_curve_1000pt_8protic_ms``: median over repeats of
   ``acidscape.science.speciation.alpha_curve`` for 1,000 pH values and an 8-step acid (pKa 1..15).
-- In headless Chromium (fresh browser context each run, service workers blocked so every file
-  comes over loopback, as on a first visit), alternating the two pages in the same run:
-  ``page_first_result_ms``: navigation to the first drawn result (body[data-ready]);
+- In headless Chromium, alternating the pages in the same run so all see the same load:
+  first visit (fresh browser context, service workers blocked, so every file, the Python
+  snapshot included, comes over loopback):
+  ``page_first_result_ms``: navigation to the page's body[data-ready] (the page shows what it
+  was opened with); ``page_first_drawn_ms``: navigation to the first drawn result of the
+  species section (body[data-drawn]);
   ``bare_pyodide_boot_ms``: navigation to the end of loadPyodide() on a page with nothing else
   (generated into a temp folder beside a copy of vendor/pyodide/);
-  ``first_result_over_bare_boot``: the ratio of the two medians.
+  ``first_result_over_bare_boot`` / ``first_drawn_over_bare_boot``: ratios of the medians;
+  ``preset_link_first_result_ms``: the same from ``#preset=<first example>``;
+  ``booted_from_snapshot`` and ``boot_stages_median_ms``: how the worker started and when
+  (page clock) it had the manifest, the snapshot, the runtime, the wheel and was ready.
+  Returning visit (``warm_*``): a new tab in a context whose service worker holds the site.
 - ``warm_recompute_ms``: median of 20 pH edits, from the keystroke to the redrawn result.
 - ``water6_recompute_ms``: median of 20 edits of a six-system water in the water section, from
   the input event to the drawn result (with the 120 ms debounce); ``water6_core_call_ms`` and
@@ -68,9 +75,35 @@ def serve(folder: Path):
     return server, f"http://{host}:{port}/"
 
 
+BOOT_INFO = """() => import('./py.js').then((m) => m.sharedPython().boot).then((b) => {
+  const offset = b.origin - performance.timeOrigin;
+  const start = performance.getEntriesByName('py:worker-start')[0];
+  const steps = Object.fromEntries(Object.entries(b.ms).map(([k, v]) => [k, v + offset]));
+  return {snapshot: b.snapshot, worker_created: start ? start.startTime : null, worker_started: offset, ...steps};
+})"""
+
+
+def first_preset(dist: Path) -> str | None:
+    try:
+        presets = json.loads((dist / "presets.json").read_text())["presets"]
+    except (OSError, KeyError, ValueError):
+        return None
+    return presets[0]["id"] if presets else None
+
+
+def _median(values: list[float]) -> float | None:
+    values = [v for v in values if v is not None]
+    return round(statistics.median(values), 1) if values else None
+
+
+def _spread(values: list[float]) -> list[float]:
+    return [round(v, 1) for v in values]
+
+
 def browser_timings(chromium: str, runs: int) -> dict:
     from playwright.sync_api import sync_playwright
 
+    preset = first_preset(DIST)
     with tempfile.TemporaryDirectory() as tmp:
         bare = Path(tmp)
         shutil.copytree(DIST / "vendor" / "pyodide", bare / "vendor" / "pyodide")
@@ -78,27 +111,63 @@ def browser_timings(chromium: str, runs: int) -> dict:
         (bare / "bare.js").write_text(BARE_JS)
         site_server, site_url = serve(DIST)
         bare_server, bare_url = serve(bare)
-        page_ms, bare_ms, recompute_ms = [], [], []
+        page_ms, drawn_ms, bare_ms, preset_ms, boots = [], [], [], [], []
+        warm_ms, warm_drawn_ms, warm_bare_ms, warm_boots = [], [], [], []
+        recompute_ms = []
         try:
             with sync_playwright() as p:
                 browser = p.chromium.launch(executable_path=chromium, args=["--disable-gpu"])
 
-                def time_to_ready(url: str) -> float:
-                    context = browser.new_context(service_workers="block")
+                def time_to_ready(url: str, context=None, drawn: list | None = None):
+                    context = context or browser.new_context(service_workers="block")
                     page = context.new_page()
                     t0 = time.perf_counter()
                     page.goto(url)
+                    if drawn is not None:  # the species section's first drawn result
+                        page.wait_for_selector("body[data-drawn]", state="attached", timeout=120_000)
+                        drawn.append((time.perf_counter() - t0) * 1e3)
                     page.wait_for_selector("body[data-ready]", state="attached", timeout=120_000)
                     elapsed = (time.perf_counter() - t0) * 1e3
                     return elapsed, context, page
 
-                for _ in range(runs):  # alternate so both see the same machine load
+                # First visit: fresh context, empty cache, no service worker; every file
+                # (the snapshot included) comes over loopback. The pages alternate so all
+                # see the same machine load.
+                for _ in range(runs):
                     ms, context, _page = time_to_ready(bare_url)
                     bare_ms.append(ms)
                     context.close()
-                    ms, context, page = time_to_ready(site_url)
+                    ms, context, page = time_to_ready(site_url, drawn=drawn_ms)
                     page_ms.append(ms)
+                    boots.append(page.evaluate(BOOT_INFO))
                     context.close()
+                    if preset:
+                        ms, context, _page = time_to_ready(f"{site_url}#preset={preset}")
+                        preset_ms.append(ms)
+                        context.close()
+
+                # Returning visit: one context whose service worker has cached the site; each
+                # run opens a new tab. The bare page's second visit uses the HTTP cache.
+                site_context = browser.new_context()
+                _, _, page = time_to_ready(site_url, site_context)
+                page.evaluate("() => navigator.serviceWorker.ready")
+                page.wait_for_function("() => Boolean(navigator.serviceWorker.controller)", timeout=60_000)
+                page.wait_for_function(
+                    "() => caches.keys().then((k) => k.filter((n) => n.startsWith('acidscape-')).length >= 3)",
+                    timeout=120_000)
+                page.close()
+                bare_context = browser.new_context(service_workers="block")
+                bare_context.new_page().goto(bare_url)
+                for _ in range(runs):
+                    ms, _, page = time_to_ready(bare_url, bare_context)
+                    warm_bare_ms.append(ms)
+                    page.close()
+                    ms, _, page = time_to_ready(site_url, site_context, drawn=warm_drawn_ms)
+                    warm_ms.append(ms)
+                    warm_boots.append(page.evaluate(BOOT_INFO))
+                    page.close()
+                bare_context.close()
+                site_context.close()
 
                 _, context, page = time_to_ready(site_url)
                 for i in range(20):
@@ -115,16 +184,44 @@ def browser_timings(chromium: str, runs: int) -> dict:
             site_server.shutdown()
             bare_server.shutdown()
     page_med, bare_med = statistics.median(page_ms), statistics.median(bare_ms)
-    return {
+    warm_med, warm_bare_med = statistics.median(warm_ms), statistics.median(warm_bare_ms)
+    stages = sorted({k for b in boots for k in b if k != "snapshot"}, key=lambda k: _median([b.get(k) for b in boots]) or 0)
+    figures = {
         "page_first_result_ms": round(page_med, 1),
-        "page_first_result_runs_ms": [round(v, 1) for v in page_ms],
+        "page_first_result_runs_ms": _spread(page_ms),
         "bare_pyodide_boot_ms": round(bare_med, 1),
-        "bare_pyodide_boot_runs_ms": [round(v, 1) for v in bare_ms],
+        "bare_pyodide_boot_runs_ms": _spread(bare_ms),
         "first_result_over_bare_boot": round(page_med / bare_med, 3),
+        "first_visit_note": "fresh context, empty cache, service workers blocked: every file (the Python "
+                            "snapshot included) is downloaded over loopback; page = navigation to body[data-ready]",
+        "page_first_drawn_ms": _median(drawn_ms),
+        "page_first_drawn_runs_ms": _spread([v for v in drawn_ms if v is not None]),
+        "first_drawn_over_bare_boot": round(_median(drawn_ms) / bare_med, 3) if _median(drawn_ms) else None,
+        "booted_from_snapshot": [b.get("snapshot") for b in boots],
+        "boot_stages_median_ms": {k: _median([b.get(k) for b in boots]) for k in stages},
+        "warm_first_result_ms": round(warm_med, 1),
+        "warm_first_result_runs_ms": _spread(warm_ms),
+        "warm_bare_pyodide_boot_ms": round(warm_bare_med, 1),
+        "warm_bare_pyodide_boot_runs_ms": _spread(warm_bare_ms),
+        "warm_first_result_over_bare_boot": round(warm_med / bare_med, 3),
+        "warm_first_drawn_ms": _median(warm_drawn_ms),
+        "warm_first_drawn_runs_ms": _spread(warm_drawn_ms),
+        "warm_note": "a returning visit: new tab in a context whose service worker holds the site; the bare page's "
+                     "return visit uses the HTTP cache; ratio over the first-visit bare boot",
+        "warm_boot_stages_median_ms": {k: _median([b.get(k) for b in warm_boots]) for k in stages},
         "warm_recompute_ms": round(statistics.median(recompute_ms), 1),
         "warm_recompute_note": "includes the page's input debounce (120 ms) and the plot/table redraw",
         **water_figures,
     }
+    if preset_ms:
+        preset_med = statistics.median(preset_ms)
+        figures.update({
+            "preset_link_first_result_ms": round(preset_med, 1),
+            "preset_link_runs_ms": _spread(preset_ms),
+            "preset_link_over_bare_boot": round(preset_med / bare_med, 3),
+            "preset_link_note": f"first visit of #preset={preset}, navigation to body[data-ready]",
+        })
+    return figures
 
 # A six-system water for the water-section figure (invented for the benchmark, not a sample).
 WATER_6 = {
@@ -195,11 +292,14 @@ def water_recompute_timings(page, edits: int = 20) -> dict:
 
 
 def main(argv: list[str] | None = None) -> int:
+    global DIST
     parser = argparse.ArgumentParser(description="Acidscape timings, printed as JSON.")
     parser.add_argument("--repeats", type=int, default=21, help="CPython repeats (default 21)")
     parser.add_argument("--runs", type=int, default=5, help="page/bare boots each (default 5)")
     parser.add_argument("--chromium", default="/usr/bin/chromium", help="Chromium executable")
+    parser.add_argument("--dist", type=Path, default=DIST, help="built site to measure (default: dist/)")
     args = parser.parse_args(argv)
+    DIST = args.dist.resolve()
     if not (DIST / "manifest.json").exists():
         print("bench.py: build first: python build_scripts/build.py", file=sys.stderr)
         return 1
