@@ -98,6 +98,8 @@ UNCERTAINTY_TEMPERATURE_K = 1.0
 #: Spread of log10 Ksp of calcite at 25 °C among modern determinations used when the data
 #: file records none: -8.48 (Plummer & Busenberg 1982), -8.47 (Jacobson & Langmuir 1974,
 #: Geochim. Cosmochim. Acta 38, 301), -8.48 (Nordstrom et al. 1990); about +-0.02 (from memory).
+#: Older values printed with the first Langelier tables were higher by up to about 0.15 log units
+#: (from memory); hand-worked shortcuts built on them give pHs about 0.2 higher at 25 °C.
 CALCITE_LOG_KSP_SPREAD = 0.02
 #: Spread of pK2 of carbonic acid at 25 °C: 10.329 (Harned & Scholes 1941, J. Am. Chem. Soc.
 #: 63, 1706; Plummer & Busenberg 1982), 10.33 (Stumm & Morgan 1996); about +-0.01 (from memory).
@@ -110,7 +112,8 @@ METHOD_PAIRS = (
     "- log a(Ca2+) - log a(HCO3-), with the free-ion activities of the equilibrium model at the "
     "water's pH (calcium and bicarbonate held in ion pairs not counted); LSI = pH - pHs (Langelier "
     "1936) equals the calcite saturation index; RSI = 2 pHs - pH (Ryznar 1944); pK2 and pKs of "
-    "calcite from Plummer & Busenberg (1982) at the water's temperature"
+    "calcite from Plummer & Busenberg (1982) at the water's temperature; the classic form with total calcium "
+    "and total alkalinity is given beside it under 'classic'"
 )
 METHOD_NO_PAIRS = (
     "ion pairs off: Standard Methods 2330 B (23rd ed. 2017, from memory) pHs = pK2 - pKs "
@@ -504,14 +507,15 @@ def calcium_carbonate(wm: WaterModel, sol, *, pH_given: float | None = None, all
 
     Examples
     --------
-    Calcium bicarbonate water, 2 mmol/L each of Ca and 4 mmol/L of carbonate alkalinity at
-    pH 8.3 (25 °C): oversaturated with calcite.
+    Calcium bicarbonate water, 2 mmol/L of calcium and 4 mmol/L of DIC at 25 °C (Davies):
+    pH 8.05 from the charge balance, oversaturated with calcite.
 
-    >>> from acidscape.boundary.api import solve
-    >>> cc = solve({"pH": 8.3, "systems": [{"id": "carbonate", "total": 4, "unit": "mmol/L"}],
-    ...             "ions": [{"id": "calcium", "total": 2, "unit": "mmol/L"}]})["calcium_carbonate"]
-    >>> cc["tendency"], cc["CCPP_mg_per_L_as_CaCO3"] > 0
-    ('deposit', True)
+    >>> from acidscape.science.tableau import IonInput, SystemInput, WaterModel
+    >>> c = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 4e-3)
+    >>> wm = WaterModel([c], [IonInput("calcium", "Ca+2", 2, 2e-3)], T=298.15, pKw=13.995, model="davies")
+    >>> cc, warnings = calcium_carbonate(wm, wm.solve())
+    >>> round(cc["pH"], 2), round(cc["LSI"], 2), round(cc["CCPP_mg_per_L_as_CaCO3"], 1), cc["tendency"]
+    (8.05, 0.88, 33.7, 'deposit')
     """
     warnings: list[str] = []
     jCa, jC = wm.comp_index.get(CALCIUM), wm.comp_index.get(CARBONATE)
