@@ -1,7 +1,9 @@
 // Section "Many samples at once": reads a CSV (pasted or from a file), asks the core for its
 // columns and a guessed mapping, and streams the samples to Python in chunks
 // (acidscape.boundary.batch.batch_chunk), so a file of 10,000 lines never blocks the page: the
-// progress bar moves and the first rows of the table appear as chunks come back.
+// progress bar moves and the first rows of the table appear as chunks come back. Each request is
+// sized from the worker's measured time per sample so that it takes about TARGET_MS: short on the
+// page's own worker, which answers the other sections between requests.
 //
 // A file of HELPER_MIN_ROWS lines or more also starts extra Python workers (one per further
 // core, at most MAX_HELPERS) as soon as its columns are read; chunks then go to whichever worker
@@ -13,8 +15,25 @@ import { downloadBlob, stamp } from "./export.js";
 import { startPython } from "./py.js";
 import { SHOWN_ROWS } from "./batch-view.js";
 
-/** Samples sent to a worker per request. */
-export const CHUNK_ROWS = 400;
+/** Samples in a worker's first request; later requests are sized from its measured speed. */
+export const FIRST_CHUNK_ROWS = 2;
+/** Fewest and most samples per request. */
+export const CHUNK_LIMITS = [1, 2000];
+/** Time a request should take [ms]: short on the page's own worker, which also answers the
+ *  other sections between requests, longer on the extra workers. */
+export const TARGET_MS = { shared: 250, helper: 1000 };
+
+/**
+ * Samples for a worker's next request, from its time per sample so far.
+ *
+ * @param {number|null} msPerRow  measured time per sample [ms], null before the first reply
+ * @param {number} targetMs  time a request should take [ms]
+ * @returns {number}
+ */
+export function chunkSize(msPerRow, targetMs) {
+  if (!(msPerRow > 0)) return FIRST_CHUNK_ROWS;
+  return Math.max(CHUNK_LIMITS[0], Math.min(CHUNK_LIMITS[1], Math.round(targetMs / msPerRow)));
+}
 /** Largest CSV accepted [characters] (about 20 MB). */
 export const MAX_CSV_CHARS = 20_000_000;
 /** A file with at least this many sample lines gets extra workers (each is one more Python). */
@@ -150,35 +169,29 @@ export function mountBatch({ py, view, systems, ions, chemicals, startHelper = (
     view.setRunning(true);
     stopRequested = false;
     resultCsv = null;
-    const starts = [];
-    for (let i = 0; i < records.length; i += CHUNK_ROWS) starts.push(i);
-    const results = new Array(starts.length);
-    const retry = [];
+    const results = new Map(); // first line index of a request -> its reply
+    const retry = []; // [from, to) line ranges of a helper that died
     const pieces = [];
-    let next = 0;
-    let rendered = 0;
+    let nextLine = 0;
+    let renderedTo = 0;
     let columns = null;
     let bad = 0;
-    let done = 0;
     let failure = null;
     let workersUsed = 0;
     const t0 = performance.now();
     view.progress(0, records.length);
 
-    const request = (k) => {
-      const i = starts[k];
-      return {
-        csv: `${header}\n${records.slice(i, i + CHUNK_ROWS).join("\n")}`,
-        mapping,
-        row_offset: i,
-        digits,
-        max_rows: i < SHOWN_ROWS ? CHUNK_ROWS : 0, // later chunks only feed the download
-      };
-    };
+    const request = (from, to) => ({
+      csv: `${header}\n${records.slice(from, to).join("\n")}`,
+      mapping,
+      row_offset: from,
+      digits,
+      max_rows: from < SHOWN_ROWS ? to - from : 0, // later requests only feed the download
+    });
     const flush = () => {
-      while (rendered < results.length && results[rendered]) {
-        const out = results[rendered];
-        results[rendered] = true; // keep the slot filled, drop the reply
+      while (results.has(renderedTo)) {
+        const { out, to } = results.get(renderedTo);
+        results.delete(renderedTo);
         if (!columns) {
           columns = out.columns;
           view.setHeader(out.column_info || out.columns.map((name) => ({ name })));
@@ -188,25 +201,36 @@ export function mountBatch({ py, view, systems, ions, chemicals, startHelper = (
         view.addRows(columns, out.rows);
         view.addErrors(out.errors);
         bad += out.errors.length;
-        done = Math.min(records.length, starts[rendered] + CHUNK_ROWS);
-        rendered += 1;
+        renderedTo = to;
       }
-      view.progress(done, records.length);
+      view.progress(renderedTo, records.length);
     };
     const lane = async (worker, isHelper) => {
       workersUsed += 1;
-      while (!stopRequested && !failure && (retry.length || next < starts.length)) {
-        const k = retry.length ? retry.pop() : next++;
+      let msPerRow = null;
+      const target = isHelper ? TARGET_MS.helper : TARGET_MS.shared;
+      while (!stopRequested && !failure && (retry.length || nextLine < records.length)) {
+        let from;
+        let to;
+        if (retry.length) [from, to] = retry.pop();
+        else {
+          from = nextLine;
+          to = Math.min(records.length, from + chunkSize(msPerRow, target));
+          nextLine = to;
+        }
+        const started = performance.now();
         try {
-          results[k] = await worker.call("batch_chunk", request(k));
+          results.set(from, { out: await worker.call("batch_chunk", request(from, to)), to });
         } catch (error) {
           if (isHelper && error?.type === "BootError") {
-            retry.push(k); // a helper that died: another worker takes its chunk
+            retry.push([from, to]); // a helper that died: another worker takes its lines
             return;
           }
           failure = failure || error;
           return;
         }
+        const ms = (performance.now() - started) / Math.max(1, to - from);
+        msPerRow = msPerRow === null ? ms : 0.5 * (msPerRow + ms);
         flush();
       }
     };
@@ -217,6 +241,8 @@ export function mountBatch({ py, view, systems, ions, chemicals, startHelper = (
       for (let seen = 0; seen < lanes.length; ) {
         seen = lanes.length;
         await Promise.all(lanes);
+        // lines of a helper that died after the page's own worker had finished
+        if (seen === lanes.length && retry.length && !failure && !stopRequested) lanes.push(lane(py, false));
       }
       joinRun = null;
       if (failure) throw failure;
@@ -225,6 +251,7 @@ export function mountBatch({ py, view, systems, ions, chemicals, startHelper = (
         resultCsv = `${columns.map(pyCsvCell).join(",")}\n${pieces.join("")}`;
         view.setDownload(true);
       }
+      const done = renderedTo;
       const rate = done / Math.max(seconds, 1e-3);
       view.finished(
         `${stopRequested ? "Stopped after" : "Done:"} ${done.toLocaleString("en")} of ${records.length.toLocaleString("en")} lines in ${seconds.toFixed(1)} s ` +
