@@ -112,6 +112,9 @@ SI_SWITCH = 1e-10
 #: Relative tolerance on each mass balance and on the ionic strength (Newton converges
 #: quadratically: the last step usually lands far below it).
 RTOL = 1e-10
+#: Largest dissolved metal computed [mol/L] (2 g/L of lead, 0.6 g/L of copper): far beyond the
+#: dilute waters the constants describe; a point above it is reported without a value.
+MAX_DISSOLVED_M = 1e-2
 #: Largest Newton step in any ln concentration.
 STEP_CAP = 9.0
 
@@ -219,6 +222,7 @@ class FixedPHState:
     SI: dict                     # candidate solid index -> saturation index
     iterations: int
     layout_key: tuple = ()
+    above_limit: bool = False    # the dissolved metal would exceed MAX_DISSOLVED_M (not solved further)
 
 
 class FixedPHSolver:
@@ -266,7 +270,13 @@ class FixedPHSolver:
             allowed = candidate_solids(wm, metal) if solids is None else list(solids)
             for sid in allowed:
                 if sid not in wm.solid_index:
-                    raise UnknownIdError(f"{sid} is not a solid of this water's database", field="solids")
+                    solid = library.get_solid(sid)  # UnknownIdError for an unknown id
+                    refs = [library.resolve_ref(r) for r, _ in solid.reactants]
+                    if ("ion", metal) not in refs:
+                        raise InputError(f"{sid} holds no {metal}", field="solids")
+                    raise InputError(f"{sid} cannot form in this water: it needs "
+                                     + ", ".join(r for r, _ in solid.reactants if r not in ("H+", "OH-")),
+                                     field="solids")
                 if dict(tab.solids[wm.solid_index[sid]].stoich).get(self.jM, 0) <= 0:
                     raise InputError(f"{sid} holds no {metal}", field="solids")
             self.candidates = [wm.solid_index[s] for s in allowed]
@@ -478,7 +488,10 @@ class FixedPHSolver:
             return max((abs(v) / sc for v, sc in zip(e[1], scale)), default=0.0)
 
         def merit(e):
-            return sum((v / sc) ** 2 for v, sc in zip(e[1], scale))
+            try:
+                return sum((v / sc) ** 2 for v, sc in zip(e[1], scale))
+            except OverflowError:
+                return math.inf
 
         phi = merit(ev)
         for it in range(1, 100):
@@ -545,9 +558,13 @@ class FixedPHSolver:
         """
         wm = self.wm
         jM = self.jM
-        use_metal = metal and jM is not None and bool(self.candidates)
-        present = tuple(j == 0 or (j != jM and totals[j] > 0.0) or (j == jM and use_metal)
-                        for j in range(self.m))
+        present = [j == 0 or (j != jM and totals[j] > 0.0) for j in range(self.m)]
+        if metal and jM is not None:
+            # the metal is open when a candidate solid can form (its other components present)
+            present[jM] = any(all(present[j] or j == jM for j, _ in self.tab.solids[t].stoich)
+                              for t in self.candidates)
+        present = tuple(present)
+        use_metal = jM is not None and present[jM]
         lay = self._layout(present)
         with_metal = use_metal and bool(lay.solids)
         T = [float(totals[j]) for j in lay.U]
@@ -582,7 +599,31 @@ class FixedPHSolver:
         if result is None:
             x, I, s, its = self._cold_start(lay, T, pH, I, with_metal)
             iters += its
-            result = self._settle(lay, T, pH, x, I, s, varI, with_metal)
+            estimate = None
+            if with_metal:
+                # the estimate at the metal-free water's ligands: beyond the limit, stop there
+                k = self._constants(lay, pH, I)
+                ev = self._evaluate(lay, k, x, s, T, False)
+                estimate = sum(am * c for am, c in zip(lay.aM, ev[2])) if ev is not None else math.inf
+                if not estimate <= MAX_DISSOLVED_M:
+                    if ev is None:
+                        ev = (0.0, [], [math.inf if am else 0.0 for am in lay.aM], 0.0)
+                    result = (x, I, s, k, ev, 0)
+            if result is None:
+                result = self._settle(lay, T, pH, x, I, s, varI, with_metal)
+            if result is None and with_metal:
+                # the metal's hold on a scarce ligand can move the answer far from the estimate:
+                # start from each other candidate, least soluble first
+                order = sorted((t for t in lay.solids if t != s),
+                               key=lambda t: (k.kS[t] - _lse_dot(lay.bU[t], x)) / lay.bM[t])
+                for t in order:
+                    result = self._settle(lay, T, pH, x, I, t, varI, with_metal)
+                    if result is not None:
+                        break
+                if result is None and estimate > 0.1 * MAX_DISSOLVED_M:
+                    # no solution found near a metal content already close to the limit: above it
+                    ev = (0.0, [], [math.inf if am else 0.0 for am in lay.aM], 0.0)
+                    result = (x, I, s, k, ev, 0)
             if result is None:
                 what = f"saturated with {self.wm.solid_info[s].id} " if s is not None else ""
                 raise ConvergenceError(f"the water {what}at pH {pH:g} did not converge", field=None)
@@ -594,6 +635,7 @@ class FixedPHSolver:
         for i, am, c in zip(lay.species, lay.aM, conc_on):
             conc[i] = c
             dissolved += am * c
+        above = with_metal and not dissolved <= MAX_DISSOLVED_M
         xfull = [-math.inf] * self.m
         xfull[0] = k.xH
         for p, j in enumerate(lay.U):
@@ -604,7 +646,7 @@ class FixedPHSolver:
             for t in lay.solids:
                 SI[t] = (_lse_dot(lay.bU[t], x) + lay.bM[t] * xfull[jM] - k.kS[t]) / LN10
         out = FixedPHState(pH=pH, I=I, x=xfull, conc=conc, lgc=k.lgc, lgs=k.lgs, solid=s, dissolved_M=dissolved,
-                           SI=SI, iterations=iters, layout_key=present)
+                           SI=SI, iterations=iters, layout_key=present, above_limit=above)
         out._constants = k
         return out
 
@@ -926,14 +968,19 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
         if axis != "pH":
             row["axis_M"] = v
         out_points.append(row)
+    above = [p for p in out_points if p["above_limit"]]
+    if above:
+        warnings.append(f"at {len(above)} point(s) the dissolved {metal} would exceed {MAX_DISSOLVED_M:g} mol/L "
+                        f"({MAX_DISSOLVED_M * mass:.3g} g/L), far beyond the dilute waters the constants describe: "
+                        "no value there (the solid named is the least soluble at the water's ligands)")
     nobody = [p for p in out_points if p["controlling_solid"] is None]
     if nobody:
         warnings.append(f"at {len(nobody)} point(s) no candidate solid can form (a component it needs is "
                         "absent): no solubility there")
     model_check = None
-    if check and states:
-        mid = len(states) // 2
-        model_check = _model_check(wm, solver, *states[mid])
+    valued = [sv for sv in states if sv[0].solid is not None and not sv[0].above_limit]
+    if check and valued:
+        model_check = _model_check(wm, solver, *valued[len(valued) // 2])
     return {
         "metal": metal,
         "metal_name": ion.name,
@@ -957,9 +1004,9 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
 def _point_row(wm, solver, st, totals, jC, jP, mass, metal_species, sp_shift, sd_shift) -> dict:
     tab = wm.tab
     solid = wm.solid_info[st.solid].id if st.solid is not None else None
-    diss = st.dissolved_M if st.solid is not None else None
+    diss = st.dissolved_M if st.solid is not None and not st.above_limit else None
     lo = hi = lo_s = hi_s = None
-    if st.solid is not None:
+    if diss is not None:
         lo, lo_s = _band(solver, st, sp_shift, sd_shift, 0)
         hi, hi_s = _band(solver, st, sp_shift, sd_shift, 1)
     species = []
@@ -981,6 +1028,7 @@ def _point_row(wm, solver, st, totals, jC, jP, mass, metal_species, sp_shift, sd
         "ionic_strength_M": st.I,
         "species": species,
         "SI": {wm.solid_info[s].id: v for s, v in st.SI.items()},
+        "above_limit": st.above_limit,
     }
 
 
