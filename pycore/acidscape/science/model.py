@@ -382,7 +382,11 @@ def _newton(prob: _Problem, y: list[float], max_iter: int = 200,
             t *= 0.5
             if t < 1e-12:
                 return y, it, _converged(g, scale, max(rtol, 1e3 * MASS_RTOL))
+        res_old = max(abs(v) / (s + 1e-300) for v, s in zip(g, scale))
         y, F, g, H, scale = yn, Fn, gn, Hn, sn
+        res = max(abs(v) / (s + 1e-300) for v, s in zip(g, scale))
+        if res > 0.5 * res_old and res <= 1e3 * MASS_RTOL:
+            return y, it, True  # rounding, not the method, now limits the residual
     return y, max_iter, _converged(g, scale, rtol)
 
 
