@@ -29,8 +29,9 @@ the minimum); a fixed pH holds u_H and drops its balance.
 Solids named in ``precipitate`` are the constraints sum_j b_sj (x_j + lg_j) <= log10 Ksp_s
 (SI <= 0). For a trial set S of solids taken as present, F is minimised on the affine set
 where those constraints are equalities (null-space parametrisation, so the minimisation
-is unconstrained), and the amounts p_s follow from the mass balances by least squares.
-The first set whose amounts are >= 0 and whose absent solids are all at SI <= 0 is the
+is unconstrained); the amounts p_s are the least-squares solution of the mass balances,
+each weighted by its own scale (so a trace metal held in a solid balances to its own
+total, not to the rounding of the major components). The first set whose amounts are >= 0 and whose absent solids are all at SI <= 0 is the
 answer: for a convex problem these Karush-Kuhn-Tucker conditions are sufficient, so the
 answer does not depend on the order of trial (the previous set is tried first, then all
 sets by size; ``check_unique=True`` tries them all and insists on one answer).
@@ -47,9 +48,10 @@ Constants
 * Acid-base steps: pKa at 25 °C from systems.csv; van 't Hoff with the step enthalpy and,
   if a ``dCp_J_per_mol_K`` column exists, a constant heat-capacity change; the fits named
   in ``temperature_model`` written again here from their papers: carbonate Plummer &
-  Busenberg (1982) Geochim. Cosmochim. Acta 46, 1011, Table 2; ammonium Bates & Pinching
-  (1949) J. Res. NBS 42, 419; hypochlorous Morris (1966) J. Phys. Chem. 70, 3798 (all
-  coefficients from memory, as in the data file notes).
+  Busenberg (1982) Geochim. Cosmochim. Acta 46, 1011, Table 2; ammonium pKa = 0.09018 +
+  2729.92/T, the fit of Emerson, Russo, Lund & Thurston (1975) J. Fish. Res. Board Can. 32,
+  2379 to the Bates & Pinching (1949) data; hypochlorous Morris (1966) J. Phys. Chem. 70,
+  3798 (all coefficients from memory, as in the data file notes).
 * Complexes and solids: the ``analytic`` fit log10 K = A + B T + C/T + D log10 T + E/T^2
   when given, else the integrated van 't Hoff equation with dH and dCp
   (Stumm & Morgan, *Aquatic Chemistry*, 3rd ed. 1996, §2.6), else the 25 °C value.
@@ -149,8 +151,8 @@ def fitted_pKa(model, T):
         k1 = analytic_log10K((-356.3094, -0.06091964, 21834.37, 126.8339, -1684915.0), T)
         k2 = analytic_log10K((-107.8871, -0.03252849, 5151.79, 38.92561, -563713.9), T)
         return (-k1, -k2)
-    if model == "ammonium-BP49":  # Bates & Pinching (1949)
-        return (2835.76 / T - 0.6322 + 0.001225 * T,)
+    if model == "ammonium-BP49":  # Emerson et al. (1975)'s fit to Bates & Pinching (1949), per systems.csv
+        return (0.09018 + 2729.92 / T,)
     if model == "hypochlorous-M66":  # Morris (1966)
         return (3000.00 / T - 10.0686 + 0.0253 * T,)
     raise ReferenceDataError(f"temperature model {model!r} is not known to the reference")
@@ -696,10 +698,20 @@ def _subset_solve(prob, lnK, lnKs, S, u_start, u_fixed):
         return (M * c[:, None]).T @ M
 
     def residual(zv):
-        """Mass-balance residuals (with the least-squares solid amounts) relative to their terms."""
-        c = conc(zv)[0]
+        """Mass-balance residuals relative to their terms, with the solid amounts that make them
+        smallest in that relative measure (weighted least squares: a trace metal held in a
+        solid is balanced to its own total, not to the major components' rounding)."""
+        if not np.all(np.isfinite(zv)):
+            return np.inf, np.zeros(len(S))
+        c, e = conc(zv)
+        if np.any(e > 700.0):  # far outside any equilibrium: not a candidate
+            return np.inf, np.zeros(len(S))
         r = A_fr.T @ c - T_fr
-        p = np.linalg.lstsq(Bs.T, -r, rcond=None)[0] if S else np.zeros(0)
+        w = 1.0 / (np.abs(A_fr).T @ c + np.abs(T_fr) + 1e-300)
+        try:
+            p = np.linalg.lstsq(Bs.T * w[:, None], -r * w, rcond=None)[0] if S else np.zeros(0)
+        except np.linalg.LinAlgError:
+            return np.inf, np.zeros(len(S))
         res = r + Bs.T @ p
         scale = np.abs(A_fr).T @ c + np.abs(T_fr) + (np.abs(Bs).T @ np.abs(p) if S else 0.0)
         return np.max(np.abs(res) / scale) if len(res) else 0.0, p
@@ -711,6 +723,8 @@ def _subset_solve(prob, lnK, lnKs, S, u_start, u_fixed):
                 break
             H = hess(zv)
             g = jac(zv)
+            if not (np.all(np.isfinite(H)) and np.all(np.isfinite(g))):
+                break
             d = 1.0 / np.sqrt(np.maximum(np.diag(H), 1e-300))
             try:
                 step = -d * np.linalg.solve(H * d[:, None] * d[None, :], d * g)
@@ -734,13 +748,10 @@ def _subset_solve(prob, lnK, lnKs, S, u_start, u_fixed):
     else:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            starts = [np.zeros(M.shape[1])]
-            for zs in starts:
-                res = minimize(fun, zs, jac=jac, hess=hess, method="trust-exact",
-                               options={"gtol": 1e-300, "maxiter": 400})
-                zv, rv = polish(res.x if np.isfinite(res.fun) else zs)
-                if rv < r_best:
-                    z_best, r_best = zv, rv
+            zs = np.zeros(M.shape[1])
+            res = minimize(fun, zs, jac=jac, hess=hess, method="trust-exact",
+                           options={"gtol": 1e-300, "maxiter": 400})
+            z_best, r_best = polish(res.x if np.isfinite(res.fun) else zs)
             if r_best > 1e-12:  # fall back on MINPACK root finding from several starts
                 for shift in (0.0, -4.6, 4.6, -11.5):
                     for zs in (z_best, N.T @ (np.full(len(Fr), shift))):
@@ -770,13 +781,11 @@ def _solve_at_I(prob, I, u_start, S_prev, check_unique):
     candidates = [tuple(S_prev)] + [S for k in range(len(allowed) + 1)
                                     for S in itertools.combinations(allowed, k) if tuple(S) != tuple(S_prev)]
     found = []
-    cache = {}
     for S in candidates:
         out = _subset_solve(prob, lnK, lnKs, S, u_start, u_fixed)
         if out is None:
             continue
         u, p, rres = out
-        cache[S] = out
         scale_p = np.array([np.min([prob.totals[j] / abs(prob.B[s, j]) for j in np.flatnonzero(prob.B[s])
                                     if j != 0]) for s in S]) if S else np.zeros(0)
         if np.any(p < -1e-12 * scale_p):
@@ -847,6 +856,8 @@ def solve(scenario, library=None, check_unique=False):
         I = I_new if it < 50 else 0.5 * (I + I_new)
     else:
         raise ReferenceSolveError("ionic strength did not settle")
+    if rres > 1e-12:
+        raise ReferenceSolveError(f"mass balances closed only to {rres:.1e} relative")
     x = u / LN10
     comps = prob.comps
     species = dict(zip(prob.names, c))
