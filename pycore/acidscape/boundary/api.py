@@ -21,6 +21,7 @@ from collections.abc import Callable
 from .._version import __version__
 from ..checks import number, whole
 from ..errors import AcidscapeError, InputError, UnknownIdError
+from ..science import temperature
 from ..science.speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
 
 #: Largest pH grid a curve request may ask for.
@@ -177,7 +178,7 @@ def _acid_base_view(parsed, wm, sol):
 #: saturation table.
 SCALE_SOLIDS = ("calcite", "brucite", "gypsum", "barite", "cerussite", "hydrocerussite", "hydroxypyromorphite",
                 "malachite", "tenorite", "copper-hydroxide", "siderite", "rhodochrosite",
-                "ferrihydrite", "amorphous-aluminium-hydroxide", "hydroxyapatite")
+                "ferrihydrite", "amorphous-aluminium-hydroxide")
 
 #: Saturation index above which a warning names the solid (a margin for the constants' spread).
 SI_WARNING = 0.3
@@ -236,7 +237,10 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     eq = _acid_base_view(parsed, wm, sol)
     if _state is not None:  # callers inside the package may want the solved state too
         _state["parsed"], _state["eq"], _state["model"], _state["solution"] = parsed, eq, wm, sol
-    warnings = list(parsed.warnings) + wm.notes + sol.warnings
+    warnings = list(parsed.warnings) + results.condense_notes(wm.notes_that_matter(sol)) + sol.warnings
+    molal = temperature.molal_to_molar_note(parsed.T)
+    if molal:
+        warnings.append(molal)
     from ..science.activity import VALIDITY_I_M
 
     limit = VALIDITY_I_M.get(parsed.model)

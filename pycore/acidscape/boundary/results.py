@@ -11,11 +11,13 @@ saturation_rows(wm, sol)          SI of every database solid whose components ar
 precipitated_rows(wm, sol)        solids present at equilibrium
 residual_report(wm, sol)          mass- and charge-balance residuals
 trail_rows(wm, sol)               each term of the charge balance
+condense_notes(notes)             one line per kind of temperature note instead of one per constant
 """
 
 from __future__ import annotations
 
 import math
+import re
 
 from ..science.tableau import WaterModel
 
@@ -153,3 +155,34 @@ def trail_rows(wm: WaterModel, sol) -> list[dict]:
                 row["kind"] = "complex"
             rows.append(row)
     return rows
+
+
+_NO_DH = re.compile(r"^(?P<name>.+?): no reaction enthalpy is known; its 25 °C log K \(.*\) is used at (?P<t>.+)$")
+_OUT_OF_FIT = re.compile(r"^(?P<name>.+?): its log K fit was measured from (?P<range>.+); at (?P<t>.+) it is extrapolated$")
+
+
+def condense_notes(notes: list[str]) -> list[str]:
+    """Group the per-constant temperature notes of complexes and solids into one line per kind.
+
+    >>> condense_notes(["CaOH+: no reaction enthalpy is known; its 25 °C log K (-12.78) is used at 7.0 °C",
+    ...                 "NaHCO3: no reaction enthalpy is known; its 25 °C log K (-0.25) is used at 7.0 °C",
+    ...                 "other note"])
+    ['other note', 'no reaction enthalpy is known for CaOH+, NaHCO3: their 25 °C constants are used at 7.0 °C']
+    """
+    plain, no_dh, out = [], {}, {}
+    for n in notes:
+        m = _NO_DH.match(n)
+        if m:
+            no_dh.setdefault(m["t"], []).append(m["name"])
+            continue
+        m = _OUT_OF_FIT.match(n)
+        if m:
+            out.setdefault(m["t"], []).append(f"{m['name']} ({m['range']})")
+            continue
+        if n not in plain:
+            plain.append(n)
+    for t, names in no_dh.items():
+        plain.append(f"no reaction enthalpy is known for {', '.join(names)}: their 25 °C constants are used at {t}")
+    for t, names in out.items():
+        plain.append(f"temperature fits used outside the range they were measured over, at {t}: {', '.join(names)}")
+    return plain

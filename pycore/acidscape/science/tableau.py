@@ -22,6 +22,7 @@ WaterModel                the tableau, totals and bookkeeping; ``solve(...)`` ->
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from ..data import library
@@ -84,8 +85,9 @@ class WaterModel:
         Ion key -> index of its free species
     solid_info : list
         Library solid object (or None) per tableau solid
-    notes : list of str
-        Temperature notes of the complexes and solids used
+    species_notes, solid_notes : dict
+        Temperature notes of each complex (species index) and solid (solid index) used; see
+        :meth:`notes_that_matter`
     """
 
     def __init__(self, systems: list[SystemInput], ions: list[IonInput], *, T: float, pKw: float,
@@ -94,7 +96,8 @@ class WaterModel:
         self.systems, self.ions = list(systems), list(ions)
         self.complexes = complexes
         self.gamma_of = gamma_function(T, model)
-        self.notes: list[str] = []
+        self.species_notes: dict[int, list[str]] = {}
+        self.solid_notes: dict[int, list[str]] = {}
         names = ["H+"]
         charges = [1]
         sizes: list[float | None] = [ION_SIZE_H]
@@ -148,7 +151,8 @@ class WaterModel:
                     continue
                 stoich, shift = built
                 logK, notes = temperature.log10_K_at(cx, T)
-                self.notes.extend(notes)
+                if notes:
+                    self.species_notes[len(species)] = notes
                 self.complex_info[len(species)] = cx
                 species.append(Species(cx.formula, stoich, logK + shift, cx.charge, cx.ion_size_A, "complex"))
         for sd in library.solids():
@@ -157,7 +161,8 @@ class WaterModel:
                 continue
             stoich, shift = built
             logK, notes = temperature.log10_K_at(sd, T)
-            self.notes.extend(notes)
+            if notes:
+                self.solid_notes[len(solids)] = notes
             solids.append(Solid(sd.id, stoich, logK + shift))
             self.solid_info.append(sd)
         self.tab = Tableau(tuple(names), tuple(charges), tuple(sizes), tuple(species), tuple(solids))
@@ -186,6 +191,27 @@ class WaterModel:
                 acc[j] = acc.get(j, 0) + coef * a
             shift += sign * coef * logK
         return tuple((j, a) for j, a in sorted(acc.items()) if a), shift
+
+    @property
+    def notes(self) -> list[str]:
+        """Every temperature note of the complexes and solids in the tableau."""
+        return [n for d in (self.species_notes, self.solid_notes) for notes in d.values() for n in notes]
+
+    def notes_that_matter(self, sol, share: float = 0.01, si_window: float = 1.0) -> list[str]:
+        """Temperature notes of the constants that shape this answer.
+
+        A complex's note counts when the complex holds at least ``share`` of a component's
+        total; a solid's when it is present or its saturation index is within ``si_window`` of 0.
+        """
+        out: list[str] = []
+        for i, notes in self.species_notes.items():
+            sp = self.tab.species[i]
+            if any(sol.totals[j] > 0 and abs(a) * sol.conc[i] >= share * sol.totals[j] for j, a in sp.stoich if j):
+                out.extend(notes)
+        for s, notes in self.solid_notes.items():
+            if s in sol.solids or abs(sol.SI.get(s, -math.inf)) <= si_window:
+                out.extend(notes)
+        return out
 
     def solve(self, *, pH: float | None = None, totals: list[float] | None = None,
               allow_solids: tuple[str, ...] = (), guess: dict | None = None):
