@@ -11,14 +11,16 @@ Usage:  .venv/bin/python build_scripts/bench_share.py [--rows N] [--runs N] [--c
   page reports it; ``browser_batch_rows_per_s``: the same with the extra worker(s) the page
   starts on this machine's cores, once they are ready (a user reads the columns, then maps
   them; the workers start when the columns are read); ``browser_batch_workers``: workers used;
-  ``helper_ready_ms``: from reading the columns to the extra workers being ready.
+  ``helper_ready_ms``: from reading the columns to the extra workers being ready (medians of
+  ``--batch-runs`` alternated runs).
 - ``bare_pyodide_boot_ms``: navigation to the end of loadPyodide() on an empty page;
   ``preset_link_first_result_ms``: navigation to ``#preset=<id>`` until that example's water pH
   is on screen (link decoded and applied, every section recomputed);
   ``preset_link_over_bare_boot``: the ratio of the medians. Fresh context per run, service
   workers blocked (a first visit), the two pages alternated.
 
-The machine has 2 cores shared with other work; figures vary by tens of per cent between runs.
+The machine has 2 cores shared with other work; figures vary by tens of per cent between runs,
+and the load averages before and after are printed with them.
 Needs a built dist/ (python build_scripts/build.py) and /usr/bin/chromium.
 """
 
@@ -98,7 +100,7 @@ def page_batch(browser, site_url: str, csv_path: Path, n: int, one_core: bool) -
     return {"seconds": seconds, "workers": workers, "ready_ms": ready_ms, "rate": n / seconds}
 
 
-def browser(chromium: str, text: str, n: int, runs: int) -> dict:
+def browser(chromium: str, text: str, n: int, runs: int, batch_runs: int = 1) -> dict:
     from playwright.sync_api import sync_playwright
 
     sys.path.insert(0, str(REPO / "pycore"))
@@ -135,8 +137,12 @@ def browser(chromium: str, text: str, n: int, runs: int) -> dict:
                         arg=want_pH, timeout=120_000, polling=20)
                     link_ms.append((time.perf_counter() - t0) * 1e3)
                     ctx.close()
-                one = page_batch(b, site_url, bare / "samples.csv", n, one_core=True)
-                many = page_batch(b, site_url, bare / "samples.csv", n, one_core=False)
+                ones, manys = [], []
+                for _ in range(batch_runs):  # alternated, medians reported
+                    ones.append(page_batch(b, site_url, bare / "samples.csv", n, one_core=True))
+                    manys.append(page_batch(b, site_url, bare / "samples.csv", n, one_core=False))
+                one = sorted(ones, key=lambda r: r["seconds"])[len(ones) // 2]
+                many = sorted(manys, key=lambda r: r["seconds"])[len(manys) // 2]
                 b.close()
         finally:
             site_server.shutdown()
@@ -149,6 +155,7 @@ def browser(chromium: str, text: str, n: int, runs: int) -> dict:
         "browser_batch_rows_per_s": round(many["rate"], 1),
         "browser_batch_seconds": round(many["seconds"], 2),
         "browser_batch_workers": many["workers"],
+        "browser_batch_runs": batch_runs,
         "helper_ready_ms": round(many["ready_ms"], 1),
         "bare_pyodide_boot_ms": round(bm, 1),
         "preset_link_first_result_ms": round(lm, 1),
@@ -163,6 +170,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--runs", type=int, default=3, help="boots of each page (default 3)")
     parser.add_argument("--chromium", default="/usr/bin/chromium", help="Chromium executable")
     parser.add_argument("--no-browser", action="store_true", help="CPython figures only")
+    parser.add_argument("--batch-runs", type=int, default=1, help="page batches of each kind (median; default 1)")
     args = parser.parse_args(argv)
     if not args.no_browser and not (DIST / "manifest.json").exists():
         print("bench_share.py: build first: python build_scripts/build.py", file=sys.stderr)
@@ -171,10 +179,12 @@ def main(argv: list[str] | None = None) -> int:
     result = {
         "machine": f"{platform.machine()}, {platform.python_implementation()} {platform.python_version()}",
         "cores": os.cpu_count(),
+        "load_average_1min_before": round(os.getloadavg()[0], 2),
         **cpython_rates(text, args.rows),
     }
     if not args.no_browser:
-        result.update(browser(args.chromium, text, args.rows, args.runs))
+        result.update(browser(args.chromium, text, args.rows, args.runs, args.batch_runs))
+    result["load_average_1min_after"] = round(os.getloadavg()[0], 2)
     print(json.dumps(result, indent=2))
     return 0
 
