@@ -368,5 +368,9 @@ def test_random_waters_least_soluble_solid_and_model_check(params):
 
 @pytest.mark.sweep
 @pytest.mark.parametrize("params", list(_random_curves(200, 11)))
-def test_random_waters_wide_sweep(params):
+def test_random_waters_wide_sweep(params, request):
+    """200 more random curves; they run only when selected with ``-m sweep``."""
+    expr = request.config.getoption("markexpr") or ""
+    if "sweep" not in expr or "not sweep" in expr:
+        pytest.skip("part of the wide sweep: run with -m sweep")
     _check_random(params)

@@ -82,7 +82,7 @@ from ..data import library
 from ..errors import InputError, UnknownIdError
 from ..science.model import equilibrium
 from ..science.tableau import IonInput, WaterModel
-from .solubility import FixedPHSolver, _system_input
+from .solubility import FixedPHSolver, _system_input, temperature_notes
 
 #: The hardness metals reported in every point's pM.
 HARDNESS_METALS = ("calcium", "magnesium")
@@ -126,7 +126,7 @@ def _edta_water(parsed, metals) -> tuple[WaterModel, list[str]]:
                    if s.fixed_first_M is not None else s for s in systems]
         notes.append("water open to CO2: titrated as a closed sample at its equilibrium carbonate total")
     if not any(s.key == EDTA for s in systems):
-        systems.append(_system_input(EDTA, 0.0, parsed.T))
+        systems.append(_system_input(EDTA, 0.0, parsed.T, notes))
     ions = list(parsed.ions)
     have = {i.key for i in ions}
     for mid in metals:
@@ -139,7 +139,8 @@ def _edta_water(parsed, metals) -> tuple[WaterModel, list[str]]:
                          field="complexes")
     wm = WaterModel(systems, ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model, complexes=True,
                     I_fixed=parsed.I_fixed)
-    notes.extend(wm.notes)
+    # temperature notes of the metal-EDTA complexes (the constants the titration turns on)
+    notes.extend(temperature_notes(wm, [i for i in (_edta_complex(wm, m) for m in metals) if i is not None]))
     return wm, notes
 
 

@@ -746,12 +746,38 @@ def constants_report(wm: WaterModel, metal: str, solids: list[str]) -> list[dict
 # building the water
 
 
-def _system_input(system_id: str, total_M: float, T: float) -> SystemInput:
+def _system_input(system_id: str, total_M: float, T: float, notes: list | None = None) -> SystemInput:
+    """A library acid-base system as a tableau input at T (its temperature notes appended to ``notes``)."""
     system = library.get_system(system_id)
-    pKa = temperature.pKa_at(system, T)
+    pKa, got = temperature.pKa_at_with_notes(system, T)
+    if notes is not None:
+        notes.extend(got)
     return SystemInput(key=system.id, name=system.name, species=tuple(s.formula for s in system.species),
                        charges=tuple(s.charge for s in system.species), pKa=tuple(pKa), total_M=total_M,
                        ion_sizes=tuple(s.ion_size_A for s in system.species))
+
+
+def temperature_notes(wm: WaterModel, species=(), solids=()) -> list[str]:
+    """The temperature notes of the given complexes (species indices) and solids, one line per kind.
+
+    >>> from acidscape.science.tableau import IonInput, WaterModel
+    >>> wm = WaterModel([], [IonInput("copper", "Cu+2", 2, 1e-6)], T=283.15, pKw=14.53)
+    >>> temperature_notes(wm, [i for i, sp in enumerate(wm.tab.species) if sp.name in ("CuOH+", "Cu(OH)2")])
+    ['no reaction enthalpy is known for CuOH+, Cu(OH)2: their 25 °C constants are used at 10.0 °C']
+    """
+    raw = [n for i in species for n in getattr(wm, "species_notes", {}).get(i, [])]
+    raw += [n for s in solids for n in getattr(wm, "solid_notes", {}).get(s, [])]
+    plain, no_dH = [], {}
+    for n in raw:
+        name, sep, rest = n.partition(": no reaction enthalpy is known; ")
+        if sep and " is used at " in rest:
+            no_dH.setdefault(rest.rsplit(" is used at ", 1)[1], []).append(name)
+        elif n not in plain:
+            plain.append(n)
+    for t, names in no_dH.items():
+        plain.append(f"no reaction enthalpy is known for {', '.join(dict.fromkeys(names))}: their 25 °C "
+                     f"constants are used at {t}")
+    return plain
 
 
 def metal_water(parsed, metal: str, need=()) -> tuple[WaterModel, list[str]]:
@@ -793,7 +819,7 @@ def metal_water(parsed, metal: str, need=()) -> tuple[WaterModel, list[str]]:
     keys = {s.key for s in systems}
     for sid in need:
         if sid not in keys:
-            systems.append(_system_input(sid, 0.0, parsed.T))
+            systems.append(_system_input(sid, 0.0, parsed.T, notes))
     ion = library.get_ion(metal)
     ions = [i for i in parsed.ions if i.key != ion.id]
     if len(ions) < len(parsed.ions):
@@ -801,7 +827,6 @@ def metal_water(parsed, metal: str, need=()) -> tuple[WaterModel, list[str]]:
     ions.append(IonInput(key=ion.id, name=ion.formula, charge=ion.charge, conc_M=0.0, ion_size_A=ion.ion_size_A))
     wm = WaterModel(systems, ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model, complexes=complexes,
                     I_fixed=parsed.I_fixed)
-    notes.extend(wm.notes)
     return wm, notes
 
 
@@ -931,6 +956,9 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
     if not cand:
         raise InputError(f"no candidate solid holds {metal}", field="solids")
     solver = FixedPHSolver(wm, metal, cand)
+    warnings.extend(temperature_notes(
+        wm, [i for i, sp in enumerate(wm.tab.species) if sp.kind == "complex" and dict(sp.stoich).get(jM, 0)],
+        solver.candidates))
     if axis == "pH":
         for v, f in ((start, "from"), (stop, "to")):
             if not 0.0 <= v <= 14.0:

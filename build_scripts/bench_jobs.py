@@ -1,0 +1,149 @@
+"""Benchmark of the metal-solubility and hardness jobs: prints JSON with times in milliseconds.
+
+    .venv/bin/python build_scripts/bench_jobs.py [--repeat N] [--pyodide]
+
+Cases (invented waters, not checks of chemistry), each through
+``acidscape.boundary.api.handle`` as the page's worker calls it (JSON in and out):
+
+- ``lead_curve_200``: dissolved lead against pH 6.5-10.5, 200 points, in a hard water with
+  carbonate, orthophosphate, sulfate and chloride (target: under 200 ms in the page);
+- ``copper_dic_curve_200``: dissolved copper against DIC 1-100 mg/L as C at pH 7.5, 200 points;
+- ``edta_titration_401``: hardness titration with EDTA at pH 10, 401 points plus the end points;
+- ``conditional_constants_71``: log K' of CaY2- and MgY2- against pH 6-13.
+
+CPython times are the median and the minimum of ``--repeat`` runs after one warm-up run, with
+the CPU time of the process beside the wall time (a loaded machine inflates the wall time).
+``--pyodide`` also runs the same requests in Pyodide (the page's interpreter, WebAssembly)
+under Node.js: a wheel of the core is built into a temporary folder and installed there, as
+tests/test_pyodide.py does; the page runs the same interpreter inside the browser's worker.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import platform
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "pycore"))
+
+from acidscape.boundary.api import handle  # noqa: E402
+
+HARD = {
+    "temperature_C": 15,
+    "systems": [{"id": "carbonate", "total": 18, "unit": "mg/L as C"}, {"id": "phosphate", "total": 1.0, "unit": "mg/L"},
+                {"id": "sulfate", "total": 60, "unit": "mg/L"}],
+    "ions": [{"id": "calcium", "total": 80, "unit": "mg/L"}, {"id": "magnesium", "total": 12, "unit": "mg/L"},
+             {"id": "sodium", "total": 25, "unit": "mg/L"}, {"id": "potassium", "total": 3, "unit": "mg/L"},
+             {"id": "chloride", "total": 40, "unit": "mg/L"}],
+}
+SAMPLE = {"ionic_strength_M": 0.1,
+          "ions": [{"id": "calcium", "total": 80, "unit": "mg/L"}, {"id": "magnesium", "total": 12, "unit": "mg/L"},
+                   {"id": "chloride", "total": 5, "unit": "mmol/L"}]}
+CASES = {
+    "lead_curve_200": ("solubility", {"scenario": HARD, "metal": "lead", "axis": "pH", "from": 6.5, "to": 10.5,
+                                      "points": 200}),
+    "copper_dic_curve_200": ("solubility", {"scenario": HARD, "metal": "copper", "axis": "DIC", "from": 1,
+                                            "to": 100, "points": 200, "fixed_pH": 7.5}),
+    "edta_titration_401": ("titrate", {"scenario": SAMPLE, "titrant": "EDTA", "titrant_M": 0.01, "sample_mL": 50,
+                                       "fixed_pH": 10, "points": 401}),
+    "conditional_constants_71": ("conditional_constants", {"pH_from": 6, "pH_to": 13, "points": 71}),
+}
+TARGETS_MS = {"lead_curve_200": 200.0}
+
+PYODIDE_RUNNER = r"""
+import { readFileSync } from "node:fs";
+const dir = process.argv[2];
+const { loadPyodide } = await import(dir + "/pyodide.mjs");
+const py = await loadPyodide({ indexURL: dir + "/" });
+const site = py.runPython("import site; site.getsitepackages()[0]");
+py.unpackArchive(new Uint8Array(readFileSync(process.argv[3])), "wheel", { extractDir: site });
+process.stdout.write(py.runPython(readFileSync(process.argv[4], "utf8")));
+"""
+
+PY_BENCH = r"""
+import json, statistics, sys, time
+from acidscape.boundary.api import handle
+cases = json.loads(CASES_JSON)
+out = {"python": sys.version.split()[0], "median_ms": {}, "min_ms": {}}
+for name, (method, params) in cases.items():
+    text = json.dumps(params)
+    reply = json.loads(handle(method, text))
+    assert reply["ok"], reply
+    times = []
+    for _ in range(REPEAT):
+        t = time.perf_counter()
+        handle(method, text)
+        times.append((time.perf_counter() - t) * 1e3)
+    out["median_ms"][name] = statistics.median(times)
+    out["min_ms"][name] = min(times)
+json.dumps(out)
+"""
+
+
+def cpython(repeat: int) -> dict:
+    out = {"median_ms": {}, "min_ms": {}, "median_cpu_ms": {}, "points": {}}
+    for name, (method, params) in CASES.items():
+        text = json.dumps(params)
+        reply = json.loads(handle(method, text))  # warm-up (library, caches) and a check that it works
+        if not reply["ok"]:
+            raise SystemExit(f"{name}: {reply['error']}")
+        out["points"][name] = len(reply["result"].get("points") or reply["result"].get("pH") or [])
+        wall, cpu = [], []
+        for _ in range(repeat):
+            t, c = time.perf_counter(), time.process_time()
+            handle(method, text)
+            wall.append((time.perf_counter() - t) * 1e3)
+            cpu.append((time.process_time() - c) * 1e3)
+        out["median_ms"][name] = statistics.median(wall)
+        out["min_ms"][name] = min(wall)
+        out["median_cpu_ms"][name] = statistics.median(cpu)
+    return out
+
+
+def pyodide(repeat: int) -> dict:
+    pyodide_dir = ROOT / "build_scripts" / "node_modules" / "pyodide"
+    if not pyodide_dir.exists():
+        return {"error": "Pyodide is not installed: run `npm ci --prefix build_scripts`"}
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "--no-index",
+                        "-q", "-w", str(tmp), str(ROOT)], check=True, capture_output=True, timeout=300)
+        wheel = next(tmp.glob("acidscape-*.whl"))
+        runner = tmp / "runner.mjs"
+        runner.write_text(PYODIDE_RUNNER)
+        code = tmp / "bench.py"
+        code.write_text(PY_BENCH.replace("CASES_JSON", repr(json.dumps(CASES))).replace("REPEAT", str(repeat)))
+        proc = subprocess.run(["node", str(runner), str(pyodide_dir), str(wheel), str(code)], capture_output=True,
+                              text=True, timeout=1200)
+        if proc.returncode != 0:
+            return {"error": proc.stderr.strip()[-2000:]}
+        return json.loads(proc.stdout)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--repeat", type=int, default=9)
+    ap.add_argument("--pyodide", action="store_true", help="also time the requests in Pyodide under Node.js")
+    args = ap.parse_args()
+    out = {
+        "python": platform.python_version(),
+        "implementation": platform.python_implementation(),
+        "repeat": args.repeat,
+        "cpython": cpython(args.repeat),
+        "targets_ms": TARGETS_MS,
+        "target_note": "the target is for the page (Pyodide); CPython is usually two to three times faster",
+    }
+    if args.pyodide:
+        out["pyodide"] = pyodide(args.repeat)
+    print(json.dumps(out, indent=2))
+
+
+if __name__ == "__main__":
+    main()
