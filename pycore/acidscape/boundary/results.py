@@ -103,12 +103,17 @@ def component_rows(wm: WaterModel, sol, names: dict[str, str]) -> list[dict]:
 
 
 def saturation_rows(wm: WaterModel, sol) -> list[dict]:
-    """``{"id", "name", "formula", "log_IAP", "log_Ksp", "SI"}`` per solid, highest SI first."""
+    """``{"id", "name", "formula", "log_IAP", "log_Ksp", "SI"}`` per solid, highest SI first.
+
+    ``log_Ksp`` is the constant of the reaction as the source prints it (at the water's
+    temperature, I = 0) and ``log_IAP`` the ion activity product of that same reaction.
+    """
     rows = []
     for s, si in sol.SI.items():
         info = wm.solid_info[s]
+        logK = wm.solid_log10_K[s]
         rows.append({"id": info.id, "name": info.name, "formula": info.formula,
-                     "log_IAP": sol.log10_IAP[s], "log_Ksp": wm.tab.solids[s].log10_Ksp, "SI": si})
+                     "log_IAP": si + logK, "log_Ksp": logK, "SI": si})
     rows.sort(key=lambda r: -r["SI"])
     return rows
 

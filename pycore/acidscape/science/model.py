@@ -130,6 +130,9 @@ class Tableau:
         for s in self.solids:
             if sum(b * self.charges[j] for j, b in s.stoich) != 0:
                 raise ValueError(f"solid {s.id} is not neutral")
+        # derived once: protons per species, and the solve's structure per pattern of inputs
+        object.__setattr__(self, "h_count", tuple(dict(sp.stoich).get(0, 0) for sp in self.species))
+        object.__setattr__(self, "_structures", {})
 
 
 @dataclass
@@ -497,64 +500,22 @@ def equilibrium(
             raise ValueError(f"fixed species {sp.name} must be neutral and hold one component besides H+")
         open_comp.add(others[0])
     # absent components: total zero (and not opened); their species and solids drop out
-    present = [j == 0 or totals[j] > 0.0 or j in open_comp for j in range(m)]
-    species_on = [all(present[j] for j, _ in sp.stoich) for sp in tab.species]
-    solids_on = [all(present[j] for j, _ in s.stoich) for s in tab.solids]
-    for s in allow_solids:
-        if not solids_on[s]:
-            raise InputError(f"{tab.solids[s].id} cannot form: the water holds none of "
-                             + ", ".join(tab.components[j] for j, _ in tab.solids[s].stoich if not present[j]),
-                             field="precipitate")
+    present = tuple(j == 0 or totals[j] > 0.0 or j in open_comp for j in range(m))
+    key = (present, frozenset(open_comp), tuple(allow_solids))
+    structure = tab._structures.get(key)
+    if structure is None:
+        structure = _structure(tab, present, open_comp, allow_solids)
+        if len(tab._structures) < 256:
+            tab._structures[key] = structure
+    species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs, prefer = structure
     # charge balance: T_H = -sum z_j T_j (open components contribute nothing, see module notes)
     if pH is None:
         totals[0] = -sum(tab.charges[j] * totals[j] for j in range(1, m) if j not in open_comp)
-    allowed = [s for s in allow_solids if solids_on[s]]
     warnings: list[str] = []
-
-    # which components are simple (eliminated in closed form)
-    in_constraint = set(open_comp)
-    for s in allowed:
-        in_constraint.update(j for j, _ in tab.solids[s].stoich if j != 0)
-    simple = []
-    for j in range(1, m):
-        if not present[j] or j in in_constraint:
-            continue
-        ok = True
-        for sp, on in zip(tab.species, species_on):
-            if not on:
-                continue
-            aj = dict(sp.stoich).get(j, 0)
-            if aj and (aj != 1 or any(k not in (0, j) for k, _ in sp.stoich)):
-                ok = False
-                break
-        if ok:
-            simple.append(j)
-    simple_set = set(simple)
-    coupled = [j for j in range(m) if present[j] and j not in simple_set]  # H+ first
-    cidx = {j: k for k, j in enumerate(coupled)}
-    ladder_of = {j: [] for j in simple}
-    cpl_species = []
-    for i, (sp, on) in enumerate(zip(tab.species, species_on)):
-        if not on:
-            continue
-        owner = next((j for j, _ in sp.stoich if j in simple_set), None)
-        if owner is not None:
-            ladder_of[owner].append(i)
-        else:
-            cpl_species.append(i)
-    x_coeffs = []
-    for i in cpl_species:
-        v = [0.0] * len(coupled)
-        for j, a in tab.species[i].stoich:
-            v[cidx[j]] = float(a)
-        x_coeffs.append(v)
     T_cpl = [totals[j] if j not in open_comp else 0.0 for j in coupled]
     if pH is not None:
         T_cpl[0] = 0.0
     T_simple = [totals[j] for j in simple]
-    # pivot preference: open components, then other non-H, H+ last
-    prefer = [cidx[j] for j in coupled if j in open_comp] + \
-             [cidx[j] for j in coupled if j not in open_comp and j != 0] + [0]
 
     Imodel_ideal = gamma_of(1, None, 0.1) == 0.0
     strong_I = 0.0
@@ -573,7 +534,8 @@ def equilibrium(
         lgs = [gamma_of(sp.charge, sp.ion_size_A, I) for sp in tab.species]
         lnKp = [LN10 * (sp.log10_K + sum(a * lgc[j] for j, a in sp.stoich) - lgs[i])
                 for i, sp in enumerate(tab.species)]
-        ladders = [[(dict(tab.species[i].stoich).get(0, 0), lnKp[i]) for i in ladder_of[j]] for j in simple]
+        hc = tab.h_count
+        ladders = [[(hc[i], lnKp[i]) for i in ladder_of[j]] for j in simple]
         seen = set()
         for _round in range(4 * len(tab.solids) + 8):
             C, d = [], []
@@ -612,7 +574,7 @@ def equilibrium(
             st = _assemble(tab, totals, coupled, x, simple, ladder_of, lnKp, lgc, lgs, species_on, open_comp, pH)
             x_state.update((j, v) for j, v in enumerate(st["ln_free"]) if v > -math.inf)
             # amounts of the active solids from the mass balances they close
-            amounts = _amounts(tab, active, st["resid"], coupled, open_comp, pH)
+            amounts = _amounts(tab, active, st["resid"], coupled, open_comp, pH, totals)
             neg = [(n, s) for s, n in zip(active, amounts) if n < -1e-13 * max(1e-30, max(totals[1:] or [0]))]
             if neg:
                 active.remove(min(neg)[1])
@@ -633,7 +595,7 @@ def equilibrium(
             st["SI"] = si
             st["lgc"], st["lgs"] = lgc, lgs
             return st
-        st["amounts"] = dict(zip(active, _amounts(tab, active, st["resid"], coupled, open_comp, pH)))
+        st["amounts"] = dict(zip(active, _amounts(tab, active, st["resid"], coupled, open_comp, pH, totals)))
         st["rtol"] = rtol
         st["SI"] = _saturation(tab, st["ln_free"], lgc, solids_on)
         st["lgc"], st["lgs"] = lgc, lgs
@@ -703,6 +665,54 @@ def equilibrium(
     )
 
 
+def _structure(tab: Tableau, present, open_comp, allow_solids):
+    """Which species and solids are on, which components are simple, and the coupled problem's shape."""
+    m = len(tab.components)
+    species_on = [all(present[j] for j, _ in sp.stoich) for sp in tab.species]
+    solids_on = [all(present[j] for j, _ in s.stoich) for s in tab.solids]
+    for s in allow_solids:
+        if not solids_on[s]:
+            raise InputError(f"{tab.solids[s].id} cannot form: the water holds none of "
+                             + ", ".join(tab.components[j] for j, _ in tab.solids[s].stoich if not present[j]),
+                             field="precipitate")
+    allowed = [s for s in allow_solids if solids_on[s]]
+    in_constraint = set(open_comp)
+    for s in allowed:
+        in_constraint.update(j for j, _ in tab.solids[s].stoich if j != 0)
+    # a component is simple when every species holding it holds it once and otherwise only H+
+    not_simple = set(in_constraint)
+    for sp, on in zip(tab.species, species_on):
+        if not on:
+            continue
+        comps = [j for j, _ in sp.stoich if j != 0]
+        if len(comps) > 1 or any(a != 1 for j, a in sp.stoich if j != 0):
+            not_simple.update(comps)
+    simple = [j for j in range(1, m) if present[j] and j not in not_simple]
+    simple_set = set(simple)
+    coupled = [j for j in range(m) if present[j] and j not in simple_set]  # H+ first
+    cidx = {j: k for k, j in enumerate(coupled)}
+    ladder_of = {j: [] for j in simple}
+    cpl_species = []
+    for i, (sp, on) in enumerate(zip(tab.species, species_on)):
+        if not on:
+            continue
+        owner = next((j for j, _ in sp.stoich if j in simple_set), None)
+        if owner is not None:
+            ladder_of[owner].append(i)
+        else:
+            cpl_species.append(i)
+    x_coeffs = []
+    for i in cpl_species:
+        v = [0.0] * len(coupled)
+        for j, a in tab.species[i].stoich:
+            v[cidx[j]] = float(a)
+        x_coeffs.append(v)
+    # pivot preference: open components, then other non-H, H+ last
+    prefer = [cidx[j] for j in coupled if j in open_comp] + \
+             [cidx[j] for j in coupled if j not in open_comp and j != 0] + [0]
+    return species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs, prefer
+
+
 def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp) -> list[float]:
     """Initial y: the last answer where known; else pH 7 (or the given pH) and each component
     spread over its own protonated forms at that pH, as if it formed no complex."""
@@ -736,7 +746,7 @@ def _assemble(tab, totals, coupled, x, simple, ladder_of, lnKp, lgc, lgs, specie
             conc[i] = math.exp(lnKp[i] + sum(a * ln_free[j] for j, a in sp.stoich))
     for j in simple:
         idx = ladder_of[j]
-        es = [lnKp[i] + dict(tab.species[i].stoich).get(0, 0) * xH for i in idx]
+        es = [lnKp[i] + tab.h_count[i] * xH for i in idx]
         top = max(es)
         lnS = top + math.log(sum(math.exp(e - top) for e in es))
         ln_free[j] = math.log(totals[j]) - lnS
@@ -771,16 +781,18 @@ def _assemble(tab, totals, coupled, x, simple, ladder_of, lnKp, lgc, lgs, specie
     return {"conc": conc, "ln_free": ln_free, "resid": resid, "finish": finish}
 
 
-def _amounts(tab, active, resid, coupled, open_comp, pH) -> list[float]:
-    """Moles of each active solid per litre: least squares over the balanced components."""
+def _amounts(tab, active, resid, coupled, open_comp, pH, totals) -> list[float]:
+    """Moles of each active solid per litre: least squares over the balanced components,
+    each balance weighted by its own size so that a trace metal closes as well as a major ion."""
     if not active:
         return []
     rows, rhs = [], []
     for j in coupled:
         if j in open_comp or (j == 0 and pH is not None):
             continue
-        rows.append([float(dict(tab.solids[s].stoich).get(j, 0)) for s in active])
-        rhs.append(resid[j])
+        w = 1.0 / max(abs(totals[j]), abs(resid[j]), 1e-300)
+        rows.append([w * float(dict(tab.solids[s].stoich).get(j, 0)) for s in active])
+        rhs.append(w * resid[j])
     return _lstsq(rows, rhs, len(active))
 
 

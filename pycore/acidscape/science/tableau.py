@@ -143,6 +143,7 @@ class WaterModel:
             self._ref_logK[("ion", ion.key)] = (((j, 1),), 0.0)
         solids: list[Solid] = []
         self.solid_info: list = []
+        self.solid_log10_K: list[float] = []  # as printed (dissolution into the reference species), at T
         self.complex_info: dict[int, object] = {}
         if complexes:
             for cx in library.complexes():
@@ -165,6 +166,7 @@ class WaterModel:
                 self.solid_notes[len(solids)] = notes
             solids.append(Solid(sd.id, stoich, logK + shift))
             self.solid_info.append(sd)
+            self.solid_log10_K.append(logK)
         self.tab = Tableau(tuple(names), tuple(charges), tuple(sizes), tuple(species), tuple(solids))
         self.totals = totals
         self.solid_index = {s.id: k for k, s in enumerate(solids)}
