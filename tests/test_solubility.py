@@ -188,6 +188,7 @@ def test_every_other_candidate_is_undersaturated_and_the_model_agrees():
     assert chk["SI"][chk["controlling_solid"]] == pytest.approx(0.0, abs=1e-8)
     assert max(chk["SI"].values()) <= 1e-8
     assert chk["dissolved_relative_difference"] < 1e-9
+    assert chk["ionic_strength_relative_difference"] < 1e-9
 
 
 def test_band_brackets_the_value_and_follows_the_recorded_spread():

@@ -33,28 +33,34 @@ present at equilibrium when every candidate may form is the one that needs the l
 metal activity (every other candidate then has SI < 0). The module therefore *minimises
 over the solids*: it solves the water with the solid that the metal-free water makes the
 least soluble, then checks the saturation index of every other candidate and moves to the
-most oversaturated one until none is above 0 (1e-10). This is the method the brief calls
-"minimise over solids"; it is equivalent to adding an excess of metal with every candidate
-allowed to precipitate, except that the ligands a precipitating solid would take out of the
-water stay in it (here the DIC and orthophosphate are the water's final values, as in the
-solubility diagrams of Schock and co-workers [3]_).
+most oversaturated one until none is above 0 (1e-10). This is equivalent to adding an
+excess of metal with every candidate allowed to precipitate, except that the ligands a
+precipitating solid would take out of the water stay in it (here the DIC and orthophosphate
+are the water's final values, as in the solubility diagrams of Schock and co-workers [3]_).
+A point whose dissolved metal would exceed :data:`MAX_DISSOLVED_M` (0.01 mol/L, far beyond
+the dilute waters the constants describe: a very soluble solid at low pH) is reported
+without a value.
 
 Solver
 ------
-The unknowns are the log free concentrations of the water's components other than H+ and
-the metal. Without the metal the mass balances are the gradient of a convex function
-(the tableau's dual, as in :mod:`acidscape.science.model`) and Newton's method with an
-Armijo line search on it converges from any start; that solve starts every new curve. With
-the metal tied to a solid the Jacobian is no longer symmetric (the metal species hold
-ligands and depend on them through the solid), and Newton's method on the mass balances
-with a backtracking line search on their scaled squared residual finishes the job, started
-from the metal-free answer or from the previous point of the curve. Each point of a curve
-is warm-started from the one before, so most points take two or three Newton steps; the
-solve is specialised to fixed pH with one metal solid, the case the general model handles by
-its active-set loop at a much higher cost per point. At one point of every curve the result
-is checked against :func:`acidscape.science.model.equilibrium` with the metal total set to
-the dissolved value found (the controlling solid must be at SI 0 and every other candidate
-at SI <= 0), and the result reports that check.
+The unknowns are the ln free concentrations of the water's components other than H+ and
+the metal and, unless the activities are ideal or the ionic strength is given, the ionic
+strength itself (equation I = 1/2 sum z_i^2 c_i). Without the metal, at a fixed ionic
+strength, the mass balances are the gradient of a convex function (the tableau's dual, as
+in :mod:`acidscape.science.model`) and Newton's method with an Armijo line search on it
+converges from any start; that solve starts a curve (and any point where a warm start
+fails). With the metal tied to a solid the Jacobian is no longer symmetric (the metal
+species hold ligands and depend on them through the solid), and Newton's method on the
+mass balances and the ionic strength together, with a backtracking line search on their
+scaled squared residual, finishes the job to 1e-10 relative (:data:`RTOL`). Each point of
+a grid starts from a quadratic extrapolation of the three before it, so most points take
+one Newton step and two evaluations. The solve is specialised to a fixed pH with one metal
+solid, a case the general model reaches through its active-set loop and ionic-strength
+iteration at several times the cost per point. At one point of every curve the result is
+checked against :func:`acidscape.science.model.equilibrium` at that point's ionic strength
+with the metal total set to the dissolved value found (the controlling solid must be at
+SI 0, every other candidate at SI <= 0, and the species must give the ionic strength back);
+the result reports that check as ``model_check``.
 
 Spread of the constants
 -----------------------
@@ -74,8 +80,10 @@ Functions and classes
 ---------------------
 FixedPHSolver(wm, metal)            the water at a fixed pH, optionally saturated with a metal solid
 solubility_curve(parsed, ...)       dissolved metal along a pH, DIC or orthophosphate grid (dict)
+metal_water(parsed, metal, need)    the water's tableau with the metal (and axis ligands) as components
 candidate_solids(wm, metal)         ids of the database solids that hold the metal
 constants_report(wm, metal, ...)    the metal's solids and complexes with constants and sources
+temperature_notes(wm, ...)          temperature notes of the given complexes and solids, condensed
 
 References
 ----------
@@ -205,6 +213,7 @@ class _AtI:
     lgc: list[float]
     lgs: list[float]
     xH: float
+    lgs_key: list[float] = dataclasses.field(default_factory=list)  # log10 gamma per (charge, size) key
 
 
 @dataclasses.dataclass
@@ -373,12 +382,13 @@ class FixedPHSolver:
             for j, b in stoich:
                 v -= b * lgc[j]
             kS[s] = LN10 * v - bh * xH
-        return _AtI(I, base, None, kS, None, lgc, lgs, xH)
+        return _AtI(I, base, None, kS, None, lgc, lgs, xH, lg)
 
     def _derivatives(self, lay: _Layout, k: _AtI) -> None:
         """d(ln K' + a_H x_H)/dI per species and d(right-hand side)/dI per solid, into ``k``.
 
-        d log10 gamma / dI by a central difference of the activity model (step 1e-5 I).
+        d log10 gamma / dI by a forward difference of the activity model (step 1e-6 I; the
+        Newton step needs it to a few digits only).
         """
         if k.dbase is not None:
             return
@@ -386,8 +396,8 @@ class FixedPHSolver:
         I = k.I
         if I > 0.0 and not self.ideal:
             g = self.wm.gamma_of
-            h = 1e-5 * I
-            dlg = [(g(z, a, I + h) - g(z, a, I - h)) / (2.0 * h) for z, a in keys]
+            h = 1e-6 * I
+            dlg = [(g(z, a, I + h) - v) / h for (z, a), v in zip(keys, k.lgs_key)]
         else:
             dlg = [0.0] * len(keys)
         dlgc = [dlg[q] for q in comp_q]
@@ -869,10 +879,12 @@ def _band(solver: FixedPHSolver, st: FixedPHState, shifts_species, shifts_solids
             best = (xM, t)
     xM, t = best
     total = 0.0
-    for k, (i, am) in enumerate(zip(lay.species, lay.aM)):
-        if not am:
-            continue
-        d = shifts_species.get(i)
+    metal_pos = getattr(lay, "metal_pos", None)
+    if metal_pos is None:
+        metal_pos = lay.metal_pos = [k for k, am in enumerate(lay.aM) if am]
+    for k in metal_pos:
+        am = lay.aM[k]
+        d = shifts_species.get(lay.species[k])
         e = base[k] + (LN10 * d[sign] if d else 0.0) + _lse_dot(lay.coef[k], x) + am * xM
         total += am * math.exp(e)
     return total, wm.solid_info[t].id
@@ -978,7 +990,8 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
     jC = wm.comp_index.get("carbonate")
     jP = wm.comp_index.get("phosphate")
     jAxis = wm.comp_index[AXIS_COMPONENT[axis]] if axis in AXIS_COMPONENT else None
-    metal_species = [i for i, sp in enumerate(wm.tab.species) if dict(sp.stoich).get(jM, 0)]
+    metal_species = [(i, dict(sp.stoich)[jM], sp.name) for i, sp in enumerate(wm.tab.species)
+                     if dict(sp.stoich).get(jM, 0)]
     out_points = []
     states = []
     st = None
@@ -1030,7 +1043,6 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
 
 
 def _point_row(wm, solver, st, totals, jC, jP, mass, metal_species, sp_shift, sd_shift) -> dict:
-    tab = wm.tab
     solid = wm.solid_info[st.solid].id if st.solid is not None else None
     diss = st.dissolved_M if st.solid is not None and not st.above_limit else None
     lo = hi = lo_s = hi_s = None
@@ -1039,9 +1051,9 @@ def _point_row(wm, solver, st, totals, jC, jP, mass, metal_species, sp_shift, sd
         hi, hi_s = _band(solver, st, sp_shift, sd_shift, 1)
     species = []
     if diss:
-        jM = solver.jM
-        shares = sorted(((dict(tab.species[i].stoich)[jM] * st.conc[i] / diss, tab.species[i].name)
-                         for i in metal_species if st.conc[i] > 0), reverse=True)
+        conc = st.conc
+        shares = sorted(((am * conc[i] / diss, name) for i, am, name in metal_species if conc[i] > 0),
+                        reverse=True)
         species = [{"name": n, "fraction": f} for f, n in shares[:4] if f >= 1e-3]
     return {
         "pH": st.pH,
@@ -1066,14 +1078,18 @@ def _model_check(wm, solver, st, totals) -> dict | None:
         return None
     tot = list(totals)
     tot[solver.jM] = st.dissolved_M
+    # at the point's ionic strength (one solve); the model's species must give that ionic strength back
     sol = equilibrium(wm.tab, tot, T=wm.T, gamma_of=wm.gamma_of, pH=st.pH, fixed_species={},
-                      I_fixed=wm.I_fixed)
+                      I_fixed=wm.I_fixed if wm.I_fixed is not None else st.I)
     jM = solver.jM
     held = sum(dict(sp.stoich).get(jM, 0) * c for sp, c in zip(wm.tab.species, sol.conc))
+    I_species = 0.5 * sum(sp.charge ** 2 * c for sp, c in zip(wm.tab.species, sol.conc))
     return {
         "pH": st.pH,
         "SI": {wm.solid_info[s].id: sol.SI.get(s) for s in solver.candidates if s in sol.SI},
         "controlling_solid": wm.solid_info[st.solid].id,
         "ionic_strength_M": sol.I,
+        "ionic_strength_relative_difference": (0.0 if solver.ideal or wm.I_fixed is not None
+                                               else abs(I_species - st.I) / st.I),
         "dissolved_relative_difference": abs(held - st.dissolved_M) / st.dissolved_M,
     }
