@@ -265,6 +265,9 @@ def test_basis_states_an_equilibrium_estimate_not_tap_water():
     assert "not a prediction of lead at a tap" in out["basis"]
     assert "Equilibrium solubility estimate" in out["basis"]
     assert out["band_basis"] and out["method"].startswith("minimum over the candidate solids")
+    # chloride and orthophosphate: chloropyromorphite controls, with a note on the usual choice
+    assert {p["controlling_solid"] for p in out["points"]} == {"chloropyromorphite"}
+    assert any("hydroxypyromorphite" in w for w in out["warnings"])
 
 
 def test_water_open_to_co2_is_closed_at_its_equilibrium_dic():

@@ -1014,6 +1014,15 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
         warnings.append(f"at {len(above)} point(s) the dissolved {metal} would exceed {MAX_DISSOLVED_M:g} mol/L "
                         f"({MAX_DISSOLVED_M * mass:.3g} g/L), far beyond the dilute waters the constants describe: "
                         "no value there (the solid named is the least soluble at the water's ligands)")
+    controlling = {p["controlling_solid"] for p in out_points if p["dissolved_M"] is not None}
+    if "chloropyromorphite" in controlling:
+        warnings.append("chloropyromorphite, the least soluble lead phosphate of the database, controls where the "
+                        "water holds chloride; lead-solubility work for orthophosphate treatment commonly uses "
+                        "hydroxypyromorphite (Schock, Wagner & Oliphant 1996, from memory), which gives higher values: "
+                        "name the candidate solids to compare")
+    if metal == "copper" and controlling & {"tenorite", "malachite", "azurite"}:
+        warnings.append("tenorite, malachite and azurite are aged copper scales; copper in new plumbing follows the "
+                        "more soluble copper(II) hydroxide: name the candidate solids to compare")
     nobody = [p for p in out_points if p["controlling_solid"] is None]
     if nobody:
         warnings.append(f"at {len(nobody)} point(s) no candidate solid can form (a component it needs is "
