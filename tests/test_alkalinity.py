@@ -17,6 +17,8 @@ from acidscape.operations.alkalinity import (
 from acidscape.boundary.api import solve
 from acidscape.errors import InputError
 
+import reference_model
+
 MM = "mmol/L"
 
 
@@ -121,7 +123,8 @@ def test_alkalinities_against_an_independent_acid_titration(totals, na, cl):
     # Fixed-end-point alkalinity = HCl per litre that brings the water to pH 4.5 (SM 2320 B), found
     # here by brentq on an independent charge balance (ideal, no dilution). The equivalence total
     # equals the conservative sum: strong charge + sum C_T z(reference species) (Stumm & Morgan ch. 4).
-    sc = {"activity": "ideal", "systems": [{"id": k, "total": v, "unit": MM} for k, v in totals.items()],
+    sc = {"activity": "ideal", "complexes": False,
+          "systems": [{"id": k, "total": v, "unit": MM} for k, v in totals.items()],
           "ions": [{"id": "Na+", "total": na, "unit": MM}, {"id": "Cl-", "total": cl, "unit": MM}]}
     out = solve(sc)
     pKw = out["pKw"]
@@ -158,3 +161,62 @@ def test_non_carbonate_contributions_are_listed():
     total = sum(c["meq_per_L"] for c in out["alkalinity"]["contributions"])
     assert total == pytest.approx(out["alkalinity"]["equivalence_point"]["total_meq_per_L"], rel=1e-12)
     assert math.isfinite(out["alkalinity"]["acidity"]["mineral_meq_per_L"])
+
+
+# --- Complexes: every ion pair counts the protons of its components' reference species -----------
+
+HARD = {"temperature_C": 18, "activity": "davies",
+        "systems": [{"id": "carbonate", "total": 4.0, "unit": MM}, {"id": "sulfate", "total": 1.0, "unit": MM}],
+        "ions": [{"id": "calcium", "total": 2.0, "unit": MM}, {"id": "magnesium", "total": 1.0, "unit": MM},
+                 {"id": "sodium", "total": 2.0, "unit": MM}, {"id": "chloride", "total": 2.0, "unit": MM}]}
+
+
+def test_hard_water_alkalinity_with_ion_pairs_against_the_reference_solver():
+    out = solve(HARD)
+    alk = out["alkalinity"]
+    # The equivalence-point total alkalinity is conservative (Stumm & Morgan ch. 4): the strong
+    # ions' charge plus each system's total times the charge of its reference species
+    # (carbonate: H2CO3*, 0; sulfate: SO4-2, -2), whatever the ion pairs.
+    conservative = (2 * 2.0 + 2 * 1.0 + 2.0 - 2.0 - 2 * 1.0) * 1e-3
+    assert alk["equivalence_point"]["total_meq_per_L"] == pytest.approx(conservative * 1e3, rel=1e-10)
+    # The same from the independent reference's species (tests/reference_model.py): each species
+    # counts the protons its components' reference species hold beyond its own (H2CO3* holds 2
+    # over CO3-2; CaCO3° counts 2, CaHCO3+ 1, MgOH+ 1, CaSO4° 0).
+    ref = reference_model.solve(HARD)
+    r = {"carbonate": 2, "sulfate": 0}
+    total = 0.0
+    for name, c in ref["species"].items():
+        holds = ref["species_holds"][name]
+        total += c * (sum(a * r.get(j, 0) for j, a in holds.items() if j != "H+") - holds.get("H+", 0))
+    assert alk["equivalence_point"]["total_meq_per_L"] == pytest.approx(total * 1e3, rel=1e-8)
+    # Fixed end point: the strong acid that takes the sample to pH 4.5 at its ionic strength is
+    # the charge the reference leaves at pH 4.5 (the strong anion added carries it).
+    at_45 = reference_model.solve(dict(HARD, pH=4.5, ionic_strength_M=out["ionic_strength_M"]))
+    assert alk["fixed_end_point"]["total_meq_per_L"] == pytest.approx(at_45["charge_balance_eq_per_L"] * 1e3,
+                                                                       rel=1e-8)
+    # The complexes' share is listed, and every share adds up to the total.
+    contrib = {c["source"]: c for c in alk["contributions"]}
+    assert contrib["complexes"]["meq_per_L"] > 0
+    assert {s["name"] for s in contrib["complexes"]["species"]} >= {"CaHCO3+", "CaCO3"}
+    assert sum(c["meq_per_L"] for c in alk["contributions"]) == pytest.approx(
+        alk["equivalence_point"]["total_meq_per_L"], rel=1e-12)
+
+
+def test_without_complexes_the_report_is_the_acid_base_one():
+    # Invariant of the one-model change: with complexes off the fixed-end-point alkalinity is the
+    # acid an independent brentq titration needs (as above), and the equivalence pH is where that
+    # acid-base alkalinity vanishes, to 1e-9 pH.
+    sc = dict(HARD, complexes=False, activity="ideal")
+    out = solve(sc)
+    pKw = out["pKw"]
+    syss = []
+    for s in out["systems"]:
+        sy = library.get_system(s["id"])
+        syss.append((s["pKa"], [sp.charge for sp in sy.species], s["total_M"]))
+    strong = (2 * 2.0 + 2 * 1.0 + 2.0 - 2.0) * 1e-3
+    assert out["pH"] == pytest.approx(_closed_pH(syss, strong, pKw), abs=1e-9)
+    acid = brentq(lambda a: _closed_pH(syss, strong - a, pKw) - 4.5, 0.0, 0.05, xtol=1e-16)
+    assert out["alkalinity"]["fixed_end_point"]["total_meq_per_L"] == pytest.approx(acid * 1e3, rel=1e-9)
+    eq_pH = out["alkalinity"]["equivalence_point"]["total_equivalence_pH"]
+    acid_eq = out["alkalinity"]["equivalence_point"]["total_meq_per_L"] * 1e-3
+    assert _closed_pH(syss, strong - acid_eq, pKw) == pytest.approx(eq_pH, abs=1e-9)

@@ -27,6 +27,8 @@ from acidscape.boundary import api
 from acidscape.boundary.buffer_api import buffer_curve_of_water
 from reference import alphas_ref
 
+import reference_model
+
 
 def _base_needed(pH, result):
     """Strong base per litre that brings the closed water to ``pH`` at fixed totals and I [eq/L].
@@ -51,13 +53,15 @@ def _base_needed(pH, result):
 
 WATERS = [
     # a bicarbonate water with phosphate and ammonium, Davies activities (common practice
-    # for natural waters): 2 mmol/L NaHCO3-like alkalinity
-    {"systems": [{"id": "carbonate", "total": 2.2, "unit": "mmol/L"},
+    # for natural waters): 2 mmol/L NaHCO3-like alkalinity; complexes off, as the reference
+    # charge balance above is the acid-base one
+    {"complexes": False, "systems": [{"id": "carbonate", "total": 2.2, "unit": "mmol/L"},
                  {"id": "phosphate", "total": 0.1, "unit": "mmol/L"},
                  {"id": "ammonium", "total": 0.2, "unit": "mmol/L"}],
      "ions": [{"id": "Na+", "total": 2.0, "unit": "mmol/L"}, {"id": "Cl-", "total": 0.3, "unit": "mmol/L"}]},
     # the same described by measured pH and alkalinity, at 12 °C
-    {"temperature_C": 12, "measured": {"pH": 7.6, "alkalinity": {"value": 120, "unit": "mg/L as CaCO3"}}},
+    {"temperature_C": 12, "complexes": False,
+     "measured": {"pH": 7.6, "alkalinity": {"value": 120, "unit": "mg/L as CaCO3"}}},
     # ideal activities, acetic acid alone
     {"activity": "ideal", "systems": [{"id": "acetic", "total": 0.01}]},
 ]
@@ -119,3 +123,35 @@ def test_through_handle_and_bad_input():
         assert not err["ok"], params
         assert err["error"]["field"] == field, err
         assert err["error"]["message"], err
+
+
+HARD = {"temperature_C": 18, "activity": "davies",
+        "systems": [{"id": "carbonate", "total": 4.0, "unit": "mmol/L"}, {"id": "sulfate", "total": 1.0, "unit": "mmol/L"},
+                    {"id": "phosphate", "total": 0.05, "unit": "mmol/L"}],
+        "ions": [{"id": "calcium", "total": 2.0, "unit": "mmol/L"}, {"id": "magnesium", "total": 1.0, "unit": "mmol/L"},
+                 {"id": "sodium", "total": 2.0, "unit": "mmol/L"}, {"id": "chloride", "total": 2.1, "unit": "mmol/L"}]}
+
+
+@pytest.mark.parametrize("solver", ["acidscape", "reference"])
+def test_beta_with_complexes_is_the_derivative_of_the_charge_at_fixed_pH(solver):
+    # With ion pairs (CaHCO3+, CaCO3°, MgHCO3+, CaHPO4° ...) beta is still dC_B/dpH of the closed
+    # water at its ionic strength: the base per litre that holds pH is minus the charge the
+    # water leaves at that pH, so beta = -d(charge)/dpH, differentiated numerically by mpmath.diff
+    # (a general reference library) over solves at fixed pH and ionic strength, by acidscape.solve
+    # itself and by the independent scipy reference (tests/reference_model.py).
+    res = api.solve(HARD)
+    I = res["ionic_strength_M"]
+
+    def charge(pH):
+        sc = dict(HARD, pH=float(pH), ionic_strength_M=I)
+        if solver == "acidscape":
+            return api.solve(sc)["charge_balance_residual_eq_per_L"]
+        return reference_model.solve(sc)["charge_balance_eq_per_L"]
+
+    out = buffer_curve_of_water({"scenario": HARD, "pH_min": 5.0, "pH_max": 10.0, "points": 6})
+    for pH, beta in zip(out["pH"] + [res["pH"]], out["beta_eq_per_L_per_pH"] + [out["beta_at_water_pH_eq_per_L_per_pH"]]):
+        fd = -float(mpmath.diff(charge, pH, h=1e-3))
+        assert beta == pytest.approx(fd, rel=2e-6), pH
+    # the capacity between two pH values is the difference of those charges
+    cap = buffer_curve_of_water({"scenario": HARD, "points": 2, "capacity": {"from_pH": 6.0, "to_pH": 9.0}})
+    assert cap["capacity"]["base_eq_per_L"] == pytest.approx(charge(6.0) - charge(9.0), rel=1e-9)

@@ -1,58 +1,71 @@
 """Alkalinity and acidity of a water, following Standard Methods 2320 B and the proton reference level.
 
-Two definitions are computed and labelled, because labs and textbooks use both:
+Two definitions are computed and labelled, because labs and textbooks use both. Both are
+evaluated with the one equilibrium model (:mod:`acidscape.science.model`), so ion pairs and
+complexes (CaCO3°, CaHCO3+, MgOH+ ...) count exactly as their protons say.
 
 *Fixed end point* (what a lab titration to a set pH reports, Standard Methods
 2320 B [1]_): the strong acid, per litre of sample, that brings the water to
-pH 4.5 (total alkalinity, "T") or pH 8.3 (phenolphthalein alkalinity, "P").
-It is computed exactly from the charge terms (see :mod:`acidscape.operations.buffer`),
+pH 4.5 (total alkalinity, "T") or pH 8.3 (phenolphthalein alkalinity, "P"),
 
 .. math::
 
-    A(\\mathrm{pH}_e) = P(\\mathrm{pH}) - P(\\mathrm{pH}_e), \\qquad
-    P = [OH^-] - [H^+] + \\sum C_T \\bar{\\imath},
+    A(\\mathrm{pH}_e) = T_H(\\mathrm{pH}_e) - T_H(\\mathrm{pH}), \\qquad
+    T_H = \\sum_i a_{iH}\\, c_i,
 
-at the sample's ionic strength, dilution by the titrant neglected. As the
-standard reports it, P is zero when the sample's pH is already at or below
-8.3, and T is zero at or below pH 4.5 (the water then has mineral acidity).
+where :math:`T_H` is the proton total the species hold (``a_iH`` the protons of species i
+relative to the components: 1 for H+, -1 for OH-, 2 for H2CO3*, 1 for CaHCO3+, -1 for
+CaOH+), both at the sample's other totals and ionic strength (dilution by the titrant
+neglected): strong acid adds only protons and an inert anion. As the standard reports
+it, P is zero when the sample's pH is already at or below 8.3, and T is zero at or
+below pH 4.5 (the water then has mineral acidity).
 
 *Equivalence point* (proton reference level, Stumm & Morgan [2]_ ch. 4, from
 memory): alkalinity is the excess of proton acceptors over donors relative to a
-reference species of each system,
+reference species of each component,
 
 .. math::
 
-    \\mathrm{Alk} = [OH^-] - [H^+] + \\sum_{systems} C_T\\,(\\bar{\\imath} - r),
+    \\mathrm{Alk} = \\sum_i c_i \\Big(\\sum_{j \\ne H} a_{ij}\\, r_j - a_{iH}\\Big),
 
-where ``r`` is the number of protons the reference species has released. For
-total alkalinity the reference is H2CO3* and, for every other system, the
-species that predominates at the carbonate end point: ``r`` counts the pKa
-values below 4.5 (H2PO4-, NH4+, B(OH)3, H4SiO4, HSO4- -> SO4-2 ...). For
-phenolphthalein (carbonate) alkalinity the reference is HCO3- and ``r`` counts
-the pKa values below 8.3 (HPO4-2 for phosphate). Total alkalinity so defined
-is conservative: it equals the net charge of the strong ions plus each
-system's total times the charge of its reference species. The equivalence
-pH is where the same expression vanishes, the pH a titration reaches when
-exactly that much acid has been added.
+where ``r_j`` is the number of protons the reference species of component j holds
+(the component being the fully deprotonated base; metals and strong ions: 0). For total
+alkalinity the reference is H2CO3* (r = 2) and, for every other system, the species that
+predominates at the carbonate end point: it has released as many protons as there are
+pKa values below 4.5 (H2PO4-, NH4+, B(OH)3, H4SiO4, SO4-2 ...). For phenolphthalein
+(carbonate) alkalinity the reference is HCO3- and the pKa values below 8.3 count (HPO4-2
+for phosphate). So CaCO3° counts 2 in the total alkalinity, CaHCO3+ 1 and CaOH+ 1, as a
+titration with strong acid to the H2CO3* end point would find. Total alkalinity so
+defined is conservative: it equals the net charge of the strong ions plus each system's
+total times the charge of its reference species. The equivalence pH is where the same
+expression vanishes at the sample's totals and ionic strength, the pH a titration reaches
+when exactly that much acid has been added.
 
 The hydroxide / carbonate / bicarbonate split is given twice: from P and T by
 the relationship table of Standard Methods 2320 B [1]_ (from memory), and
-from the speciation ([OH-], 2[CO3-2], [HCO3-]) with the non-carbonate bases
-listed beside it. Acidity is reported as its negative counterparts: mineral
-acidity = -(total alkalinity) and CO2 (phenolphthalein) acidity =
--(phenolphthalein alkalinity), both on the equivalence-point definition.
+from the speciation: [OH-] and hydroxo complexes, carbonate units held as CO3 (x 2) and
+as HCO3 (x 1), free or paired with metals; the non-carbonate bases are listed beside it.
+Acidity is reported as its negative counterparts: mineral acidity = -(total alkalinity)
+and CO2 (phenolphthalein) acidity = -(phenolphthalein alkalinity), both on the
+equivalence-point definition.
 
 mg/L as CaCO3 = meq/L x 50.04 (half the molar mass of CaCO3 from IUPAC 2021
 atomic weights, 100.087 g/mol; Standard Methods 2320 B uses 50 000 mg CaCO3
 per equivalent with its rounded weights, from memory).
 
+A water open to CO2 is taken as the sample in the bottle (closed at its carbonate
+total); solids present are left out (a filtered sample).
+
 Functions
 ---------
 meq_to_mg_as_CaCO3(meq), mg_as_CaCO3_to_meq(mg)   the 50.04 conversion
-reference_index(pKa, pH_ref)                       r of a system at a reference pH
-proton_alkalinity(pH, systems, pH_ref, ...)        equivalence-point alkalinity [eq/L] and terms
+reference_index(pKa, pH_ref)                       protons a system's reference species has released
+reference_levels(wm, pH_ref)                       r_j of every component of a water
+equivalence_alkalinity(sol, r)                     Alk above [eq/L] for a solved water
+end_point_alkalinity(wm, sol, pH_e)                A(pH_e) above [eq/L] and the water at pH_e
+equivalence_pH(wm, sol, pH_ref)                    pH where Alk of that reference level vanishes
 sm2320_split(P, T)                                 hydroxide / carbonate / bicarbonate from P and T
-alkalinity_report(eq)                              everything above for a solved water (JSON-ready)
+alkalinity_report(wm, sol)                         everything above for a solved water (JSON-ready)
 
 References
 ----------
@@ -66,11 +79,10 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
-_LN10 = math.log(10.0)
-
-from .buffer import _cum, _moments, proton_level
-from ..constants import M_CaCO3
+from ..checks import number
+from ..constants import LN10, M_CaCO3
 from ..errors import ConvergenceError, InputError
+from .probe import aqueous_totals, derivatives, from_equilibrium, held, resolve
 
 #: mg of CaCO3 per meq: half the molar mass of CaCO3 (IUPAC 2021 weights) [mg/meq].
 MG_CACO3_PER_MEQ = M_CaCO3 / 2.0
@@ -78,6 +90,9 @@ MG_CACO3_PER_MEQ = M_CaCO3 / 2.0
 TOTAL_END_POINT_PH = 4.5
 #: Phenolphthalein end point, Standard Methods 2320 B (from memory) [-].
 PHENOLPHTHALEIN_END_POINT_PH = 8.3
+#: Bracket of the equivalence-pH search [-] and its tolerance [-].
+EQUIVALENCE_BRACKET = (-2.0, 18.0)
+EQUIVALENCE_TOL = 1e-11
 
 
 def meq_to_mg_as_CaCO3(meq_per_L: float) -> float:
@@ -137,92 +152,6 @@ def reference_index(pKa: Sequence[float], pH_ref: float) -> int:
     return sum(1 for v in pKa if v < pH_ref)
 
 
-def proton_alkalinity(pH: float, systems: Sequence, pH_ref: float, pKw: float = 14.0,
-                      log10_gamma_H: float = 0.0, log10_gamma_OH: float = 0.0) -> tuple[float, list[float]]:
-    """Equivalence-point alkalinity relative to the reference level of ``pH_ref``.
-
-    .. math::
-
-        \\mathrm{Alk} = [OH^-] - [H^+] + \\sum C_T (\\bar{\\imath} - r)
-
-    Parameters
-    ----------
-    pH : float
-        Meter pH of the water [-]
-    systems : sequence of (sequence of float, sequence of float, float)
-        Per system: thermodynamic pKa (to choose the reference) [-], pKa on the meter-pH
-        scale at the water's ionic strength [-], total [mol/L]
-    pH_ref : float
-        4.5 (total alkalinity) or 8.3 (phenolphthalein alkalinity) [-]
-    pKw : float
-        Ion product of water [-]
-    log10_gamma_H, log10_gamma_OH : float
-        log10 activity coefficients of H+ and OH- [-]
-
-    Returns
-    -------
-    tuple of (float, list of float)
-        Alkalinity [eq/L] and each system's contribution C_T (mean(i) - r) [eq/L]
-
-    Examples
-    --------
-    1 mmol/L carbonate at pH = pKa1 = 6.352 is half HCO3-: its total alkalinity is
-    about 0.5 meq/L:
-
-    >>> alk, _ = proton_alkalinity(6.352, [([6.352, 10.329], [6.352, 10.329], 1e-3)], 4.5)
-    >>> round(alk * 1e3, 3)
-    0.5
-    """
-    H = 10.0 ** (-pH - log10_gamma_H)
-    OH = 10.0 ** (pH - pKw - log10_gamma_OH)
-    terms = []
-    for pKa_ref, pKa_m, total in systems:
-        mean, _ = _moments(pH, _cum(pKa_m))
-        terms.append(total * (mean - reference_index(pKa_ref, pH_ref)))
-    return OH - H + sum(terms), terms
-
-
-def _alk_and_slope(pH, prep, pKw, lgH, lgOH):
-    """Equivalence-point alkalinity [eq/L] and its pH derivative (the buffer intensity)."""
-    H = 10.0 ** (-pH - lgH)
-    OH = 10.0 ** (pH - pKw - lgOH)
-    alk = OH - H
-    slope = OH + H
-    for cum, total, r in prep:
-        mean, var = _moments(pH, cum)
-        alk += total * (mean - r)
-        slope += total * var
-    return alk, _LN10 * slope
-
-
-def _equivalence_pH(systems, pH_ref, pKw, lgH, lgOH) -> float:
-    """pH at which the equivalence-point alkalinity of the reference level vanishes.
-
-    Newton steps on the analytic slope (the buffer intensity), kept inside a shrinking
-    bracket and replaced by bisection when a step leaves it (alkalinity rises with pH).
-    """
-    prep = [(_cum(pKa_m), total, reference_index(pKa_ref, pH_ref)) for pKa_ref, pKa_m, total in systems]
-    lo, hi = -2.0, 18.0
-    if not (_alk_and_slope(lo, prep, pKw, lgH, lgOH)[0] < 0.0 < _alk_and_slope(hi, prep, pKw, lgH, lgOH)[0]):
-        raise ConvergenceError(f"no equivalence pH between {lo:g} and {hi:g} for reference pH {pH_ref:g}")
-    x = pH_ref
-    for _ in range(200):
-        f, df = _alk_and_slope(x, prep, pKw, lgH, lgOH)
-        if f == 0.0:
-            return x
-        if f < 0.0:
-            lo = x
-        else:
-            hi = x
-        xn = x - f / df if df > 0.0 else 0.5 * (lo + hi)
-        if not lo < xn < hi:
-            xn = 0.5 * (lo + hi)
-        if abs(xn - x) < 1e-11 or hi - lo < 1e-11:
-            return xn
-        x = xn
-    raise ConvergenceError(f"the equivalence pH for reference pH {pH_ref:g} did not converge", field=None)
-
-
 def sm2320_split(P: float, T: float) -> dict:
     """Hydroxide, carbonate and bicarbonate alkalinity from P and T (Standard Methods 2320 B table).
 
@@ -261,9 +190,8 @@ def sm2320_split(P: float, T: float) -> dict:
     >>> sm2320_split(80.0, 100.0)
     {'hydroxide': 60.0, 'carbonate': 40.0, 'bicarbonate': 0.0}
     """
-    for name, v in (("P", P), ("T", T)):
-        if not math.isfinite(v) or v < 0:
-            raise InputError(f"{name} = {v!r} must be a finite alkalinity >= 0", field=name)
+    P = number(P, "P", lo=0.0)
+    T = number(T, "T", lo=0.0)
     if P > T * (1 + 1e-12):
         raise InputError(f"P = {P:g} exceeds T = {T:g}; phenolphthalein alkalinity cannot exceed total",
                          field="P")
@@ -273,17 +201,173 @@ def sm2320_split(P: float, T: float) -> dict:
     return {"hydroxide": 2.0 * P - T, "carbonate": 2.0 * (T - P), "bicarbonate": 0.0}
 
 
+def reference_levels(wm, pH_ref: float) -> list[int]:
+    """Protons ``r_j`` held by the reference species of each component of a water.
+
+    Parameters
+    ----------
+    wm : acidscape.science.tableau.WaterModel
+        The water (its systems' thermodynamic pKa at its temperature choose the references)
+    pH_ref : float
+        4.5 (total alkalinity) or 8.3 (phenolphthalein alkalinity) [-]
+
+    Returns
+    -------
+    list of int
+        Per component: n - reference_index(pKa, pH_ref) for a system with n pKa (its
+        component is the fully deprotonated base), 0 for H+, metals and strong ions [-]
+    """
+    r = [0] * len(wm.tab.components)
+    for s in wm.systems:
+        r[wm.comp_index[s.key]] = len(s.pKa) - reference_index(s.pKa, pH_ref)
+    return r
+
+
+def _coefficients(tab, r) -> list[int]:
+    """Per species: sum_j a_ij r_j - a_iH, its alkalinity per mole [eq/mol]."""
+    return [sum(a * r[j] for j, a in sp.stoich if j) - dict(sp.stoich).get(0, 0) for sp in tab.species]
+
+
+def equivalence_alkalinity(sol, r: Sequence[int]) -> float:
+    """Equivalence-point alkalinity of a solved water relative to the reference levels ``r`` [eq/L].
+
+    .. math::
+
+        \\mathrm{Alk} = \\sum_i c_i \\Big(\\sum_{j \\ne H} a_{ij} r_j - a_{iH}\\Big)
+
+    Examples
+    --------
+    1 mmol/L carbonate at pH = pKa1 = 6.352 (ideal) is half HCO3-: its total alkalinity is
+    about 0.5 meq/L.
+
+    >>> from acidscape.science.model import Species, Tableau, equilibrium
+    >>> from acidscape.science.activity import gamma_function
+    >>> tab = Tableau(("H+", "carbonate"), (1, -2), (9.0, 4.5), (
+    ...     Species("H+", ((0, 1),), 0.0, 1, kind="water"), Species("OH-", ((0, -1),), -14.0, -1, kind="water"),
+    ...     Species("H2CO3*", ((1, 1), (0, 2)), 16.681, 0), Species("HCO3-", ((1, 1), (0, 1)), 10.329, -1),
+    ...     Species("CO3-2", ((1, 1),), 0.0, -2)))
+    >>> sol = equilibrium(tab, [0.0, 1e-3], T=298.15, gamma_of=gamma_function(298.15, "ideal"), pH=6.352)
+    >>> round(equivalence_alkalinity(sol, [0, 2]) * 1e3, 3)
+    0.5
+    """
+    coef = _coefficients(sol.tableau, r)
+    return math.fsum(k * c for k, c in zip(coef, sol.conc) if k and c)
+
+
+def end_point_alkalinity(wm, sol, pH_e: float, guess: dict | None = None):
+    """Strong acid per litre that takes the sample to ``pH_e`` (negative: base) [eq/L].
+
+    A(pH_e) = T_H(pH_e) - T_H(sample): the proton total of the sample's dissolved totals at
+    pH_e, at the sample's ionic strength, minus the sample's own.
+
+    Returns
+    -------
+    tuple of (float, Solution)
+        A [eq/L] and the water at pH_e
+    """
+    at = resolve(wm, pH=pH_e, totals=aqueous_totals(sol), I=sol.I, closed=True, guess=guess or sol.state)
+    return held(at) - held(sol), at
+
+
+def equivalence_pH(wm, sol, pH_ref: float, totals=None) -> float:
+    """pH at which the equivalence-point alkalinity of the ``pH_ref`` reference level vanishes.
+
+    At the sample's dissolved totals and ionic strength, Alk(pH) = sum_j r_j T_j - T_H(pH)
+    rises with pH with slope ln10 S (the buffer intensity, :func:`acidscape.operations.probe.derivatives`);
+    Newton steps on that slope, kept inside a shrinking bracket and replaced by bisection
+    when a step leaves it, find its root.
+
+    Parameters
+    ----------
+    wm : WaterModel
+    sol : Solution
+        The solved sample
+    pH_ref : float
+        4.5 or 8.3 [-]
+    totals : list of float, optional
+        Dissolved totals to use [mol/L] (default: the sample's)
+
+    Returns
+    -------
+    float
+        Equivalence pH [-]
+    """
+    T = aqueous_totals(sol) if totals is None else list(totals)
+    r = reference_levels(wm, pH_ref)
+    target = math.fsum(rj * t for j, (rj, t) in enumerate(zip(r, T)) if j and rj)
+    lo, hi = EQUIVALENCE_BRACKET
+    x = pH_ref
+    state = sol.state
+    for _ in range(200):
+        at = resolve(wm, pH=x, totals=T, I=sol.I, closed=True, guess=state)
+        state = at.state
+        f = target - held(at)
+        if f == 0.0:
+            return x
+        if f < 0.0:
+            lo = x
+        else:
+            hi = x
+        S, _ = derivatives(at)
+        xn = x - f / (LN10 * S) if S > 0.0 else 0.5 * (lo + hi)
+        if not lo < xn < hi:
+            xn = 0.5 * (lo + hi)
+        if abs(xn - x) < EQUIVALENCE_TOL or hi - lo < EQUIVALENCE_TOL:
+            if min(xn - EQUIVALENCE_BRACKET[0], EQUIVALENCE_BRACKET[1] - xn) < 1e-6:
+                break  # squeezed against an end: no root inside
+            return xn
+        x = xn
+    raise ConvergenceError(f"no equivalence pH between {EQUIVALENCE_BRACKET[0]:g} and {EQUIVALENCE_BRACKET[1]:g} "
+                           f"for reference pH {pH_ref:g}", field=None)
+
+
 def _mg(eq_per_L: float) -> float:
     return eq_per_L * 1e3 * MG_CACO3_PER_MEQ
 
 
-def alkalinity_report(eq) -> dict:
+def _speciation_split(wm, sol) -> tuple[float, float, float]:
+    """Hydroxide, carbonate and bicarbonate alkalinity from the species [eq/L].
+
+    Hydroxide: [OH-] and the OH- of hydroxo complexes of metals; carbonate and bicarbonate:
+    every carbonate unit held as CO3 (2 eq) or as HCO3 (1 eq), free or in an ion pair.
+    """
+    tab = wm.tab
+    jc = wm.comp_index.get("carbonate")
+    r = reference_levels(wm, TOTAL_END_POINT_PH)
+    OH = CO3 = HCO3 = 0.0
+    for sp, c in zip(tab.species, sol.conc):
+        if not c:
+            continue
+        st = dict(sp.stoich)
+        aH = st.get(0, 0)
+        others = [j for j in st if j not in (0, jc)]
+        if any(r[j] for j in others):
+            continue  # holds another acid-base system: a non-carbonate base
+        ac = st.get(jc, 0) if jc is not None else 0
+        if ac == 0:
+            if aH < 0:
+                OH += -aH * c
+            continue
+        if aH < 0:
+            OH += -aH * c
+            CO3 += 2 * ac * c
+        elif aH <= ac:
+            HCO3 += aH * c
+            CO3 += 2 * (ac - aH) * c
+        else:
+            HCO3 += (2 * ac - aH) * c
+    return OH, CO3, HCO3
+
+
+def alkalinity_report(wm, sol=None) -> dict:
     """Alkalinity and acidity of a solved water, both definitions, JSON-ready.
 
     Parameters
     ----------
-    eq : acidscape.science.solver.Equilibrium
-        A solved (or fixed-pH) water; its totals, mixed constants and ionic strength are used
+    wm : acidscape.science.tableau.WaterModel
+        The water's tableau
+    sol : acidscape.science.model.Solution
+        Its solution (free pH or a given pH)
 
     Returns
     -------
@@ -292,56 +376,59 @@ def alkalinity_report(eq) -> dict:
         ``phenolphthalein_meq_per_L``, ``phenolphthalein_mg_per_L_as_CaCO3`` (fixed end points,
         as reported per Standard Methods 2320 B), and the blocks ``fixed_end_point``,
         ``equivalence_point``, ``split_from_P_and_T``, ``split_from_speciation``,
-        ``contributions``, ``acidity``, ``notes``
+        ``contributions`` (water, each system, and the ion pairs and complexes together),
+        ``acidity``, ``notes``
 
     Examples
     --------
-    >>> from acidscape.science.solver import Component, Ion, equilibrate
-    >>> c = Component("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 2e-3)
-    >>> eq = equilibrate([c], [Ion("Na+", "Na+", 1, 2e-3)], T=298.15, pKw=13.995, model="ideal")
-    >>> rep = alkalinity_report(eq)
+    2 mmol/L NaHCO3-like water, ideal activities: total alkalinity 2 meq/L by stoichiometry.
+
+    >>> from acidscape.science.tableau import IonInput, SystemInput, WaterModel
+    >>> c = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 2e-3)
+    >>> wm = WaterModel([c], [IonInput("Na+", "Na+", 1, 2e-3)], T=298.15, pKw=13.995, model="ideal",
+    ...                 complexes=False)
+    >>> rep = alkalinity_report(wm, wm.solve())
     >>> round(rep["equivalence_point"]["total_meq_per_L"], 6)
     2.0
     >>> abs(rep["total_meq_per_L"] - 2.0) < 0.01   # fixed end point pH 4.5: close, not equal
     True
     """
-    pH = eq.pH
-    pKw, lgH, lgOH = eq.pKw, eq.log10_gamma_H, eq.log10_gamma_OH
-    mixed = [(st.pKa_mixed, st.total_M) for st in eq.systems]
-    full = [(st.component.pKa, st.pKa_mixed, st.total_M) for st in eq.systems]
+    if sol is None:  # TRANSITION: an acid-base Equilibrium of the old solver (remove with it)
+        wm, sol = from_equilibrium(wm)
+    tab = wm.tab
+    pH = sol.pH
     notes = []
-    P_here = proton_level(pH, mixed, pKw, lgH, lgOH)
     fixed = {}
     headline = {}
+    state = sol.state
     for label, end in (("total", TOTAL_END_POINT_PH), ("phenolphthalein", PHENOLPHTHALEIN_END_POINT_PH)):
-        a = P_here - proton_level(end, mixed, pKw, lgH, lgOH)
+        a, at = end_point_alkalinity(wm, sol, end, guess=state)
+        state = at.state
         fixed[f"{label}_end_point_pH"] = end
         fixed[f"{label}_meq_per_L"] = a * 1e3
         fixed[f"{label}_mg_per_L_as_CaCO3"] = _mg(a)
-        reported = a if pH > end else 0.0
         if pH <= end:
             notes.append(f"the sample's pH {pH:.2f} is at or below the {label} end point pH {end:g}: "
                          f"{label} alkalinity is reported as 0 (Standard Methods 2320 B); the signed "
                          f"value is in fixed_end_point")
-        headline[label] = reported
+        headline[label] = a if pH > end else 0.0
     equiv = {"reference": "H2CO3* for total, HCO3- for phenolphthalein; other systems at the "
-                          "species predominant at pH 4.5 / 8.3 (proton reference level)"}
-    eq_terms = {}
+                          "species predominant at pH 4.5 / 8.3 (proton reference level); complexes "
+                          "count the protons of their components' reference species"}
+    levels = {}
     for label, ref in (("total", TOTAL_END_POINT_PH), ("phenolphthalein", PHENOLPHTHALEIN_END_POINT_PH)):
-        alk, terms = proton_alkalinity(pH, full, ref, pKw, lgH, lgOH)
-        eq_terms[label] = terms
+        r = reference_levels(wm, ref)
+        levels[label] = r
+        alk = equivalence_alkalinity(sol, r)
         equiv[f"{label}_meq_per_L"] = alk * 1e3
         equiv[f"{label}_mg_per_L_as_CaCO3"] = _mg(alk)
-        equiv[f"{label}_equivalence_pH"] = _equivalence_pH(full, ref, pKw, lgH, lgOH)
-    H = 10.0 ** (-pH - lgH)
-    OH = 10.0 ** (pH - pKw - lgOH)
-    carb = next((st for st in eq.systems if st.component.key == "carbonate"), None)
-    HCO3 = carb.total_M * carb.fractions[1] if carb else 0.0
-    CO3 = carb.total_M * carb.fractions[2] if carb and len(carb.fractions) > 2 else 0.0
+        equiv[f"{label}_equivalence_pH"] = equivalence_pH(wm, sol, ref)
+    OH, CO3, HCO3 = _speciation_split(wm, sol)
     split_exact = {
-        "method": "speciation: [OH-], 2[CO3-2], [HCO3-]",
+        "method": "speciation: [OH-] (and hydroxo complexes), 2 x carbonate and 1 x bicarbonate units, "
+                  "free or in ion pairs",
         "hydroxide_meq_per_L": OH * 1e3, "hydroxide_mg_per_L_as_CaCO3": _mg(OH),
-        "carbonate_meq_per_L": 2 * CO3 * 1e3, "carbonate_mg_per_L_as_CaCO3": _mg(2 * CO3),
+        "carbonate_meq_per_L": CO3 * 1e3, "carbonate_mg_per_L_as_CaCO3": _mg(CO3),
         "bicarbonate_meq_per_L": HCO3 * 1e3, "bicarbonate_mg_per_L_as_CaCO3": _mg(HCO3),
     }
     P_mg, T_mg = _mg(headline["phenolphthalein"]), _mg(headline["total"])
@@ -356,18 +443,34 @@ def alkalinity_report(eq) -> dict:
                        "hydroxide_mg_per_L_as_CaCO3": None, "carbonate_mg_per_L_as_CaCO3": None,
                        "bicarbonate_mg_per_L_as_CaCO3": None}
         notes.append("P exceeds T (strong non-carbonate bases): the P/T relationship table does not apply")
-    contributions = [{"source": "water", "reference_species": "H2O", "meq_per_L": (OH - H) * 1e3,
-                      "mg_per_L_as_CaCO3": _mg(OH - H), "note": "[OH-] - [H+]"}]
-    for st, term in zip(eq.systems, eq_terms["total"]):
-        r = reference_index(st.component.pKa, TOTAL_END_POINT_PH)
+    coef = _coefficients(tab, levels["total"])
+    water = math.fsum(k * c for k, c, sp in zip(coef, sol.conc, tab.species) if sp.kind == "water")
+    contributions = [{"source": "water", "reference_species": "H2O", "meq_per_L": water * 1e3,
+                      "mg_per_L_as_CaCO3": _mg(water), "note": "[OH-] - [H+]"}]
+    for s in wm.systems:
+        idx = wm.system_species[s.key]
+        term = math.fsum(coef[i] * sol.conc[i] for i in idx)
         contributions.append({
-            "source": st.component.key, "name": st.component.name,
-            "reference_species": st.component.species[r],
+            "source": s.key, "name": s.name,
+            "reference_species": s.species[reference_index(s.pKa, TOTAL_END_POINT_PH)],
             "meq_per_L": term * 1e3, "mg_per_L_as_CaCO3": _mg(term),
         })
-    if any(getattr(st.component, "fixed_first_M", None) is not None for st in eq.systems):
+    cx = [(sp.name, coef[i] * sol.conc[i]) for i, sp in enumerate(tab.species)
+          if sp.kind == "complex" and sol.conc[i] > 0.0 and coef[i]]
+    if cx:
+        term = math.fsum(v for _, v in cx)
+        contributions.append({
+            "source": "complexes", "name": "ion pairs and complexes", "reference_species": None,
+            "meq_per_L": term * 1e3, "mg_per_L_as_CaCO3": _mg(term),
+            "note": "each counts the protons its components' reference species hold beyond its own "
+                    "(CaCO3° 2, CaHCO3+ 1, CaOH+ 1)",
+            "species": [{"name": n, "meq_per_L": v * 1e3} for n, v in sorted(cx, key=lambda t: -abs(t[1]))],
+        })
+    if wm.fixed_species:
         notes.append("water open to CO2: alkalinity is that of the sample as taken (closed, at its "
                      "current carbonate total)")
+    if sol.solids:
+        notes.append("solids present are left out: alkalinity of the dissolved water (a filtered sample)")
     notes.append("fixed end points: acid per litre of sample at the sample's ionic strength, "
                  "dilution by the titrant neglected")
     return {

@@ -1,9 +1,8 @@
-"""Buffer intensity and buffer capacity of a water, and the fast charge terms they share.
+"""Buffer intensity and buffer capacity of a water.
 
 Buffer intensity is the strong base needed per unit rise of pH,
-beta = dC_B/dpH (Van Slyke [1]_). For a closed water at fixed ionic strength,
-differentiating the charge balance of :mod:`acidscape.science.solver` gives the
-analytic sum
+beta = dC_B/dpH (Van Slyke [1]_). For a set of closed acid-base systems at fixed
+ionic strength, differentiating the proton balance gives the analytic sum
 
 .. math::
 
@@ -15,7 +14,7 @@ where ``i`` counts the protons a species has released. For a monoprotic acid
 var = alpha_0 alpha_1, the familiar ln10 C alpha_0 alpha_1 term, whose largest
 value, at pH = pKa, is (ln 10 / 4) C = 0.576 C (Stumm & Morgan [2]_ §3.6,
 from memory). The buffer capacity between two pH values, the base needed to
-go from one to the other, is the exact difference of the charge terms,
+go from one to the other, is the exact difference of the proton levels,
 
 .. math::
 
@@ -25,10 +24,17 @@ go from one to the other, is the exact difference of the charge terms,
 which equals the integral of beta between the two pH values (the proton
 condition, Stumm & Morgan [2]_ ch. 4, from memory).
 
-Here pH is the meter pH, -log10 a(H+); the pKa values are the mixed
-(conditional) constants at the water's ionic strength. beta is therefore *per
-unit of meter pH at fixed ionic strength*: the small change of I caused by
-the base itself is not included (it changes beta by far less than 1 % below
+A whole water (ion pairs and complexes included) is handled by the one equilibrium
+model: its beta is ln 10 times the Schur complement of the model's Hessian, the exact
+response of the proton total to pH with every other mass balance held
+(:func:`acidscape.operations.probe.derivatives`; chosen over a numerical derivative,
+which would need two extra solves and lose about half the digits), and its capacity
+the exact difference of the proton totals of the closed water solved at the two pH.
+For an acid-base-only water both reduce to the sums above.
+
+Here pH is the meter pH, -log10 a(H+), at the water's ionic strength held fixed. beta
+is therefore *per unit of meter pH at fixed ionic strength*: the small change of I
+caused by the base itself is not included (it changes beta by far less than 1 % below
 I = 0.1 mol/L).
 
 Functions
@@ -36,9 +42,9 @@ Functions
 buffer_intensity_at(pH, systems, pKw, ...)       beta of systems given by (pKa, total) [eq/(L pH)]
 proton_level(pH, systems, pKw, ...)              P(pH) above [eq/L]
 buffer_capacity_between(pH1, pH2, systems, ...)  base from pH1 to pH2 [eq/L]
-buffer_intensity(eq, pH=None)                    beta of a solved water (closed, fixed I)
-buffer_capacity(eq, pH1, pH2)                    the same from a solved water
-buffer_curve(eq, pH_values)                      beta over many pH values
+buffer_intensity(wm, sol, pH=None)               beta of a solved water (closed, fixed I, complexes)
+buffer_capacity(wm, sol, pH1, pH2)               base from pH1 to pH2 for a solved water
+buffer_curve(wm, sol, pH_values)                 beta over many pH values
 gamma_function(T, model)                         re-export of acidscape.science.activity.gamma_function
 
 References
@@ -54,17 +60,17 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-from ..science.activity import gamma_function  # noqa: F401  (re-exported: was defined here)
 from ..errors import InputError
-from ..science.speciation import _check_pH
-from ..science.speciation import cumulative_pKa
+from ..science.activity import gamma_function  # noqa: F401  (re-exported: was defined here)
+from ..science.speciation import _check_pH, cumulative_pKa
 from ..science.speciation import proton_moments as _moments
+from .probe import aqueous_totals, derivatives, from_equilibrium, held, resolve
 
 _LN10 = math.log(10.0)
 _exp = math.exp
 
 
-_cum = cumulative_pKa  # alkalinity.py imports it under this name
+_cum = cumulative_pKa
 
 
 def _water(pH: float, pKw: float, lgH: float, lgOH: float) -> tuple[float, float]:
@@ -198,19 +204,37 @@ def buffer_capacity_between(pH1: float, pH2: float, systems: Iterable, pKw: floa
             - proton_level(pH1, systems, pKw, log10_gamma_H, log10_gamma_OH))
 
 
-def _eq_systems(eq) -> list[tuple[tuple[float, ...], float]]:
-    return [(st.pKa_mixed, st.total_M) for st in eq.systems]
+def _closed(wm, sol):
+    """The sample's dissolved totals and its ionic strength (a closed water at fixed I)."""
+    return aqueous_totals(sol), sol.I
 
 
-def buffer_intensity(eq, pH: float | None = None) -> float:
-    """Buffer intensity of a solved water (:class:`acidscape.science.solver.Equilibrium`).
+def _args(wm, sol):
+    if sol is None:  # TRANSITION: an acid-base Equilibrium of the old solver (remove with it)
+        return from_equilibrium(wm)
+    return wm, sol
+
+
+def buffer_intensity(wm, sol=None, pH: float | None = None) -> float:
+    """Buffer intensity of a solved water, closed, at its ionic strength, complexes included.
+
+    .. math::
+
+        \\beta = \\ln 10\\, S, \\qquad S = H_{HH} - H_{Hr} H_{rr}^{-1} H_{rH}
+
+    the Schur complement of the model's Hessian (:func:`acidscape.operations.probe.derivatives`):
+    the proton total's response to pH with every other mass balance held. For an acid-base
+    water it is the analytic sum of :func:`buffer_intensity_at`.
 
     Parameters
     ----------
-    eq : Equilibrium
-        A solved water; its mixed constants and totals are used as a closed water
+    wm : acidscape.science.tableau.WaterModel
+        The water's tableau
+    sol : acidscape.science.model.Solution
+        Its solution
     pH : float, optional
-        Meter pH [-]; default the water's own pH
+        Meter pH [-]; default the water's own pH (else the closed water is solved again
+        at that pH, at the same totals and ionic strength)
 
     Returns
     -------
@@ -220,18 +244,56 @@ def buffer_intensity(eq, pH: float | None = None) -> float:
     Notes
     -----
     A water open to CO2 is treated as the closed sample at its current carbonate total
-    (as in a lab beaker); an open water is buffered more strongly.
+    (as in a lab beaker); an open water is buffered more strongly. Solids present are left
+    out (the dissolved water).
+
+    Examples
+    --------
+    0.1 mol/L of a monoprotic acid at pH = pKa = 7 (ideal): (ln 10 / 4) C plus water's share.
+
+    >>> from acidscape.science.tableau import SystemInput, WaterModel
+    >>> wm = WaterModel([SystemInput("a", "acid", ("HA", "A-"), (0, -1), (7.0,), 0.1)], [], T=298.15,
+    ...                 pKw=14.0, model="ideal", complexes=False)
+    >>> round(buffer_intensity(wm, wm.solve(pH=7.0)) / 0.1, 3)
+    0.576
     """
-    return buffer_intensity_at(eq.pH if pH is None else pH, _eq_systems(eq), eq.pKw,
-                               eq.log10_gamma_H, eq.log10_gamma_OH)
+    wm, sol = _args(wm, sol)
+    if pH is not None and pH != sol.pH:
+        T, I = _closed(wm, sol)
+        sol = resolve(wm, pH=_check_pH(pH), totals=T, I=I, closed=True, guess=sol.state)
+    S, _ = derivatives(sol)
+    return _LN10 * S
 
 
-def buffer_capacity(eq, pH1: float, pH2: float) -> float:
-    """Strong base [eq/L] that takes a solved water from pH1 to pH2 (fixed totals and I)."""
-    return buffer_capacity_between(pH1, pH2, _eq_systems(eq), eq.pKw, eq.log10_gamma_H, eq.log10_gamma_OH)
+def buffer_curve(wm, sol=None, pH_values: Iterable[float] = ()) -> list[float]:
+    """Buffer intensity [eq/(L pH)] of a solved water at each pH in ``pH_values`` (closed, fixed I).
+
+    Each pH is solved by the model at the water's dissolved totals and ionic strength, warm
+    started from the one before.
+    """
+    if sol is not None and not hasattr(sol, "tableau"):  # TRANSITION: buffer_curve(eq, grid)
+        pH_values, sol = sol, None
+    wm, sol = _args(wm, sol)
+    T, I = _closed(wm, sol)
+    out = []
+    state = sol.state
+    for p in pH_values:
+        at = resolve(wm, pH=_check_pH(p), totals=T, I=I, closed=True, guess=state)
+        state = at.state
+        out.append(_LN10 * derivatives(at)[0])
+    return out
 
 
-def buffer_curve(eq, pH_values: Iterable[float]) -> list[float]:
-    """Buffer intensity [eq/(L pH)] of a solved water at each pH in ``pH_values``."""
-    systems = _eq_systems(eq)
-    return [buffer_intensity_at(p, systems, eq.pKw, eq.log10_gamma_H, eq.log10_gamma_OH) for p in pH_values]
+def buffer_capacity(wm, sol=None, pH1: float | None = None, pH2: float | None = None) -> float:
+    """Strong base [eq/L] that takes a solved water from pH1 to pH2 (negative: acid).
+
+    The exact difference of the proton totals at the two pH values, at the water's dissolved
+    totals and ionic strength: C_B = T_H(pH1) - T_H(pH2), the integral of beta between them.
+    """
+    if not hasattr(sol, "tableau"):  # TRANSITION: buffer_capacity(eq, pH1, pH2)
+        pH1, pH2, sol = sol, pH1, None
+    wm, sol = _args(wm, sol)
+    T, I = _closed(wm, sol)
+    a = resolve(wm, pH=_check_pH(pH1), totals=T, I=I, closed=True, guess=sol.state)
+    b = resolve(wm, pH=_check_pH(pH2), totals=T, I=I, closed=True, guess=a.state)
+    return held(a) - held(b)
