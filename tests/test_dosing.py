@@ -8,12 +8,26 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from acidscape.boundary.api import solve
 from acidscape.constants import ATOMIC_WEIGHT as W
-from acidscape.operations.dosing import FLOW_UNITS, chemicals, dose_amount, dose_to_pH, flow_L_per_d, get_chemical
 from acidscape.errors import InputError, UnknownIdError, UnreachableError
-from acidscape.operations.closure import close_scenario
+from acidscape.operations.dosing import (
+    CAUTIONS,
+    FLOW_UNITS,
+    chemicals,
+    dose_amount,
+    dose_to_pH as _dose_to_pH,
+    flow_L_per_d,
+    get_chemical,
+)
 
-from test_titration import indep_pH
+import reference_model
+from test_titration import HARD, closed, indep_pH
+
+
+def dose_to_pH(scenario, chemical, target, **kw):
+    """The dose of a scenario's water, described by the boundary's solve (as api.dose does)."""
+    return _dose_to_pH(closed(scenario), chemical, target, describe=solve, **kw)
 
 MM = "mmol/L"
 WATER = {"temperature_C": 15, "systems": [{"id": "carbonate", "total": 2.0, "unit": MM}],
@@ -86,7 +100,7 @@ chem_ids = st.sampled_from(["NaOH", "HCl", "H2SO4", "Ca(OH)2", "Na2CO3", "NaHCO3
 def test_dose_inverts_an_independent_charge_balance(carb, nh4, po4, boric, na, ca, cl, t, model, chem, log_d):
     # Add a known dose, solve the water after with scipy brentq (independent charge balance with
     # activities, tests/test_titration.indep_pH), then ask for the dose that reaches that pH.
-    sc = {"temperature_C": t, "activity": model,
+    sc = {"temperature_C": t, "activity": model, "complexes": False,
           "systems": [{"id": "carbonate", "total": carb, "unit": MM}, {"id": "ammonium", "total": nh4, "unit": MM},
                       {"id": "phosphate", "total": po4, "unit": MM}, {"id": "boric", "total": boric, "unit": MM}],
           "ions": [{"id": "Na+", "total": na, "unit": MM}, {"id": "Ca+2", "total": ca, "unit": MM},
@@ -102,11 +116,11 @@ def test_dose_inverts_an_independent_charge_balance(carb, nh4, po4, boric, na, c
     for sid, n in c.systems:
         systems[sid] = systems.get(sid, 0.0) + n * d
     T = 273.15 + t
-    closed = close_scenario(sc)
+    water = closed(sc)
     pH_after = indep_pH(list(systems.items()), ions, T, model)
-    if abs(pH_after - closed.eq.pH) < 1e-4:
+    if abs(pH_after - water.sol.pH) < 1e-4:
         return  # the dose barely moves this pH; the inverse is ill-conditioned there
-    got, _ = dose_amount(closed, c, pH_after)
+    got, _ = dose_amount(water, c, pH_after)
     # Near a chemical's limit pH the pH can pass through a maximum as the dose grows (activities),
     # so two doses may give the same pH: the smaller one is returned. Either way the independent
     # solve of the water after the returned dose must land on the target.
@@ -126,12 +140,14 @@ def test_dose_inverts_an_independent_charge_balance(carb, nh4, po4, boric, na, c
 
 def test_unreachable_targets():
     # NaHCO3 cannot raise pH beyond about (pKa1 + pKa2)/2 = 8.3 (its own equivalence pH).
+    # (acid-base only: with the water's calcium, CaHCO3+ and CaCO3° move that pH a little)
+    acid_base = dict(WATER, complexes=False)
     with pytest.raises(UnreachableError, match="only approaches 8\\.[34]") as e:
-        dose_to_pH(WATER, "NaHCO3", 8.6)
+        dose_to_pH(acid_base, "NaHCO3", 8.6)
     assert e.value.field == "target_pH"
     # Just below that limit, the salt the dose adds lowers the limit itself (activities): refused.
     with pytest.raises(UnreachableError, match="grows without bound"):
-        dose_to_pH(WATER, "NaHCO3", 8.3)
+        dose_to_pH(acid_base, "NaHCO3", 8.3)
     with pytest.raises(UnreachableError, match="acts as an acid.*lowers"):
         dose_to_pH(WATER, "HCl", 9.0)
     with pytest.raises(UnreachableError, match="acts as a base.*raises"):
@@ -175,7 +191,8 @@ def test_cli_dose_contract(tmp_path):
                 "--density-kg-per-L", "1.525", "--flow", "2", "--flow-unit", "MGD")
     assert r.returncode == 0, r.stderr
     out = json.loads(r.stdout)
-    assert {"dose_mmol_per_L", "dose_mg_per_L", "product", "water_after"} <= set(out)
+    assert {"dose_mmol_per_L", "dose_mg_per_L", "product", "water_after", "cautions"} <= set(out)
+    assert out["cautions"] == list(CAUTIONS)
     assert {"feed_kg_per_d", "feed_L_per_h", "feed_gal_per_d"} <= set(out["product"])
     assert out["water_after"]["pH"] == pytest.approx(8.5, abs=1e-7)
     assert {"total_meq_per_L", "total_mg_per_L_as_CaCO3", "phenolphthalein_mg_per_L_as_CaCO3"} <= \
@@ -195,3 +212,75 @@ def test_cli_dose_bad_input(tmp_path, args, field, words):
     assert r.returncode == 2
     assert f"error [{field}]" in r.stderr and words in r.stderr
     assert r.stdout == ""
+
+
+# --- Cautions, complexes and precipitation --------------------------------------------------------
+
+def test_cautions_travel_with_every_dose():
+    # Dosing output always carries the cautions (common practice of chemical handling in water
+    # treatment): protective equipment, a jar or bench test, overfeed, local rules and operators.
+    out = dose_to_pH(WATER, "NaOH", 8.5)
+    assert out["cautions"] == list(CAUTIONS)
+    text = " ".join(out["cautions"]).lower()
+    for words in ("burn skin and eyes", "jar or bench test", "overfeed", "licensed operators"):
+        assert words in text
+
+
+@pytest.mark.parametrize("sc,chem,target", [
+    ({"temperature_C": 8, "activity": "davies", "complexes": False,
+      "systems": [{"id": "carbonate", "total": 1.5, "unit": MM}, {"id": "phosphate", "total": 0.05, "unit": MM}],
+      "ions": [{"id": "Na+", "total": 1.3, "unit": MM}, {"id": "Cl-", "total": 0.4, "unit": MM}]}, "NaOH", 9.1),
+    ({"activity": "extended-debye-huckel", "complexes": False,
+      "systems": [{"id": "carbonate", "total": 3.0, "unit": MM}],
+      "ions": [{"id": "Na+", "total": 3.2, "unit": MM}]}, "H2SO4", 6.3),
+])
+def test_without_complexes_the_dose_is_the_acid_base_answer(sc, chem, target):
+    # Invariant of the one-model change: with complexes off the water after the dose, solved
+    # independently by brentq (indep_pH), sits at the target to 1e-9 pH.
+    d = dose_to_pH(sc, chem, target)["dose_mmol_per_L"] * 1e-3
+    systems = {e["id"]: e["total"] * 1e-3 for e in sc["systems"]}
+    ions = [(1, sc["ions"][0]["total"] * 1e-3, 4.5)] + [(-1, e["total"] * 1e-3, 3.0) for e in sc["ions"][1:]]
+    if chem == "NaOH":
+        ions.append((1, d, 4.5))
+    else:
+        systems["sulfate"] = d
+    T = 273.15 + sc.get("temperature_C", 25)
+    assert indep_pH(list(systems.items()), ions, T, sc["activity"]) == pytest.approx(target, abs=1e-9)
+
+
+def test_dose_with_complexes_inverts_the_reference_solver():
+    # A hard water with its ion pairs plus 0.5 mmol/L NaOH, solved by the independent scipy
+    # reference (tests/reference_model.py); the dose back to that pH is 0.5 mmol/L.
+    after = dict(HARD, ions=[dict(e, total=e["total"] + (0.5 if e["id"] == "sodium" else 0.0)) for e in HARD["ions"]])
+    pH = reference_model.solve(after)["pH"]
+    got, _ = dose_amount(closed(HARD), get_chemical("NaOH"), pH)
+    assert got == pytest.approx(0.5e-3, rel=1e-8)
+
+
+def test_lime_with_calcite_forming_against_the_reference_solver():
+    # Lime softening: Ca(OH)2 to pH 10 with calcite allowed to form. The water after, with the
+    # same dose and calcite allowed, solved by the independent reference, sits at pH 10 with the
+    # same calcite; CaCO3 molar mass 100.087 g/mol (IUPAC 2021 atomic weights).
+    out = dose_to_pH(HARD, "Ca(OH)2", 10.0, precipitate=["calcite"])
+    ref = reference_model.solve(out["scenario_after"])
+    assert ref["pH"] == pytest.approx(10.0, abs=1e-8)
+    (solid,) = out["precipitated"]
+    assert solid["id"] == "calcite"
+    assert solid["mol_per_L"] == pytest.approx(ref["precipitated"]["calcite"], rel=1e-7)
+    assert solid["mg_per_L"] == pytest.approx(solid["mol_per_L"] * 100.087e3, rel=1e-4)
+    assert out["water_after"]["pH"] == pytest.approx(10.0, abs=1e-7)
+    # the same target without calcite forming needs another dose, reported beside it
+    plain = dose_to_pH(HARD, "Ca(OH)2", 10.0)
+    assert out["precipitation"]["dose_without_precipitation_mmol_per_L"] == pytest.approx(
+        plain["dose_mmol_per_L"], rel=1e-9)
+    assert out["dose_mmol_per_L"] != pytest.approx(plain["dose_mmol_per_L"], rel=1e-3)
+    # without calcite allowed the water after is oversaturated: the warning gives its SI
+    si = reference_model.solve(plain["scenario_after"])["saturation"]["calcite"]
+    assert si > 0
+    assert any("calcite" in w and f"SI {si:+.2f}" in w for w in plain["warnings"]), plain["warnings"]
+
+
+def test_precipitate_names_a_known_solid():
+    with pytest.raises(UnknownIdError) as e:
+        dose_to_pH(HARD, "Ca(OH)2", 10.0, precipitate=["unobtainite"])
+    assert e.value.field == "precipitate"

@@ -1,4 +1,4 @@
-"""A water described as a lab reports it (pH and alkalinity), turned into an ordinary scenario.
+"""A water described as a lab reports it (pH and alkalinity), and a closed water for titration and dosing.
 
 A scenario may give ``measured`` instead of a carbonate total::
 
@@ -7,32 +7,41 @@ A scenario may give ``measured`` instead of a carbonate total::
                                 "definition": "end-point",               # default; or "equivalence-point"
                                 "end_point_pH": 4.5}}                    # default 4.5
 
-At the measured pH every alpha fraction is known, so the alkalinity is linear in
-the dissolved inorganic carbon C_T (DIC) and C_T follows explicitly:
+The carbonate total C (dissolved inorganic carbon, DIC) is then the one that gives the
+measured alkalinity at the measured pH, found with the one equilibrium model at that fixed
+pH (ion pairs and complexes included). At a fixed pH the alkalinity rises monotonically
+with C (each mole of carbonate adds its acceptor protons), with slope
 
 .. math::
 
-    C_T = \\frac{A - \\big([OH^-] - [H^+] + \\sum_{other} C_j(\\bar\\imath_j - r_j)\\big)
-                 + \\big(\\text{same at } \\mathrm{pH}_e\\big)}
-               {(\\alpha_1 + 2\\alpha_2)(\\mathrm{pH}) - (\\alpha_1 + 2\\alpha_2)(\\mathrm{pH}_e)}
+    \\frac{d\\mathrm{Alk}}{dC} = r_c - g_c(\\mathrm{pH}) \\quad\\text{(equivalence point)}, \\qquad
+    g_c(\\mathrm{pH}_e) - g_c(\\mathrm{pH}) \\quad\\text{(end point)},
 
-(the proton reference level of :mod:`acidscape.operations.alkalinity`; for the
-equivalence-point definition the terms at the end point pH_e are dropped).
-The strong ions not given are then represented by one monovalent "balancing"
-ion whose concentration closes the charge balance at the measured pH. Both
-depend on the ionic strength through the activity coefficients, and the ionic
-strength on both, so the pair is iterated to a fixed point (a few steps). The
-result is an ordinary closed scenario whose solved pH is the measured one.
+where :math:`r_c = 2` (H2CO3* reference) and :math:`g_c` the protons held per mole of
+carbonate added at fixed pH (:func:`acidscape.operations.probe.derivatives`; without
+complexes :math:`2 - g_c = \\alpha_1 + 2\\alpha_2`). Newton steps on that slope start at
+C = 0, where the first step is the classic explicit formula
+:math:`C = (A - [OH^-] + [H^+] - \\ldots)/(\\alpha_1 + 2\\alpha_2)` (Stumm & Morgan ch. 4),
+and are kept inside a bracket. The strong ions not given are then represented by one
+monovalent "balancing" ion whose concentration closes the charge balance at the measured
+pH. Both depend on the ionic strength through the activity coefficients, and the ionic
+strength on both, so the pair is iterated to a fixed point (a few steps). The result is
+an ordinary closed scenario whose solved pH is the measured one.
 
-The same closing is applied to a scenario that gives ``pH`` with totals
-(the imbalance becomes the balancing ion) and to a water open to CO2 (its
-carbonate total at equilibrium becomes a closed total), so that titration and
-dosing start from a water that is electroneutral as described.
+The same closing is applied to a scenario that gives ``pH`` with totals (the imbalance
+becomes the balancing ion) and to a water open to CO2 (its carbonate total at equilibrium
+becomes a closed total), so that titration and dosing start from a water that is
+electroneutral as described.
 
-Functions
----------
-resolve_measured(scenario) -> (dict, dict)   ordinary scenario and what was inferred
-close_scenario(scenario) -> Closed            closed, electroneutral water for titration and dosing
+This module never reads a scenario itself: the boundary parses it
+(``acidscape.boundary.scenario.read_scenario``) and passes the parsed water in.
+
+Functions and classes
+---------------------
+read_measured(scenario) -> (dict, Measured)           check ``measured``; the scenario to parse
+resolve_measured(base, parsed, measured) -> (dict, dict)  ordinary scenario and what was inferred
+close_scenario(scenario, parsed) -> Closed            closed, electroneutral water for titration and dosing
+Closed                                                that water: scenario, model, solution, notes
 
 References
 ----------
@@ -44,127 +53,73 @@ ch. 4 (from memory).
 from __future__ import annotations
 
 import copy
+import dataclasses
 import math
 from dataclasses import dataclass, field
 
-from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, reference_index
-from ..science.activity import gamma_function
+from ..checks import number
 from ..constants import ATOMIC_WEIGHT
 from ..errors import ConvergenceError, InputError
-from ..science.solver import ION_SIZE_H, ION_SIZE_OH
-from ..science.speciation import alpha_from_cumulative, cumulative_pKa
+from ..science.tableau import IonInput
+from .alkalinity import (
+    MG_CACO3_PER_MEQ,
+    TOTAL_END_POINT_PH,
+    end_point_alkalinity,
+    equivalence_alkalinity,
+    reference_levels,
+)
+from .probe import derivatives, model_of, resolve
 
-_LN10 = math.log(10.0)
 #: Name of the ion that stands for the strong ions a description leaves out.
 BALANCE_NAME = "balancing ion (unassigned strong ions)"
 ALK_UNITS = ("mg/L as CaCO3", "meq/L")
 DEFINITIONS = ("end-point", "equivalence-point")
+#: Keys of the two balancing-ion components used while closing (one of them stays at 0).
+_BAL = ("balance+", "balance-")
+#: Relative tolerance of the closing iteration: the carbonate total, and the balancing charge
+#: (relative to the water's sum |z| c). The end-point alkalinity is a difference of two proton
+#: totals, each converged by the model to about 1e-13 of its own size, so 1e-11 is what it holds.
+CLOSE_RTOL = 1e-11
 
 
-def _alphas(pH: float, pKa_m) -> list[float]:
-    return alpha_from_cumulative(pH, cumulative_pKa(pKa_m))
+@dataclass(frozen=True)
+class Measured:
+    """A lab's description: pH [-], alkalinity [eq/L], its definition and end point pH [-]."""
+
+    pH: float
+    alkalinity_eq_per_L: float
+    definition: str = "end-point"
+    end_point_pH: float = TOTAL_END_POINT_PH
 
 
-def _num(value, field: str, lo=None, hi=None) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        raise InputError(f"{field} must be a finite number, got {value!r}", field=field)
-    value = float(value)
-    if lo is not None and value < lo:
-        raise InputError(f"{field} = {value:g} is below the allowed minimum {lo:g}", field=field)
-    if hi is not None and value > hi:
-        raise InputError(f"{field} = {value:g} is above the allowed maximum {hi:g}", field=field)
-    return value
+@dataclass
+class Closed:
+    """A closed, electroneutral water ready for titration or dosing.
 
-
-class _Medium:
-    """Mixed constants and water ions at one ionic strength."""
-
-    def __init__(self, parsed):
-        self.lg = gamma_function(parsed.T, parsed.model)
-        self.pKw = parsed.pKw
-
-    def mixed(self, comp, I):
-        sizes = comp.ion_sizes or (None,) * len(comp.charges)
-        lgs = [self.lg(z, a, I) for z, a in zip(comp.charges, sizes)]
-        return [pk + lgs[j + 1] - lgs[j] for j, pk in enumerate(comp.pKa)]
-
-    def water(self, pH, I):
-        lgH = self.lg(1, ION_SIZE_H, I)
-        lgOH = self.lg(-1, ION_SIZE_OH, I)
-        return 10.0 ** (-pH - lgH), 10.0 ** (pH - self.pKw - lgOH)
-
-
-def _close(parsed, pH: float, *, alk=None, carb_index=None, definition="end-point", end_pH=TOTAL_END_POINT_PH,
-           field_alk="measured.alkalinity.value"):
-    """Iterate (carbonate total, balancing charge, I) at a fixed pH.
-
-    Returns (carbonate total or None, balancing charge [eq/L], I).
+    ``scenario`` is the closed scenario (totals in mol/L; no ``pH``, ``gas`` or ``measured``),
+    ``wm`` its tableau and ``sol`` its equilibrium; ``precipitate`` the solids its scenario
+    allows.
     """
-    med = _Medium(parsed)
-    comps = parsed.components
-    ions = parsed.ions
-    S = sum(i.charge * i.conc_M for i in ions)
-    J = 0.5 * sum(i.charge * i.charge * i.conc_M for i in ions)
-    I = parsed.I_fixed if parsed.I_fixed is not None else max(J, 1e-6)
-    C = None
-    for _ in range(200):
-        H, OH = med.water(pH, I)
-        totals = [c.total_M for c in comps]
-        if alk is not None:
-            # alkalinity at pH (and at the end point) from everything but the carbonate
-            def parts(p):
-                h, oh = med.water(p, I)
-                other = oh - h
-                unit = 0.0
-                for k, c in enumerate(comps):
-                    a = _alphas(p, med.mixed(c, I))
-                    mean = sum(i * x for i, x in enumerate(a))
-                    if k == carb_index:
-                        unit = mean  # alpha1 + 2 alpha2
-                    else:
-                        other += c.total_M * (mean - reference_index(c.pKa, TOTAL_END_POINT_PH))
-                return other, unit
-            other, unit = parts(pH)
-            if definition == "end-point":
-                other_e, unit_e = parts(end_pH)
-                other -= other_e
-                unit -= unit_e
-            if unit <= 0.0:
-                raise InputError(
-                    f"measured pH {pH:g} is at or below the alkalinity end point pH {end_pH:g}: carbonate "
-                    f"cannot be inferred from an alkalinity there", field="measured.pH")
-            C = (alk - other) / unit
-            if C < 0.0:
-                raise InputError(
-                    f"measured alkalinity {alk * 1e3:.4g} meq/L is less than pH {pH:g} and the other systems "
-                    f"give without any carbonate ({other * 1e3:.4g} meq/L): the measurements are inconsistent",
-                    field=field_alk)
-            totals[carb_index] = C
-        # charge balance at pH: H - OH + S + sum C zbar + q = 0
-        f = H - OH + S
-        Jsys = 0.0
-        for c, tot in zip(comps, totals):
-            a = _alphas(pH, med.mixed(c, I))
-            f += tot * sum(z * x for z, x in zip(c.charges, a))
-            Jsys += tot * sum(z * z * x for z, x in zip(c.charges, a))
-        q = -f
-        I_new = J + 0.5 * (Jsys + abs(q) + H + OH)
-        if parsed.I_fixed is not None or parsed.model == "ideal":
-            return C, q, (parsed.I_fixed if parsed.I_fixed is not None else I_new)
-        if abs(I_new - I) <= 1e-12 * I_new + 1e-18:
-            return C, q, I_new
-        I = I_new
-    raise ConvergenceError("ionic strength did not settle while closing the water at its pH", field=None)
+
+    scenario: dict
+    wm: object
+    sol: object
+    notes: list = field(default_factory=list)
+    inferred: dict | None = None
+    precipitate: tuple = ()
+
+    @property
+    def eq(self):
+        """The solution (the name earlier versions used)."""
+        return self.sol
 
 
-def _balance_entry(q: float) -> dict | None:
-    if q == 0.0:
-        return None
-    return {"custom": {"name": BALANCE_NAME, "charge": 1 if q > 0 else -1}, "total": abs(q), "unit": "mol/L"}
+def _num(value, field_name: str, lo=None, hi=None) -> float:
+    return number(value, field_name, lo=lo, hi=hi)
 
 
-def resolve_measured(scenario: dict) -> tuple[dict, dict]:
-    """Turn a scenario with ``measured`` into an ordinary one (carbonate total and balancing ion).
+def read_measured(scenario: dict) -> tuple[dict, Measured]:
+    """Check a scenario's ``measured`` block; the scenario to parse and the measurements.
 
     Parameters
     ----------
@@ -174,30 +129,22 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
 
     Returns
     -------
-    tuple of (dict, dict)
-        The ordinary scenario (no ``measured``, no ``pH``; totals in mol/L) and the inferred
-        values ``{"pH", "alkalinity_meq_per_L", "alkalinity_definition", "DIC_M",
-        "DIC_mg_per_L_as_C", "balancing_ion_eq_per_L", "ionic_strength_M"}``
+    tuple of (dict, Measured)
+        The scenario without ``measured`` and with a carbonate system of total 0 appended
+        (for the boundary to parse), and the measurements
 
     Raises
     ------
     InputError
         A missing or unknown alkalinity unit (field ``measured.alkalinity.unit``), a conflict
-        with ``pH``, ``gas`` or a carbonate total, or measurements that no carbonate total fits
+        with ``pH``, ``gas`` or a carbonate total, a pH at or below the end point
 
     Examples
     --------
-    Lab report: pH 8.0 and 100 mg/L as CaCO3 (1.998 meq/L), ideal activities. At pH 8
-    (pKa 6.352, 10.329) alpha1 + 2 alpha2 = 0.9826, so DIC = (1.998 - [OH-]) / 0.9826:
-
-    >>> sc, info = resolve_measured({"activity": "ideal", "measured": {"pH": 8.0,
-    ...     "alkalinity": {"value": 100, "unit": "mg/L as CaCO3", "definition": "equivalence-point"}}})
-    >>> round(info["DIC_M"] * 1e3, 2)
-    2.03
+    >>> base, m = read_measured({"measured": {"pH": 8.0, "alkalinity": {"value": 100, "unit": "mg/L as CaCO3"}}})
+    >>> base["systems"], round(m.alkalinity_eq_per_L * 1e3, 4)
+    ([{'id': 'carbonate', 'total': 0.0, 'unit': 'mol/L'}], 1.9983)
     """
-    from ..data import library
-    from ..boundary.scenario import read_scenario
-
     m = scenario.get("measured")
     if not isinstance(m, dict):
         raise InputError("measured must be an object like {\"pH\": 7.5, \"alkalinity\": {\"value\": 120, "
@@ -207,9 +154,9 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
     if scenario.get("gas") is not None:
         raise InputError("measured (pH and alkalinity) fixes the carbonate total; it cannot be combined with gas",
                          field="gas")
-    pH = _num(m.get("pH"), "measured.pH", 0.0, 14.0) if m.get("pH") is not None else None
-    if pH is None:
+    if m.get("pH") is None:
         raise InputError("measured.pH is required", field="measured.pH")
+    pH = _num(m.get("pH"), "measured.pH", 0.0, 14.0)
     a = m.get("alkalinity")
     if not isinstance(a, dict):
         raise InputError("measured.alkalinity must be an object {\"value\", \"unit\"}", field="measured.alkalinity")
@@ -235,12 +182,148 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
         if isinstance(e, dict) and e.get("id") == "carbonate":
             raise InputError(f"systems[{i}]: the carbonate total is inferred from measured pH and alkalinity; "
                              "remove it or drop measured", field=f"systems[{i}]")
-    library.get_system("carbonate")
     base = {k: v for k, v in scenario.items() if k != "measured"}
     base["systems"] = systems + [{"id": "carbonate", "total": 0.0, "unit": "mol/L"}]
-    parsed = read_scenario(base)
-    carb = len(parsed.components) - 1
-    C, q, I = _close(parsed, pH, alk=alk_meq * 1e-3, carb_index=carb, definition=definition, end_pH=end_pH)
+    return base, Measured(pH, alk_meq * 1e-3, definition, end_pH)
+
+
+def _with_balance(parsed, systems=None):
+    """The parsed water's model with two balancing-ion components (+1 and -1, total 0)."""
+    ions = list(parsed.ions) + [IonInput(_BAL[0], BALANCE_NAME, 1, 0.0), IonInput(_BAL[1], BALANCE_NAME, -1, 0.0)]
+    wm = model_of(parsed, systems=systems, ions=ions)
+    return wm, wm.comp_index[_BAL[0]], wm.comp_index[_BAL[1]]
+
+
+def _alkalinity(wm, sol, measured, r, guess):
+    """Measured-kind alkalinity of a solved water and its slope per mole of carbonate [eq/L, eq/mol]."""
+    jc = wm.comp_index["carbonate"]
+    _, g = derivatives(sol, trace=(jc,))
+    if measured.definition == "end-point":
+        a, at = end_point_alkalinity(wm, sol, measured.end_point_pH, guess=guess)
+        _, ge = derivatives(at, trace=(jc,))
+        return a, ge[jc] - g[jc], at.state
+    return equivalence_alkalinity(sol, r), r[jc] - g[jc], None
+
+
+def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None):
+    """Iterate (carbonate total, balancing charge, I) at a fixed pH.
+
+    Returns (carbonate total or None, balancing charge q [eq/L], I [mol/L]).
+    """
+    wm, jp, jm = _with_balance(parsed, systems)
+    totals = list(wm.totals)
+    jc = wm.comp_index.get("carbonate") if measured is not None else None
+    r = reference_levels(wm, TOTAL_END_POINT_PH)
+    field_alk = "measured.alkalinity.value"
+    q = 0.0
+    C = 0.0
+    state = None
+    state_e = None
+    for _ in range(100):
+        totals[jp], totals[jm] = max(q, 0.0), max(-q, 0.0)
+        if measured is not None:
+            # Newton on C at this balancing charge (monotone: the slope is the acceptor count)
+            lo, hi = 0.0, math.inf
+            for _ in range(100):
+                totals[jc] = C
+                sol = resolve(wm, pH=pH, totals=totals, guess=state)
+                state = sol.state
+                a, slope, state_e = _alkalinity(wm, sol, measured, r, state_e)
+                f = a - measured.alkalinity_eq_per_L
+                if not slope > 0.0:
+                    raise InputError(
+                        f"measured pH {pH:g} is at or below the alkalinity end point pH {measured.end_point_pH:g}: "
+                        "carbonate cannot be inferred from an alkalinity there", field="measured.pH")
+                if f > 0.0:
+                    if C == 0.0:
+                        raise InputError(
+                            f"measured alkalinity {measured.alkalinity_eq_per_L * 1e3:.4g} meq/L is less than "
+                            f"pH {pH:g} and the other systems give without any carbonate ({a * 1e3:.4g} meq/L): "
+                            "the measurements are inconsistent", field=field_alk)
+                    hi = C
+                else:
+                    lo = C
+                step = f / slope
+                Cn = C - step
+                if not lo <= Cn <= hi:
+                    Cn = 0.5 * (lo + hi) if math.isfinite(hi) else 2.0 * max(C, 1e-12)
+                if abs(Cn - C) <= CLOSE_RTOL * max(Cn, 1e-15) or abs(f) <= CLOSE_RTOL * max(
+                        measured.alkalinity_eq_per_L, 1e-15):
+                    C = Cn
+                    break
+                C = Cn
+            else:
+                raise ConvergenceError("the carbonate total did not settle at the measured pH", field=None)
+            totals[jc] = C
+        sol = resolve(wm, pH=pH, totals=totals, guess=state)
+        state = sol.state
+        # at fixed pH and I the charge moves one for one with the balancing charge
+        q_new = q - sol.charge_residual
+        scale = sum(abs(sp.charge) * c for sp, c in zip(wm.tab.species, sol.conc))
+        if abs(q_new - q) <= CLOSE_RTOL * max(scale, 1e-300):
+            return (C if measured is not None else None), q_new, sol.I
+        q = q_new
+    raise ConvergenceError("ionic strength did not settle while closing the water at its pH", field=None)
+
+
+def _balance_entry(q: float) -> dict | None:
+    if q == 0.0:
+        return None
+    return {"custom": {"name": BALANCE_NAME, "charge": 1 if q > 0 else -1}, "total": abs(q), "unit": "mol/L"}
+
+
+def _balance_ion(q: float, index: int) -> IonInput:
+    """The balancing ion as the boundary reads it back (``custom-ion-<index>``, no ion size)."""
+    return IonInput(f"custom-ion-{index}", BALANCE_NAME, 1 if q > 0 else -1, abs(q))
+
+
+def resolve_measured(base: dict, parsed=None, measured: Measured | None = None) -> tuple[dict, dict]:
+    """Turn a measured water into an ordinary one (carbonate total and balancing ion).
+
+    Parameters
+    ----------
+    base : dict
+        The scenario :func:`read_measured` returned
+    parsed : object
+        ``base`` parsed by the boundary (``acidscape.boundary.scenario.read_scenario``); its last
+        system is the carbonate placeholder
+    measured : Measured
+        The measurements :func:`read_measured` returned
+
+    Returns
+    -------
+    tuple of (dict, dict)
+        The ordinary scenario (no ``measured``, no ``pH``; totals in mol/L) and the inferred
+        values ``{"pH", "alkalinity_meq_per_L", "alkalinity_definition", "DIC_M",
+        "DIC_mg_per_L_as_C", "balancing_ion_eq_per_L", "ionic_strength_M", "note"}``
+
+    Raises
+    ------
+    InputError
+        Measurements that no carbonate total fits (field ``measured.alkalinity.value``)
+
+    Examples
+    --------
+    Lab report: pH 8.0 and 100 mg/L as CaCO3 (1.998 meq/L), ideal activities, equivalence
+    point. At pH 8 (pKa 6.352, 10.329) alpha1 + 2 alpha2 = 0.9826, so DIC = (1.998 - [OH-]) / 0.9826:
+
+    >>> from types import SimpleNamespace
+    >>> from acidscape.science.tableau import SystemInput
+    >>> base, m = read_measured({"measured": {"pH": 8.0, "alkalinity": {
+    ...     "value": 100, "unit": "mg/L as CaCO3", "definition": "equivalence-point"}}})
+    >>> carbonate = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2),
+    ...                         (6.352, 10.329), 0.0)
+    >>> parsed = SimpleNamespace(components=[carbonate], ions=[], T=298.15, pKw=13.995, model="ideal",
+    ...                          I_fixed=None, complexes=False)
+    >>> _, info = resolve_measured(base, parsed, m)
+    >>> round(info["DIC_M"] * 1e3, 2)
+    2.03
+    """
+    if parsed is None:  # TRANSITION: resolve_measured(scenario) of earlier versions (boundary reads)
+        base, measured = read_measured(base)
+        parsed = _read(base)
+    pH = measured.pH
+    C, q, I = _close(parsed, pH, measured=measured)
     out = copy.deepcopy(base)
     out["systems"][-1] = {"id": "carbonate", "total": C, "unit": "mol/L"}
     bal = _balance_entry(q)
@@ -248,8 +331,8 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
         out["ions"] = list(out.get("ions") or []) + [bal]
     info = {
         "pH": pH,
-        "alkalinity_meq_per_L": alk_meq,
-        "alkalinity_definition": (f"fixed end point pH {end_pH:g}" if definition == "end-point"
+        "alkalinity_meq_per_L": measured.alkalinity_eq_per_L * 1e3,
+        "alkalinity_definition": (f"fixed end point pH {measured.end_point_pH:g}" if measured.definition == "end-point"
                                   else "equivalence point (H2CO3* reference)"),
         "DIC_M": C,
         "DIC_mg_per_L_as_C": C * ATOMIC_WEIGHT["C"] * 1e3,
@@ -260,60 +343,72 @@ def resolve_measured(scenario: dict) -> tuple[dict, dict]:
     return out, info
 
 
-@dataclass
-class Closed:
-    """A closed, electroneutral water ready for titration or dosing."""
-
-    scenario: dict
-    parsed: object
-    eq: object
-    notes: list = field(default_factory=list)
-    inferred: dict | None = None
-
-
-def close_scenario(scenario: dict) -> Closed:
-    """The closed, electroneutral scenario equivalent to ``scenario``, parsed and solved.
-
-    ``measured`` is resolved (:func:`resolve_measured`); a given ``pH`` becomes a balancing
-    ion so the water solves to that pH; a water open to CO2 is closed at its equilibrium
-    carbonate total. Totals in the returned scenario are in mol/L.
-    """
+def _read(scenario: dict):
+    """TRANSITION (remove when the boundary passes parsed waters): read a scenario."""
     from ..boundary.scenario import read_scenario
-    from ..science.solver import equilibrate
 
+    return read_scenario(scenario)
+
+
+def close_scenario(scenario: dict, parsed=None) -> Closed:
+    """The closed, electroneutral water equivalent to ``scenario``, solved by the model.
+
+    Parameters
+    ----------
+    scenario : dict
+        An ordinary scenario (``measured`` already resolved by :func:`resolve_measured`)
+    parsed : object
+        ``scenario`` parsed by the boundary
+
+    Returns
+    -------
+    Closed
+        A given ``pH`` becomes a balancing ion so the water solves to that pH; a water open
+        to CO2 is closed at its equilibrium carbonate total. Totals in the returned scenario
+        are in mol/L.
+    """
     if not isinstance(scenario, dict):
         raise InputError("the scenario must be a JSON object", field="scenario")
-    notes = []
     inferred = None
-    if scenario.get("measured") is not None:
-        scenario, inferred = resolve_measured(scenario)
-    parsed = read_scenario(scenario)
+    if parsed is None:  # TRANSITION: close_scenario(scenario) of earlier versions (boundary reads)
+        if scenario.get("measured") is not None:
+            scenario, inferred = resolve_measured(scenario)
+        parsed = _read(scenario)
+    notes = []
+    precipitate = tuple(getattr(parsed, "precipitate", ()) or ())
     out = copy.deepcopy(scenario)
-    entries = list(out.get("systems") or [])
-    new_entries = []
-    if parsed.CO2_partial_pressure_atm is not None or parsed.pH is not None:
-        eq = equilibrate(parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
-                         I_fixed=parsed.I_fixed, pH=parsed.pH)
-        for k, st in enumerate(eq.systems):
-            e = dict(entries[k]) if k < len(entries) else {"id": st.component.key}
-            e["total"] = st.total_M
+    systems, ions = list(parsed.components), list(parsed.ions)
+    pH_given = parsed.pH
+    if parsed.CO2_partial_pressure_atm is not None or pH_given is not None:
+        wm0 = model_of(parsed)
+        sol0 = wm0.solve(pH=pH_given, allow_solids=precipitate)
+        entries = list(out.get("systems") or [])
+        new_entries = []
+        closed_systems = []
+        for k, comp in enumerate(systems):
+            total = sol0.totals[wm0.comp_index[comp.key]]
+            e = dict(entries[k]) if k < len(entries) else {"id": comp.key}
+            e["total"] = total
             e["unit"] = "mol/L"
             new_entries.append(e)
+            closed_systems.append(dataclasses.replace(comp, total_M=total, fixed_first_M=None))
         out["systems"] = new_entries
+        systems = closed_systems
         if parsed.CO2_partial_pressure_atm is not None:
             out.pop("gas", None)
+            carb = next((s.total_M for s in systems if s.key == "carbonate"), 0.0)
             notes.append("water open to CO2: treated as closed at its equilibrium carbonate total "
-                         f"({eq.systems[-1].total_M * 1e3:.4g} mmol/L) from the moment of titration or dosing")
-        if parsed.pH is not None:
-            reparsed = read_scenario({k: v for k, v in out.items() if k != "pH"})
-            _, q, _ = _close(reparsed, parsed.pH)
+                         f"({carb * 1e3:.4g} mmol/L) from the moment of titration or dosing")
+        if pH_given is not None:
+            _, q, _ = _close(parsed, pH_given, systems=systems)
             out.pop("pH", None)
             bal = _balance_entry(q)
             if bal is not None:
+                ions.append(_balance_ion(q, len(out.get("ions") or [])))
                 out["ions"] = list(out.get("ions") or []) + [bal]
-                notes.append(f"the given pH {parsed.pH:g} leaves a charge imbalance of {q * 1e3:.4g} meq/L; "
+                notes.append(f"the given pH {pH_given:g} leaves a charge imbalance of {q * 1e3:.4g} meq/L; "
                              "it is carried by a monovalent balancing ion")
-        parsed = read_scenario(out)
-    eq = equilibrate(parsed.components, parsed.ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model,
-                     I_fixed=parsed.I_fixed)
-    return Closed(scenario=out, parsed=parsed, eq=eq, notes=notes + list(parsed.warnings), inferred=inferred)
+    wm = model_of(parsed, systems=systems, ions=ions)
+    sol = wm.solve(allow_solids=precipitate)
+    return Closed(scenario=out, wm=wm, sol=sol, notes=notes + list(parsed.warnings), inferred=inferred,
+                  precipitate=precipitate)

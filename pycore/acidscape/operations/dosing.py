@@ -1,25 +1,29 @@
 """Dose of a chemical that brings a water to a target pH, and the product feed at a plant.
 
-A dose of d mol/L of a chemical adds fixed amounts of strong ions and of
-acid-base system totals (``data/chemicals.csv``). At the target pH every alpha
-fraction is fixed, so the charge balance after dosing is linear in d:
+A dose of d mol/L of a chemical adds fixed amounts of strong ions and of acid-base system
+totals (``data/chemicals.csv``). The water after dosing is solved by the one equilibrium
+model at the target pH (ion pairs and complexes included), and the dose is the root of its
+charge, R(d) = 0 (:class:`acidscape.operations.mixture.Mixture`, without dilution: a plant
+dose is per litre of water treated). Without complexes R is linear in d at fixed ionic
+strength, so one Newton step gives the explicit dose
 
 .. math::
 
-    \\underbrace{[H^+] - [OH^-] + S + \\sum C_T \\bar z}_{N(\\mathrm{pH})}
-    + d\\,\\underbrace{\\Big(\\sum_j n_j z_j + \\sum_s n_s \\bar z_s\\Big)}_{M(\\mathrm{pH})} = 0
-    \\quad\\Rightarrow\\quad d = -N/M,
+    d = -\\frac{N(\\mathrm{pH})}{M(\\mathrm{pH})}, \\qquad
+    N = [H^+] - [OH^-] + S + \\sum C_T \\bar z, \\qquad M = \\sum_j n_j z_j + \\sum_s n_s \\bar z_s,
 
-solved explicitly (the same relation as the titration curves of
-:mod:`acidscape.operations.titration`, without dilution: a plant dose is per litre of water
-treated). With activity corrections the ionic strength after dosing depends on
-d, so (d, I) is iterated to a fixed point. The target cannot be reached when
+(the same relation as the titration curves of :mod:`acidscape.operations.titration`); with
+complexes, or as the ionic strength the dose adds changes the activity coefficients, a few
+more steps follow. Solids named in ``precipitate`` (calcite after lime or soda ash) may
+form as the dose is added: the water after is then at equilibrium with them, the dose
+includes what they take up, and the result reports them. The target cannot be reached when
 
-* d < 0: the chemical moves the pH the other way (an acid to raise pH);
-* M vanishes between the water's pH and the target: the chemical cannot take
-  the pH past the pH where it stops acting as an acid or base (NaHCO3 near
-  (pKa1 + pKa2)/2 = 8.3; a library acid near its own pH);
-* the dose exceeds 5 mol/L (beyond any treatment and the activity models);
+* the chemical moves the pH the other way (an acid to raise pH);
+* the target lies beyond the pH the chemical approaches however much is dosed, where one
+  more mole brings no charge (NaHCO3 near (pKa1 + pKa2)/2 = 8.3; a library acid near its
+  own pH);
+* the dose exceeds 5 mol/L (beyond any treatment and the activity models), or grows without
+  bound because the salt it adds moves the pH back (activity corrections);
 * for CO2, the dissolved H2CO3* after dosing would exceed its solubility under
   1 atm of pure CO2, K_H(T) x 1 atm (Plummer & Busenberg 1982 via
   :func:`acidscape.science.temperature.log10_KH_CO2`): more cannot stay dissolved.
@@ -29,26 +33,37 @@ dose [mg/L] x flow [L/d] x 1e-6; volume = mass / density. 1 US gallon =
 3.785411784 L exactly (by definition, NIST Handbook 44 / SP 811, from memory);
 MGD = 10^6 US gallons per day.
 
-Precipitation (CaCO3 after lime or soda ash), gas exchange after dosing and
-temperature change are not modelled; a jar or bench test confirms any dose.
+Gas exchange after dosing and temperature change are not modelled; a jar or bench test
+confirms any dose. Every dose result carries :data:`CAUTIONS`.
 
 Functions
 ---------
 chemicals() -> dict[str, Chemical]         dosing chemicals and titrants (data/chemicals.csv)
 get_chemical(id) -> Chemical               a chemical, or a library system's neutral species
 flow_L_per_d(value, unit) -> float         plant flow in L/d
-dose_to_pH(scenario, chemical, target_pH, ...) -> dict
+dose_amount(closed, chemical, target_pH, precipitate=()) -> (d, I)
+dose_to_pH(closed, chemical, target_pH, ...) -> dict
 """
 
 from __future__ import annotations
 
+import copy
 import functools
 import math
 from dataclasses import dataclass
+from importlib.resources import files
 
+from ..checks import number
+from ..constants import ATOMIC_WEIGHT
+from ..data import library
+from ..data.formula import molar_mass
 from ..errors import InputError, UnknownIdError, UnreachableError
-from .titration import MAX_AMOUNT_M, PH_RANGE, Engine
-from ..science.speciation import alpha_from_cumulative
+from ..science import temperature
+from ..science.tableau import SystemInput
+from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, equivalence_alkalinity, reference_index, reference_levels
+from .closure import Closed, close_scenario
+from .mixture import MAX_AMOUNT_M, PH_RANGE, Mixture, limit_pH_trace
+from .probe import aqueous_totals, ionic_strength
 
 #: Litres per US gallon, exact by definition (NIST SP 811, from memory).
 L_PER_US_GALLON = 3.785411784
@@ -61,6 +76,19 @@ FLOW_UNITS = {
     "MGD": 1e6 * L_PER_US_GALLON,
     "gpm": 1440.0 * L_PER_US_GALLON,
 }
+#: The cautions that travel with every dose result (page, CLI, batch); common practice of
+#: chemical handling in water treatment, worded here.
+CAUTIONS = (
+    "These doses are estimates from a chemical model of each water as described, not measurements.",
+    "Caustics and acids burn skin and eyes: wear the protective equipment your site requires.",
+    "Confirm a dose with a jar or bench test on the water itself before changing a chemical feed; "
+    "change a feed in small steps.",
+    "Guard against overfeed: keep pH alarms and monitoring working and limit the feed pumps.",
+    "Local regulations, your permits and licensed operators decide what is dosed.",
+)
+#: The same in one line, for a table row.
+CAUTION_LINE = ("Estimate only: PPE for caustics and acids; confirm by jar or bench test; guard against "
+                "overfeed; local codes and licensed operators decide.")
 
 
 @dataclass(frozen=True)
@@ -82,14 +110,10 @@ class Chemical:
 
     def components_at(self, T: float) -> dict:
         """Solver components of the systems this chemical adds, with pKa at T [K]."""
-        from ..data import library
-        from ..science import temperature
-        from ..science.solver import Component
-
         out = {}
         for key, _ in self.systems:
             s = library.get_system(key)
-            out[key] = Component(
+            out[key] = SystemInput(
                 key=s.id, name=s.name, species=tuple(sp.formula for sp in s.species),
                 charges=tuple(sp.charge for sp in s.species), pKa=tuple(temperature.pKa_at(s, T)),
                 total_M=0.0, ion_sizes=tuple(sp.ion_size_A for sp in s.species))
@@ -117,8 +141,6 @@ def _pairs(text: str, where: str) -> tuple:
 
 
 def _alkalinity_per_mol(ion_pairs, system_pairs) -> float:
-    from ..data import library
-    from .alkalinity import TOTAL_END_POINT_PH, reference_index
 
     a = sum(z * n for z, n in ion_pairs)
     for key, n in system_pairs:
@@ -143,11 +165,6 @@ def chemicals() -> dict:
     >>> chemicals()["Na2CO3"].alkalinity_eq_per_mol
     2.0
     """
-    from importlib.resources import files
-
-    from ..data import library
-    from ..data.formula import molar_mass
-
     name, rows = library._rows(files("acidscape") / "data" / "chemicals.csv",
                                ("id", "name", "molar_mass_g_per_mol", "strong_ions", "systems"))
     out = {}
@@ -194,8 +211,6 @@ def get_chemical(id: str, field: str = "chemical") -> Chemical:
     >>> c.name, c.alkalinity_eq_per_mol
     ('NH3 (Ammonium (NH4+/NH3))', 1.0)
     """
-    from ..data import library
-
     table = chemicals()
     if isinstance(id, str) and id in table:
         return table[id]
@@ -241,137 +256,247 @@ def flow_L_per_d(value, unit) -> float:
     if unit not in FLOW_UNITS:
         raise UnknownIdError(f"flow_unit = {unit!r} is not known; use one of " + ", ".join(FLOW_UNITS),
                              field="flow_unit")
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        raise InputError(f"flow must be a finite number, got {value!r}", field="flow")
+    value = number(value, "flow")
     if value < 0:
         raise InputError(f"flow = {value:g} {unit} is negative; a flow is zero or more", field="flow")
     return float(value) * FLOW_UNITS[unit]
 
 
-def _opt_number(value, field, lo, hi, lo_open=True):
+def _opt_number(value, field, lo, hi):
+    """None, or a number in the half-open range (lo, hi]."""
     if value is None:
         return None
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        raise InputError(f"{field} must be a finite number, got {value!r}", field=field)
-    v = float(value)
-    if (v <= lo if lo_open else v < lo) or v > hi:
+    v = number(value, field, hi=hi)
+    if not v > lo:
         raise InputError(f"{field} = {v:g} is outside the allowed range ({lo:g}, {hi:g}]", field=field)
     return v
 
 
-def dose_amount(closed, chem, target_pH: float) -> tuple[float, float]:
-    """Dose [mol/L] of ``chem`` that takes a closed water to ``target_pH``, and the ionic strength after.
+def _solids(precipitate) -> tuple[str, ...]:
+    """Validate ``precipitate``: a list of solid ids of the database."""
+    if precipitate is None:
+        return ()
+    if isinstance(precipitate, str) or not isinstance(precipitate, (list, tuple)):
+        raise InputError(f"precipitate must be a list of solid ids such as [\"calcite\"], got {precipitate!r}",
+                         field="precipitate")
+    known = {s.id for s in library.solids()}
+    out = []
+    for k, sid in enumerate(precipitate):
+        if sid not in known:
+            raise UnknownIdError(f"precipitate[{k}] = {sid!r} is not a solid of the database; known: "
+                                 + ", ".join(sorted(known)), field="precipitate")
+        if sid not in out:
+            out.append(sid)
+    return tuple(out)
 
-    Raises :class:`UnreachableError` when the target cannot be reached (see module notes).
-    """
-    from ..science.temperature import log10_KH_CO2
 
-    p = closed.parsed
-    engine = Engine(p.components, p.ions, T=p.T, pKw=p.pKw, model=p.model, I_fixed=p.I_fixed, chemical=chem,
-                    added_components=chem.components_at(p.T), titrant_M=None)
-    pH0, I0 = closed.eq.pH, closed.eq.I
+@dataclass
+class _Dose:
+    d: float          # [mol/L]
+    sol: object       # the water after, at the target pH
+    mix: Mixture
+    allow: tuple
+    I: float          # ionic strength after [mol/L]
+
+
+def _dose(closed: Closed, chem, target_pH: float, allow: tuple = ()) -> _Dose:
+    """The dose and the water after (see :func:`dose_amount`)."""
+    mix = Mixture(closed, chem, titrant_M=None, allow=allow)
+    pH0, I0 = closed.sol.pH, closed.sol.I
     if abs(target_pH - pH0) < 1e-9:
-        return 0.0, I0
-    g0 = engine.direction_term(pH0, I0)
+        return _Dose(0.0, mix.solve(pH0, 0.0, I=I0, guess=closed.sol.state), mix, allow, I0)
+    sol0 = mix.solve(pH0, 0.0, I=I0, guess=closed.sol.state)
+    g0 = mix.charge_per_mol(sol0, 0.0)
     upward = g0 > 0
     role = "an acid" if g0 < 0 else ("a base" if g0 > 0 else "neutral")
     wrong_side = g0 == 0.0 or (target_pH > pH0) != upward
     if not wrong_side:
-        limit = engine.limit_pH(pH0, I0, upward, end=target_pH)
+        limit = limit_pH_trace(mix, pH0, upward, target_pH, I0)
         if limit is not None:
             raise UnreachableError(
                 f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the "
                 f"pH only approaches {limit:.2f}", field="target_pH")
-    # The amount comes from the self-consistent (dose, I) pair. Where the salt a dose adds moves
-    # the meter pH against the chemical's acid-base action (activity corrections), a target on the
-    # "wrong" side can still be reached; it is accepted when the amount is finite and positive.
-    d, I, _ = engine.amount(target_pH, I0, scan=wrong_side)
-    if not d >= 0.0 or not math.isfinite(d):
-        if wrong_side:
+        d, sol, ok, I_after = mix.amount(target_pH, 0.0, I0=I0, guess=sol0.state, sign=1.0 if upward else -1.0,
+                                         d_max=MAX_AMOUNT_M, exact=True, robust=True)
+    else:
+        # Where the salt a dose adds moves the meter pH against the chemical's acid-base action
+        # (activity corrections), a target on the "wrong" side can still be reached at some dose:
+        # scan the dose for the first change of sign of the charge, then refine.
+        d, sol, ok, I_after = _scan(mix, target_pH, I0, sol0.state)
+        if not ok:
             raise UnreachableError(
                 f"{chem.id} acts as {role} on this water (pH {pH0:.2f}); it "
                 f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring "
                 f"it to {target_pH:g}", field="target_pH")
+    if not ok:
+        # no root up to the cap: either the root lies beyond it, or the dose grows without bound
+        dR = None if sol.solids else mix.charge_per_mol(sol, d)
+        beyond = -sol.charge_residual / dR + d if dR else math.inf
+        if mix.stopped == "cap" and dR and (dR > 0) == upward and math.isfinite(beyond) and beyond > MAX_AMOUNT_M:
+            raise UnreachableError(
+                f"pH {target_pH:g} needs {beyond:.3g} mol/L of {chem.id}, more than the {MAX_AMOUNT_M:g} mol/L "
+                "accepted (beyond water treatment and the activity models)", field="target_pH")
         raise UnreachableError(
             f"pH {target_pH:g} is beyond what {chem.id} can give this water: the dose needed grows without "
             f"bound, because the ionic strength it adds lowers the pH {chem.id} can reach (activity "
             "corrections)", field="target_pH")
-    if d > MAX_AMOUNT_M:
-        raise UnreachableError(
-            f"pH {target_pH:g} needs {d:.3g} mol/L of {chem.id}, more than the {MAX_AMOUNT_M:g} mol/L "
-            "accepted (beyond water treatment and the activity models)", field="target_pH")
-    if chem.is_gas:
-        C = sum(c.total_M for c in p.components if c.key == "carbonate") + d
-        a0 = _a0_carbonate(engine, target_pH, I)
-        sat = 10.0 ** log10_KH_CO2(p.T)
-        if C * a0 > sat:
+    if chem.is_gas and "carbonate" in mix.wm.system_species:
+        h2co3 = sol.conc[mix.wm.system_species["carbonate"][0]]
+        sat = 10.0 ** temperature.log10_KH_CO2(mix.wm.T)
+        if h2co3 > sat:
             raise UnreachableError(
-                f"pH {target_pH:g} needs {d * 1e3:.4g} mmol/L CO2, leaving {C * a0 * 1e3:.4g} mmol/L dissolved "
+                f"pH {target_pH:g} needs {d * 1e3:.4g} mmol/L CO2, leaving {h2co3 * 1e3:.4g} mmol/L dissolved "
                 f"H2CO3*, more than dissolves under 1 atm of pure CO2 ({sat * 1e3:.4g} mmol/L at "
-                f"{p.T - 273.15:.4g} °C): CO2 cannot take this water that low", field="target_pH")
-    return d, I
+                f"{mix.wm.T - 273.15:.4g} °C): CO2 cannot take this water that low", field="target_pH")
+    return _Dose(d, sol, mix, allow, I_after)
 
 
-def _a0_carbonate(engine, pH, I):
-    _, _, cums = engine._at(I)
-    for s, cum in zip(engine.systems, cums):
-        if s.key == "carbonate":
-            return alpha_from_cumulative(pH, cum)[0]
-    return 0.0
+def _scan(mix: Mixture, pH: float, I0: float, guess):
+    """Smallest dose in (0, 5 mol/L] at which the charge at ``pH`` changes sign, refined; or not found.
+
+    The charge is evaluated on a logarithmic grid (8 per decade from 1e-10 mol/L); the first
+    change of sign brackets the root.
+    """
+    R0, _, sol = mix.charge_at(pH, 0.0, guess)
+    prev = (0.0, R0)
+    for k in range(1, 81):
+        d = MAX_AMOUNT_M * 10.0 ** ((k - 80) / 8.0)   # 1e-10 .. 5 mol/L
+        R, _, sol = mix.charge_at(pH, d, sol.state)
+        if (R > 0.0) != (prev[1] > 0.0):
+            sign = 1.0 if prev[1] < 0.0 else -1.0
+            dd, sol, ok = mix.root_between(pH, prev[0], sign * prev[1], d, sign * R, sign, sol.state)
+            return dd, sol, ok, sol.I
+        prev = (d, R)
+    return 0.0, sol, False, I0
 
 
-def _after_scenario(closed, chem, d) -> dict:
-    import copy
+def dose_amount(closed, chem, target_pH: float, precipitate=()) -> tuple[float, float]:
+    """Dose [mol/L] of ``chem`` that takes a closed water to ``target_pH``, and the ionic strength after.
 
+    Parameters
+    ----------
+    closed : acidscape.operations.closure.Closed
+        The closed water
+    chem : Chemical
+        What is dosed
+    target_pH : float
+        Target meter pH [-]
+    precipitate : tuple of str
+        Solids allowed to form as the dose is added
+
+    Returns
+    -------
+    tuple of (float, float)
+        Dose [mol/L] and ionic strength after [mol/L]
+
+    Raises
+    ------
+    UnreachableError
+        The target cannot be reached (see module notes)
+    """
+    allow = tuple(dict.fromkeys(tuple(getattr(closed, "precipitate", ())) + _solids(precipitate)))
+    res = _dose(closed, chem, target_pH, allow)
+    return res.d, res.I
+
+
+def _key_of_ion(iid):
+    try:
+        ion = library.get_ion(iid)
+    except Exception:  # a custom ion: no library key
+        return None
+    return ion.id
+
+
+def _after_scenario(closed: Closed, chem, d: float, allow: tuple) -> dict:
+    """The closed scenario with the dose added (totals of the entries it changes in mol/L)."""
     sc = copy.deepcopy(closed.scenario)
-    p = closed.parsed
-    entries = list(sc.get("systems") or [])
-    for k, comp in enumerate(p.components):
-        entries[k] = dict(entries[k], total=comp.total_M, unit="mol/L")
-    for key, n in chem.systems:
-        k = next((i for i, c in enumerate(p.components) if c.key == key), None)
-        if k is None:
-            entries.append({"id": key, "total": n * d, "unit": "mol/L"})
-        else:
-            entries[k]["total"] += n * d
-    sc["systems"] = entries
+    wm = closed.wm
+    systems = list(sc.get("systems") or [])
     ions = list(sc.get("ions") or [])
-    for k, ion in enumerate(p.ions):
-        ions[k] = dict(ions[k], total=ion.conc_M, unit="mol/L")
-    for iid, n in chem.ions:
-        k = next((i for i, e in enumerate(ions) if e.get("id") == iid), None)
-        if k is None:
-            ions.append({"id": iid, "total": n * d, "unit": "mol/L"})
+
+    def total_of(key):
+        return wm.totals[wm.comp_index[key]] if key in wm.comp_index else 0.0
+
+    for key, n in chem.systems:
+        k = next((i for i, e in enumerate(systems) if isinstance(e, dict) and e.get("id") == key), None)
+        if k is not None:
+            systems[k] = dict(systems[k], total=total_of(key) + n * d, unit="mol/L")
+            continue
+        k = next((i for i, e in enumerate(ions) if isinstance(e, dict) and "id" in e
+                  and getattr(_lib_ion(e["id"]), "system", None) == key), None)
+        if k is not None:  # the system's base given as an ion ("sulfate")
+            ions[k] = dict(ions[k], total=total_of(key) + n * d, unit="mol/L")
         else:
-            ions[k]["total"] += n * d
+            systems.append({"id": key, "total": n * d, "unit": "mol/L"})
+    for iid, n in chem.ions:
+        key = _key_of_ion(iid)
+        k = next((i for i, e in enumerate(ions) if isinstance(e, dict) and "id" in e
+                  and _key_of_ion(e["id"]) == key), None)
+        if k is not None:
+            wm_key = key if key in wm.comp_index else ions[k]["id"]
+            ions[k] = dict(ions[k], total=total_of(wm_key) + n * d, unit="mol/L")
+        else:
+            ions.append({"id": iid, "total": n * d, "unit": "mol/L"})
+    sc["systems"] = systems
     sc["ions"] = ions
+    if allow:
+        sc["precipitate"] = list(allow)
     return sc
 
 
-def _summary(res: dict) -> dict:
-    carb = next((s for s in res["systems"] if s["id"] == "carbonate"), None)
-    h2co3 = next((r for r in res["species"] if r["system"] == "carbonate" and r["charge"] == 0), None)
-    from ..constants import ATOMIC_WEIGHT as W
+def _lib_ion(iid):
+    try:
+        return library.get_ion(iid)
+    except Exception:
+        return None
 
+
+def _summary(wm, sol) -> dict:
+    """pH, total alkalinity, DIC, CO2 and ionic strength of a solved water (dissolved part)."""
+    T = aqueous_totals(sol)
+    jc = wm.comp_index.get("carbonate")
+    alk = equivalence_alkalinity(sol, reference_levels(wm, TOTAL_END_POINT_PH))
+    h2co3 = sol.conc[wm.system_species["carbonate"][0]] if jc is not None else 0.0
     return {
-        "pH": res["pH"],
-        "total_alkalinity_meq_per_L": res["alkalinity"]["equivalence_point"]["total_meq_per_L"],
-        "total_alkalinity_mg_per_L_as_CaCO3": res["alkalinity"]["equivalence_point"]["total_mg_per_L_as_CaCO3"],
-        "DIC_mmol_per_L": carb["total_M"] * 1e3 if carb else 0.0,
-        "CO2_mg_per_L": (h2co3["concentration_M"] * (W["C"] + 2 * W["O"]) * 1e3) if h2co3 else 0.0,
-        "ionic_strength_M": res["ionic_strength_M"],
+        "pH": sol.pH,
+        "total_alkalinity_meq_per_L": alk * 1e3,
+        "total_alkalinity_mg_per_L_as_CaCO3": alk * 1e3 * MG_CACO3_PER_MEQ,
+        "DIC_mmol_per_L": T[jc] * 1e3 if jc is not None else 0.0,
+        "CO2_mg_per_L": h2co3 * (ATOMIC_WEIGHT["C"] + 2 * ATOMIC_WEIGHT["O"]) * 1e3,
+        "ionic_strength_M": sol.I if wm.I_fixed is not None else ionic_strength(sol),
     }
 
 
-def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, density_kg_per_L=None,
-               flow=None, flow_unit=None) -> dict:
+def _oversaturation_warnings(wm, sol, allow) -> list[str]:
+    """Calcite (and the most oversaturated other solid) oversaturated after dosing and not allowed to form."""
+    out = []
+    others = []
+    for s, si in sol.SI.items():
+        sid = wm.tab.solids[s].id
+        if sid in allow or si <= 0.0:
+            continue
+        name = getattr(wm.solid_info[s], "name", sid)
+        if sid == "calcite":
+            out.append(f"the dosed water is oversaturated with {name} (SI {si:+.2f}); it may precipitate and "
+                       "take up more of the dose: add \"calcite\" to precipitate to include it")
+        elif si > 0.3:
+            others.append((si, name, sid))
+    if others:
+        si, name, sid = max(others)
+        out.append(f"the dosed water is oversaturated with {name} (SI {si:+.2f}); add \"{sid}\" to precipitate "
+                   "to let it form")
+    return out
+
+
+def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg_per_L=None,
+               flow=None, flow_unit=None, precipitate=None, describe=None) -> dict:
     """Dose of a chemical that brings a water to a target pH, with the plant feed and the water after.
 
     Parameters
     ----------
-    scenario : dict
-        The water (``measured``, ``pH`` and ``gas`` are closed as in
-        :func:`acidscape.operations.closure.close_scenario`)
+    water : acidscape.operations.closure.Closed
+        The closed water (:func:`acidscape.operations.closure.close_scenario` of the parsed
+        scenario; ``measured``, ``pH`` and ``gas`` closed)
     chemical : str
         Chemical id (see :func:`get_chemical`) [-]
     target_pH : float
@@ -384,6 +509,13 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
         Plant flow, >= 0 [flow_unit]
     flow_unit : str, optional
         One of :data:`FLOW_UNITS`
+    precipitate : list of str, optional
+        Solids (ids of the database, e.g. ``["calcite"]``) allowed to form as the dose is
+        added, besides those the water's scenario allows
+    describe : callable, optional
+        ``describe(scenario) -> dict``: the boundary's full description of a water (its
+        ``solve``), used for ``water_before`` and ``water_after``; without it those two keys
+        are left out
 
     Returns
     -------
@@ -392,8 +524,11 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
         added), ``chemical``, ``initial_pH``, ``target_pH``, ``product`` (when strength is given:
         ``product_mg_per_L`` and, with flow, ``feed_kg_per_d``, ``feed_L_per_h``, ``feed_gal_per_d``
         (the last two need the density)), ``pure_chemical_kg_per_d`` (with flow), ``change``
-        (before / after / change of pH, alkalinity, DIC, CO2, ionic strength), ``water_before``,
-        ``water_after`` (``solve`` results), ``warnings``
+        (before / after / change of pH, alkalinity, DIC, CO2, ionic strength of the dissolved
+        water), ``precipitated`` (solids formed by the dose: ``id``, ``name``, ``mol_per_L``,
+        ``mg_per_L``), ``precipitation`` (solids allowed, and the dose that would reach the
+        target if none formed), ``scenario_after``, ``water_before``, ``water_after``
+        (``describe`` results), ``cautions``, ``warnings``
 
     Raises
     ------
@@ -406,20 +541,21 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
     --------
     NaOH to neutralise 1 mmol/L HCl to pH 7 (ideal; stoichiometry: 1 mmol/L, common practice):
 
-    >>> out = dose_to_pH({"activity": "ideal", "ions": [{"id": "Cl-", "total": 1e-3}],
-    ...                   "pH": 3.0}, "NaOH", 7.0)
+    >>> from types import SimpleNamespace
+    >>> from acidscape.science.tableau import IonInput
+    >>> from acidscape.operations.closure import close_scenario
+    >>> parsed = SimpleNamespace(components=[], ions=[IonInput("Cl-", "Cl-", -1, 1e-3)], T=298.15,
+    ...                          pKw=13.995, model="ideal", I_fixed=None, complexes=False, pH=3.0,
+    ...                          CO2_partial_pressure_atm=None, precipitate=(), warnings=[])
+    >>> out = dose_to_pH(close_scenario({"pH": 3.0, "ions": [{"id": "Cl-", "total": 1e-3}]}, parsed),
+    ...                  "NaOH", 7.0)
     >>> round(out["dose_mmol_per_L"], 4)
     1.0
+    >>> len(out["cautions"]) > 0
+    True
     """
-    from ..boundary.api import solve
-    from .closure import close_scenario
-
     chem = get_chemical(chemical, field="chemical")
-    if isinstance(target_pH, bool) or not isinstance(target_pH, (int, float)) or not math.isfinite(target_pH):
-        raise InputError(f"target_pH must be a finite number, got {target_pH!r}", field="target_pH")
-    target_pH = float(target_pH)
-    if not PH_RANGE[0] <= target_pH <= PH_RANGE[1]:
-        raise InputError(f"target_pH = {target_pH:g} is outside {PH_RANGE[0]:g}..{PH_RANGE[1]:g}", field="target_pH")
+    target_pH = number(target_pH, "target_pH", lo=PH_RANGE[0], hi=PH_RANGE[1])
     strength = _opt_number(strength_pct, "strength_pct", 0.0, 100.0)
     density = _opt_number(density_kg_per_L, "density_kg_per_L", 0.0, 5.0)
     flow_Ld = None
@@ -427,15 +563,21 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
         if flow is None:
             raise InputError("flow_unit given without flow", field="flow")
         flow_Ld = flow_L_per_d(flow, flow_unit)
-    closed = close_scenario(scenario)
-    d, _ = dose_amount(closed, chem, target_pH)
+    asked = _solids(precipitate)
+    if isinstance(water, Closed):
+        closed = water
+    else:  # TRANSITION: a scenario dict, read here (the boundary passes a Closed water)
+        closed = close_scenario(water)
+    if describe is None and not isinstance(water, Closed):
+        from ..boundary.api import solve as describe  # TRANSITION: remove with the line above
+    allow = tuple(dict.fromkeys(tuple(closed.precipitate) + asked))
+    res = _dose(closed, chem, target_pH, allow)
+    d = res.d
     warnings = list(closed.notes)
-    before = solve(closed.scenario)
-    after = solve(_after_scenario(closed, chem, d))
     mg = d * chem.molar_mass_g_per_mol * 1e3
     out = {
         "chemical": chem.as_json(),
-        "initial_pH": before["pH"],
+        "initial_pH": closed.sol.pH,
         "target_pH": target_pH,
         "dose_mmol_per_L": d * 1e3,
         "dose_mg_per_L": mg,
@@ -457,13 +599,41 @@ def dose_to_pH(scenario: dict, chemical: str, target_pH, *, strength_pct=None, d
         else:
             warnings.append("give flow and flow_unit for the product feed in kg/d")
         out["product"] = prod
-    b, a = _summary(before), _summary(after)
+    b, a = _summary(closed.wm, closed.sol), _summary(res.mix.wm, res.sol)
     out["change"] = {k: {"before": b[k], "after": a[k], "change": a[k] - b[k]} for k in b}
-    if chem.id in ("Ca(OH)2", "Na2CO3"):
-        warnings.append("CaCO3 and other precipitation are not modelled; check the calcium carbonate "
-                        "saturation of the water after dosing")
-    warnings.extend(w for w in after.get("warnings", []) if w not in warnings)
-    out["water_before"] = before
-    out["water_after"] = after
+    # solids formed by the dose (beyond what the water held before)
+    before = {closed.wm.tab.solids[s].id: n for s, n in closed.sol.solids.items()}
+    formed = []
+    for s, n in sorted(res.sol.solids.items()):
+        info = res.mix.wm.solid_info[s]
+        dn = n - before.get(info.id, 0.0)
+        mm = getattr(info, "molar_mass_g_per_mol", None)
+        formed.append({"id": info.id, "name": getattr(info, "name", info.id), "mol_per_L": dn,
+                       "mg_per_L": dn * mm * 1e3 if mm else None})
+    out["precipitated"] = formed
+    without = None
+    if formed:
+        try:
+            without = _dose(closed, chem, target_pH, ()).d * 1e3
+        except UnreachableError:
+            without = None
+        warnings.append("the dose includes what the solids formed take up: "
+                        + ", ".join(f"{f['name']} {f['mol_per_L'] * 1e3:.4g} mmol/L" for f in formed))
+    out["precipitation"] = {
+        "allowed": list(allow),
+        "dose_without_precipitation_mmol_per_L": without,
+        "note": "solids allowed to form reach equilibrium (SI 0) in the water after; a formed solid is "
+                "assumed to stay in contact with the water" if allow else "no solid was allowed to form",
+    }
+    warnings.extend(_oversaturation_warnings(res.mix.wm, res.sol, allow))
+    warnings.extend(w for w in res.sol.warnings if w not in warnings)
+    out["scenario_after"] = _after_scenario(closed, chem, d, allow)
+    if describe is not None:
+        before_desc = describe(closed.scenario)
+        after_desc = describe(out["scenario_after"])
+        out["water_before"] = before_desc
+        out["water_after"] = after_desc
+        warnings.extend(w for w in after_desc.get("warnings", []) if w not in warnings)
+    out["cautions"] = list(CAUTIONS)
     out["warnings"] = warnings
     return out
