@@ -31,7 +31,11 @@ Functions and classes
 ---------------------
 Component, Ion                 inputs of :func:`equilibrate`
 equilibrate(...) -> Equilibrium  the pH (or given pH), ionic strength and every concentration
-charge_balance_terms(...)       each term of the balance at one pH (the calculation trail)
+
+Being retired: every water operation now runs on the one equilibrium model
+(:mod:`acidscape.science.model`); this module stays only until its last callers (the
+acid-base view in :mod:`acidscape.boundary.api` and the comparison in ``tests/test_model.py``)
+are gone.
 
 References
 ----------
@@ -46,7 +50,7 @@ import math
 from dataclasses import dataclass, field
 
 from .activity import gamma_function
-from ..errors import ConvergenceError, InputError
+from ..errors import ConvergenceError
 from .speciation import alpha_from_cumulative, cumulative_pKa, proton_moments
 from .tableau import ION_SIZE_H, ION_SIZE_OH, IonInput, SystemInput
 
@@ -297,40 +301,3 @@ def equilibrate(
         systems=states, ions=ion_states, residual_eq_per_L=f, iterations=total_iters,
         pH_was_given=pH is not None,
     )
-
-
-def charge_balance_terms(eq: Equilibrium) -> list[dict]:
-    """Each term of the charge balance at the answer, for the calculation trail.
-
-    Returns
-    -------
-    list of dict
-        ``{"term", "charge", "concentration_M", "charge_eq_per_L"}`` per species with a
-        charge, H+ and OH- first; their sum is the residual [eq/L]
-    """
-    rows = [
-        {"term": "H+", "charge": 1, "concentration_M": eq.H_M, "charge_eq_per_L": eq.H_M},
-        {"term": "OH-", "charge": -1, "concentration_M": eq.OH_M, "charge_eq_per_L": -eq.OH_M},
-    ]
-    for ion, _ in eq.ions:
-        if ion.charge:
-            rows.append(
-                {"term": ion.name, "charge": ion.charge, "concentration_M": ion.conc_M,
-                 "charge_eq_per_L": ion.charge * ion.conc_M}
-            )
-    for st in eq.systems:
-        for name, z, a in zip(st.component.species, st.component.charges, st.fractions):
-            if z:
-                c = st.total_M * a
-                rows.append({"term": name, "system": st.component.key, "charge": z,
-                             "concentration_M": c, "charge_eq_per_L": z * c})
-    return rows
-
-
-def check_total(value: float, field: str) -> float:
-    """Validate a total concentration [mol/L]: finite, 0..20."""
-    if not math.isfinite(value) or value < 0:
-        raise InputError(f"{field} = {value!r} must be a finite, non-negative concentration", field=field)
-    if value > 20.0:
-        raise InputError(f"{field} = {value:g} mol/L is above the 20 mol/L this model accepts", field=field)
-    return value
