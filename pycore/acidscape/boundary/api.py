@@ -151,25 +151,35 @@ def distribution(params: dict) -> dict:
     }
 
 
-def _acid_base_view(parsed, wm, sol):
-    """The acid-base part of a solved water in the form the alkalinity, buffer and curve
-    functions read (each system's mixed constants, fractions of its total, gammas)."""
-    from ..science.solver import Equilibrium, SystemState
+def read_water(scenario: dict):
+    """A scenario read and, when it gives a measured pH and alkalinity, closed first.
 
-    states = []
-    for comp in parsed.components:
-        idx = wm.system_species[comp.key]
-        lg = [sol.log10_gamma[i] for i in idx]
-        pKm = tuple(pk + lg[k + 1] - lg[k] for k, pk in enumerate(comp.pKa))
-        tot = sol.totals[wm.comp_index[comp.key]]
-        fr = [sol.conc[i] / tot if tot > 0 else 0.0 for i in idx]
-        states.append(SystemState(comp, tot, pKm, fr, lg))
-    ions = [(ion, sol.log10_gamma[wm.ion_species[ion.key]]) for ion in parsed.ions]
-    return Equilibrium(
-        pH=sol.pH, I=sol.I, pKw=parsed.pKw, T=parsed.T, model=parsed.model, H_M=sol.conc[0], OH_M=sol.conc[1],
-        log10_gamma_H=sol.log10_gamma[0], log10_gamma_OH=sol.log10_gamma[1], systems=states, ions=ions,
-        residual_eq_per_L=sol.charge_residual, iterations=sol.iterations, pH_was_given=parsed.pH is not None,
-    )
+    Returns ``(parsed, inferred)``: the parsed ordinary water and what was inferred from the
+    measurements (None for an ordinary scenario).
+    """
+    from ..operations.closure import read_measured, resolve_measured
+    from .scenario import read_scenario
+
+    if isinstance(scenario, dict) and scenario.get("measured") is not None:
+        base, measured = read_measured(scenario)
+        ordinary, inferred = resolve_measured(base, read_scenario(base), measured)
+        return read_scenario(ordinary), inferred
+    return read_scenario(scenario), None
+
+
+def _closed_water(scenario: dict):
+    """The closed, electroneutral water of a scenario (for titration and dosing)."""
+    from ..operations.closure import close_scenario, read_measured, resolve_measured
+    from .scenario import read_scenario
+
+    inferred = None
+    if isinstance(scenario, dict) and scenario.get("measured") is not None:
+        base, measured = read_measured(scenario)
+        scenario, inferred = resolve_measured(base, read_scenario(base), measured)
+    closed = close_scenario(scenario, read_scenario(scenario))
+    if inferred is not None:
+        closed.inferred = inferred
+    return closed
 
 
 #: Solids whose oversaturation is named in a warning: the scales and sludges that form in
@@ -224,19 +234,12 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     3.91
     """
     from . import results
-    from .scenario import read_scenario
 
-    inferred = None
-    if isinstance(scenario, dict) and scenario.get("measured") is not None:
-        from ..operations.closure import resolve_measured  # pH + alkalinity -> carbonate total
-
-        scenario, inferred = resolve_measured(scenario)
-    parsed = read_scenario(scenario)
+    parsed, inferred = read_water(scenario)
     wm = water_model(parsed)
     sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
-    eq = _acid_base_view(parsed, wm, sol)
     if _state is not None:  # callers inside the package may want the solved state too
-        _state["parsed"], _state["eq"], _state["model"], _state["solution"] = parsed, eq, wm, sol
+        _state["parsed"], _state["model"], _state["solution"] = parsed, wm, sol
     warnings = list(parsed.warnings) + results.condense_notes(wm.notes_that_matter(sol)) + sol.warnings
     molal = temperature.molal_to_molar_note(parsed.T)
     if molal:
@@ -259,14 +262,15 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
             )
     warnings.extend(_oversaturation_notes(results.saturation_rows(wm, sol), parsed.precipitate))
     systems_out = []
-    for st in eq.systems:
+    for comp in parsed.components:
+        lg = [sol.log10_gamma[i] for i in wm.system_species[comp.key]]
         systems_out.append({
-            "id": st.component.key,
-            "name": st.component.name,
-            "total_M": st.total_M,
-            "pKa": list(st.component.pKa),
-            "pKa_conditional": list(st.pKa_mixed),
-            "open_to_gas": st.component.fixed_first_M is not None,
+            "id": comp.key,
+            "name": comp.name,
+            "total_M": sol.totals[wm.comp_index[comp.key]],
+            "pKa": list(comp.pKa),
+            "pKa_conditional": [pk + lg[k + 1] - lg[k] for k, pk in enumerate(comp.pKa)],
+            "open_to_gas": comp.fixed_first_M is not None,
         })
     ions_out = []
     for ion in parsed.ions:
@@ -311,8 +315,8 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     from ..operations.alkalinity import alkalinity_report
     from ..operations.buffer import buffer_intensity
 
-    result["alkalinity"] = alkalinity_report(eq)
-    result["buffer_intensity_eq_per_L_per_pH"] = buffer_intensity(eq)
+    result["alkalinity"] = alkalinity_report(wm, sol)
+    result["buffer_intensity_eq_per_L_per_pH"] = buffer_intensity(wm, sol)
     result["buffer_intensity_basis"] = "closed water at its ionic strength, per unit of meter pH"
     if inferred is not None:
         result["inferred_from_measurements"] = inferred
@@ -354,7 +358,7 @@ def water(params: dict) -> dict:
     )
     state: dict = {}
     result = solve(scenario, state)
-    return {"result": result, "curves": water_curves(state["eq"], grid)}
+    return {"result": result, "curves": water_curves(state["model"], state["solution"], grid)}
 
 
 def _scenario_param(params: dict) -> dict:
@@ -390,7 +394,7 @@ def titrate(params: dict) -> dict:
         return _edta_titration(params, titrant)
     to_pH = params.get("to_pH")
     return titration_curve(
-        _scenario_param(params), titrant,
+        _closed_water(_scenario_param(params)), titrant,
         titrant_M=_number(params, "titrant_M", 0.1, lo=1e-9, hi=20.0),
         sample_mL=_number(params, "sample_mL", 100.0, lo=1e-6, hi=1e6),
         to_pH=None if to_pH is None else _number(params, "to_pH", lo=0.0, hi=14.5),
@@ -413,21 +417,15 @@ def dose(params: dict) -> dict:
         raise InputError(f"chemical must be an id such as 'NaOH', got {chem!r}", field="chemical")
     opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
            ("strength_pct", "density_kg_per_L", "flow")}
-    return dose_to_pH(_scenario_param(params), chem, _number(params, "target_pH"),
+    return dose_to_pH(_closed_water(_scenario_param(params)), chem, _number(params, "target_pH"),
                       strength_pct=opt["strength_pct"], density_kg_per_L=opt["density_kg_per_L"],
-                      flow=opt["flow"], flow_unit=params.get("flow_unit"))
+                      flow=opt["flow"], flow_unit=params.get("flow_unit"), precipitate=params.get("precipitate"),
+                      describe=solve)
 
 
 def _parsed_water(params: dict):
     """The ``scenario`` of ``params`` read (a measured pH and alkalinity closed first)."""
-    from .scenario import read_scenario
-
-    scenario = _scenario_param(params)
-    if scenario.get("measured") is not None:
-        from ..operations.closure import resolve_measured
-
-        scenario, _ = resolve_measured(scenario)
-    return read_scenario(scenario)
+    return read_water(_scenario_param(params))[0]
 
 
 def _edta_titration(params: dict, titrant: str) -> dict:
@@ -541,12 +539,102 @@ def solubility(params: dict) -> dict:
     return out
 
 
+#: Default pH range and number of points of the curve.
+BUFFER_RANGE = (2.0, 12.0)
+BUFFER_POINTS = 241
+
+
+def buffer(params: dict) -> dict:
+    """Buffer intensity of a water over a pH range, and optionally its capacity between two pH values.
+
+    .. math::
+
+        \\Delta C_B = P(\\mathrm{pH}_2) - P(\\mathrm{pH}_1), \\qquad
+        P = [OH^-] - [H^+] + \\sum C_T\\,\\bar{\\imath}
+
+    Parameters
+    ----------
+    params : dict
+        ``scenario`` : the water (as :func:`acidscape.boundary.api.solve` accepts it) [-];
+        ``pH_min``, ``pH_max`` : range of the curve, default 2..12 [-];
+        ``points`` : number of pH values, 2..5001, default 241 [-];
+        ``capacity`` : optional ``{"from_pH", "to_pH"}`` [-]
+
+    Returns
+    -------
+    dict
+        ``pH`` (list) [-], ``beta_eq_per_L_per_pH`` (list) [eq/(L pH)],
+        ``beta_mmol_per_L_per_pH`` (list) [mmol/(L pH)], ``water_pH`` [-],
+        ``beta_at_water_pH_eq_per_L_per_pH`` [eq/(L pH)], ``ionic_strength_M`` [mol/L],
+        ``basis`` (text), ``capacity`` (with ``from_pH``, ``to_pH``, ``base_eq_per_L``
+        [eq/L], positive for base and negative for acid, ``base_meq_per_L`` [meq/L],
+        ``as_CaCO3_mg_per_L`` [mg/L as CaCO3]) or None
+
+    Notes
+    -----
+    A water open to CO2 is treated as the closed sample at its current carbonate total,
+    as in a lab beaker (see :func:`acidscape.operations.buffer.buffer_intensity`). mg/L as CaCO3 =
+    meq/L x 50.04 (:func:`acidscape.operations.alkalinity.meq_to_mg_as_CaCO3`).
+
+    Examples
+    --------
+    1 mmol/L acetic acid, ideal activities, at pH = pKa (Goldberg et al. 2002, 4.756):
+    beta = (ln 10 / 4) C (Van Slyke 1922), plus water's small share.
+
+    >>> out = buffer({"scenario": {"activity": "ideal", "pH": 4.756,
+    ...     "systems": [{"id": "acetic", "total": 1, "unit": "mmol/L"}]}, "points": 3})
+    >>> round(out["beta_at_water_pH_eq_per_L_per_pH"] * 1e3, 3)
+    0.616
+    >>> out["pH"]
+    [2.0, 7.0, 12.0]
+    """
+    from ..operations.alkalinity import meq_to_mg_as_CaCO3
+    from ..operations.buffer import buffer_capacity, buffer_curve, buffer_intensity
+    from ..operations.curves import pH_grid
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    grid = pH_grid(
+        _number(params, "pH_min", BUFFER_RANGE[0], lo=-1.0, hi=15.0),
+        _number(params, "pH_max", BUFFER_RANGE[1], lo=-1.0, hi=15.0),
+        _integer(params, "points", BUFFER_POINTS, lo=2, hi=5001),
+    )
+    state: dict = {}
+    result = solve(_scenario_param(params), state)
+    wm, sol = state["model"], state["solution"]
+    beta = buffer_curve(wm, sol, grid)
+    capacity = None
+    cap = params.get("capacity")
+    if cap is not None:
+        if not isinstance(cap, dict):
+            raise InputError("capacity must be an object {from_pH, to_pH}", field="capacity")
+        p1 = _number(cap, "from_pH", lo=-1.0, hi=15.0, field="capacity.from_pH")
+        p2 = _number(cap, "to_pH", lo=-1.0, hi=15.0, field="capacity.to_pH")
+        base = buffer_capacity(wm, sol, p1, p2)
+        capacity = {
+            "from_pH": p1,
+            "to_pH": p2,
+            "base_eq_per_L": base,
+            "base_meq_per_L": base * 1e3,
+            "as_CaCO3_mg_per_L": meq_to_mg_as_CaCO3(base * 1e3),
+        }
+    return {
+        "pH": grid,
+        "beta_eq_per_L_per_pH": beta,
+        "beta_mmol_per_L_per_pH": [b * 1e3 for b in beta],
+        "water_pH": sol.pH,
+        "beta_at_water_pH_eq_per_L_per_pH": buffer_intensity(wm, sol),
+        "ionic_strength_M": sol.I,
+        "basis": result["buffer_intensity_basis"],
+        "capacity": capacity,
+    }
+
+
 @functools.cache
 def _methods() -> dict[str, Callable[[dict], dict]]:
     """The methods :func:`handle` dispatches to, built once on the first request."""
     from ..data import library
     from .batch import batch_chunk
-    from .buffer_api import buffer_curve_of_water
     from ..operations.dosing import chemicals
 
     return {
@@ -562,7 +650,7 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         # many samples from a CSV, streamed in chunks by the page (site/batch.js)
         "batch_chunk": batch_chunk,
         # buffer-intensity curve of a water for the page's treatment section
-        "buffer": buffer_curve_of_water,
+        "buffer": buffer,
         "chemicals": lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]},
         "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()},
     }

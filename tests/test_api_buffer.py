@@ -24,7 +24,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from acidscape.boundary import api
-from acidscape.boundary.buffer_api import buffer_curve_of_water
+from acidscape.boundary.api import buffer as buffer_curve_of_water
 from reference import alphas_ref
 
 import reference_model
