@@ -1,0 +1,1246 @@
+"""Treatment jobs on the one equilibrium model: doses to a target pH, LSI or CCPP with solids
+forming, and several chemicals in sequence.
+
+A *water* here is a closed, electroneutral water described by its dissolved totals
+(:class:`Water`, built from the :class:`acidscape.operations.closure.Closed` water the
+boundary prepares). Dosing ``d`` mol/L of a chemical adds ``d n_j`` to the total of each
+component j it carries (its strong ions and acid-base systems, ``data/chemicals.csv``;
+:func:`acidscape.operations.dosing.get_chemical`), and the dosed water is solved by the
+equilibrium model with its pH free (the charge balance sets it) and the allowed solids at
+equilibrium (:meth:`acidscape.science.tableau.WaterModel.solve`). A plant dose is per litre
+of water treated: no dilution.
+
+Targets
+-------
+``target_pH``, ``target_LSI`` or ``target_CCPP`` [mg/L as CaCO3] of the dosed water, or a
+given ``dose_mg_per_L``. The LSI and CCPP are those of
+:func:`acidscape.operations.indices.calcium_carbonate` (Standard Methods 2330 B and C; the
+LSI with free-ion activities, which equals the model's calcite saturation index, the
+identity the search uses between reports; the CCPP of the closed water). The dose is the
+root of ``value(d) - target`` on ``d >= 0`` found in two stages:
+
+1. *bracket*: the value at ``d = 0`` and at a first dose of 0.1 mmol/L gives the direction
+   the chemical moves it; later doses follow secant estimates (at least x1.5, at most x16
+   per step) until the value passes the target or the dose reaches :data:`MAX_DOSE_M`;
+2. *refine*: Brent's method [1]_ inside the bracket (inverse quadratic interpolation,
+   secant and bisection steps), to :data:`TOLERANCE`.
+
+pH and the indices are monotone in the dose in the usual cases (a base raises them, an
+acid lowers them). Where they are not, the result says so (``search.monotone`` false and a
+warning): CO2 dosed into a water that holds hydroxide alkalinity (after excess-lime
+softening) first turns OH- into CO3-2 and *raises* the LSI and CCPP, which fall only later.
+For the indices the direction is the chemical's own (:func:`chemical_direction`: a base
+raises them, an acid or CO2 lowers them), so such a hump is passed and the target is met
+on its far side; the water between is oversaturated.
+
+A target already met, or already passed in the direction the chemical moves the value,
+needs no dose: the result has ``status`` "no dose needed" and zero dose (not an error).
+A target the chemical cannot reach raises :class:`TargetUnreachableError` (an
+:class:`acidscape.errors.UnreachableError`) naming the field (``target_LSI``,
+``steps[1].target_CCPP`` ...), which way it fails and the best value reached.
+For CO2 the dose is also limited by its solubility: the dissolved H2CO3* may not exceed
+K_H(T) x 1 atm (Plummer & Busenberg 1982, :func:`acidscape.science.temperature.log10_KH_CO2`).
+
+Solids
+------
+Solids allowed to form reach equilibrium in the dosed water (SI = 0); the dose then
+includes what they take up, and each step reports what precipitated (mol/L, mg/L and, with
+the plant flow, kg/d of dry solids). The solids allowed, in order of precedence: the
+step's ``precipitate``; the scenario's ``precipitate``; by default calcite and brucite
+(:data:`DEFAULT_SOLIDS`: calcite forms when the dosed water is oversaturated with it, brucite
+only at the high pH of softening). For LSI and CCPP targets the default is brucite only
+(:data:`DEFAULT_SOLIDS_INDEX`): those targets are the calcium carbonate driving force of the
+water leaving the step, which calcite forming in it would cancel (an LSI above 0 cannot be
+reached with calcite at equilibrium; the error says so). Give ``"precipitate": []`` to let
+nothing form. Solids formed in a step are taken to be settled or filtered off before the
+next step: the next step starts from the dissolved water.
+
+JSON shapes
+-----------
+A *water summary* (``water_before``, ``water_after``, ``blend``, ...)::
+
+    {"pH", "temperature_C", "ionic_strength_M",
+     "total_alkalinity_meq_per_L", "total_alkalinity_mg_per_L_as_CaCO3",
+     "DIC_mmol_per_L", "DIC_mg_per_L_as_C", "CO2_mg_per_L",
+     "calcium_mg_per_L", "magnesium_mg_per_L", "calcium_hardness_mg_per_L_as_CaCO3",
+     "magnesium_hardness_mg_per_L_as_CaCO3", "total_hardness_mg_per_L_as_CaCO3",
+     "orthophosphate_mg_per_L_as_PO4", "orthophosphate_mg_per_L_as_P",   (null without phosphate)
+     "LSI", "RSI", "pHs", "CCPP_mg_per_L_as_CaCO3", "tendency",        (null without Ca or carbonate)
+     "SI": {solid id: saturation index} (calcite, aragonite, brucite, portlandite, gypsum, brushite
+           when their components are present),
+     "components_M": {component id: dissolved total [mol/L]}, "notes": [str]}
+
+A *dose step* (each entry of ``treat``'s ``steps``; :func:`dose_to_target` adds the keys
+marked +)::
+
+    {"step": 1, "chemical": <Chemical.as_json()>, "target": {"field", "value"},
+     "status": "dosed" | "no dose needed", "message",
+     "dose_mmol_per_L", "dose_mg_per_L", "dose_meq_per_L",
+     "pure_chemical_kg_per_d" (null without flow),
+     "product": {"strength_pct", "density_kg_per_L", "product_mg_per_L", "feed_kg_per_d",
+                 "feed_L_per_h", "feed_gal_per_d"} | null (without strength_pct),
+     "reached": {"pH", "LSI", "CCPP_mg_per_L_as_CaCO3"}   (the dosed water with its solids),
+     "precipitation": {"allowed", "basis", "formed": [{"id", "name", "formula", "mol_per_L",
+                       "mg_per_L", "kg_per_d"}], "total_mg_per_L", "total_kg_per_d",
+                       "dose_without_precipitation_mmol_per_L", "note"},
+     "search": {"evaluations", "monotone", "direction", "bracket_mmol_per_L", "hump"},
+     "water_after": <water summary>, "warnings": [str],
+     + "water_before", "scenario_after", "precipitated" (= precipitation.formed), "initial_pH",
+     + "flow", "cautions"}
+
+``treat`` returns::
+
+    {"water_before", "steps": [<dose step>...], "water_after", "scenario_after",
+     "chemicals": [{"id", "dose_mg_per_L", "pure_chemical_kg_per_d"}] (summed by chemical),
+     "precipitated_total_mg_per_L", "precipitated_total_kg_per_d", "flow", "cautions",
+     "warnings", "method"}
+
+``scenario_after`` is an ordinary scenario (totals in mol/L) of the dissolved water after the
+last step: ``acidscape.solve`` of it describes that water in full.
+
+An unreachable target becomes, at the boundary, ``{"type": "UnreachableError", "message",
+"field", "detail": {"direction": "above" | "below", "best_value", "best_dose_mmol_per_L",
+"searched_to_mmol_per_L", "chemical"}}``.
+
+Functions and classes
+---------------------
+Water, water_from_closed(closed)        a closed water by its dissolved totals
+water_scenario(water) -> dict           the same as an ordinary scenario
+summarize(water) -> dict                the water summary above
+read_steps(raw, path) -> list[Step]     checked steps of a sequence; make_step(...) one step
+read_solids(raw, where) -> tuple        checked solid ids
+add_chemical(water, chem, d) -> Water   a water with a chemical added (nothing solved)
+dose_to_target(closed, chemical, field, value, ...) -> dict
+treat(closed, steps, ...) -> dict
+cautions_for(chemicals) -> list[str]
+TargetUnreachableError
+
+References
+----------
+.. [1] R. P. Brent, Algorithms for Minimization without Derivatives, Prentice-Hall, 1973,
+   ch. 4 (the zero-finding algorithm; written here from its published description).
+.. [2] APHA, AWWA, WEF, Standard Methods for the Examination of Water and Wastewater, 23rd
+   ed., 2017, methods 2320 (alkalinity), 2330 (calcium carbonate saturation) and 2340
+   (hardness: calcium and magnesium as CaCO3) (from memory).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass, field
+
+from ..checks import number
+from ..constants import ATOMIC_WEIGHT, M_CaCO3, T0
+from ..data import library
+from ..errors import AcidscapeError, ConvergenceError, InputError, UnknownIdError, UnreachableError
+from ..science import purewater, temperature
+from ..science.tableau import IonInput, WaterModel
+from .dosing import CAUTIONS as GENERAL_CAUTIONS
+from .dosing import L_PER_US_GALLON, flow_L_per_d, get_chemical
+from .indices import calcium_carbonate
+
+#: The largest dose searched [mol/L]: 100 mmol/L (4000 mg/L of NaOH), beyond any water treatment.
+MAX_DOSE_M = 0.1
+#: First trial dose of a search [mol/L] (0.1 mmol/L, 4 mg/L of NaOH).
+FIRST_DOSE_M = 1e-4
+#: Dose standing for "a trace" where a value is not defined without the chemical [mol/L].
+TRACE_DOSE_M = 1e-9
+#: Target fields and the tolerance of the value reached [pH units, LSI units, mg/L as CaCO3].
+TOLERANCE = {"target_pH": 1e-6, "target_LSI": 1e-6, "target_CCPP": 1e-5}
+#: Relative tolerance on the dose where the value is not yet within its tolerance.
+DOSE_RTOL = 1e-9
+#: Accepted range of each target or dose.
+BOUNDS = {"target_pH": (0.0, 14.5), "target_LSI": (-5.0, 5.0), "target_CCPP": (-5000.0, 5000.0),
+          "dose_mg_per_L": (0.0, 100000.0)}
+FIELDS = ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L")
+#: Solids allowed to form by default in a pH or fixed-dose step: calcite (it forms where the
+#: dosed water is oversaturated) and brucite (only at the high pH of softening).
+DEFAULT_SOLIDS = ("calcite", "brucite")
+#: The default for LSI and CCPP targets: calcite forming would cancel the target itself.
+DEFAULT_SOLIDS_INDEX = ("brucite",)
+#: Solids whose saturation index a water summary reports (when their components are present).
+SUMMARY_SOLIDS = ("calcite", "aragonite", "brucite", "portlandite", "gypsum", "brushite")
+#: Component ids.
+CALCIUM, MAGNESIUM, CARBONATE, PHOSPHATE = "calcium", "magnesium", "carbonate", "phosphate"
+#: Molar masses [g/mol] from the IUPAC 2021 atomic weights (acidscape.constants).
+M_CO2 = ATOMIC_WEIGHT["C"] + 2 * ATOMIC_WEIGHT["O"]
+M_PO4 = ATOMIC_WEIGHT["P"] + 4 * ATOMIC_WEIGHT["O"]
+#: Total alkalinity reference: each system counts with the charge of its species that
+#: predominates at pH 4.5 (Standard Methods 2320 B total end point, common practice).
+ALKALINITY_REFERENCE_PH = 4.5
+#: Bisections locating a physical limit of the dose (CO2 solubility) when a target lies beyond it.
+LIMIT_BISECTIONS = 24
+#: A change of a value below this is no change (rounding of the solves).
+NO_CHANGE = 1e-9
+
+#: Cautions added for particular chemicals (common practice of chemical handling in water
+#: treatment, worded here); the general ones (PPE for caustics and acids, jar or bench test,
+#: overfeed, local regulations and licensed operators) are :data:`acidscape.operations.dosing.CAUTIONS`.
+LIME_CAUTION = ("Lime is caustic: its dust and slurry burn eyes, skin and airways. Wear eye protection, gloves "
+                "and a dust mask where it is handled; quicklime heats strongly when it is slaked.")
+CO2_CAUTION = ("Carbon dioxide is heavier than air and collects in low or enclosed spaces (feed rooms, pits, "
+               "covered basins), where it can suffocate without warning: ventilate, monitor CO2 and oxygen, and "
+               "follow confined-space entry rules.")
+PHOSPHATE_CAUTION = ("Orthophosphate overfeed adds a nutrient load to sewers and receiving waters (algal growth) "
+                     "and can break discharge limits: dose to the residual a corrosion-control study sets and "
+                     "monitor it. Phosphoric acid is corrosive: wear the protective equipment for acids.")
+SODA_ASH_CAUTION = ("Soda ash dust irritates eyes and airways: wear eye protection and a dust mask where it is "
+                    "handled.")
+
+
+class TargetUnreachableError(UnreachableError):
+    """A target no amount of the chemical reaches; ``detail`` says which way and the best value.
+
+    ``to_dict`` reports the type as ``UnreachableError`` (the boundary's error shape) with the
+    extra ``detail`` object.
+    """
+
+    def __init__(self, message: str, field: str | None, detail: dict):
+        super().__init__(message, field)
+        self.detail = detail
+
+    def to_dict(self) -> dict:
+        return {"type": "UnreachableError", "message": self.message, "field": self.field, "detail": self.detail}
+
+
+def cautions_for(chemicals) -> list[str]:
+    """The cautions that travel with a dose of these chemicals.
+
+    Parameters
+    ----------
+    chemicals : iterable of Chemical
+        The chemicals dosed [-]
+
+    Returns
+    -------
+    list of str
+        The general dosing cautions, then those of lime, soda ash, CO2 and orthophosphate
+        when one of them is dosed
+
+    Examples
+    --------
+    >>> texts = cautions_for([get_chemical("CO2")])
+    >>> any("suffocate" in t for t in texts), any("jar" in t for t in texts)
+    (True, True)
+    """
+    chems = list(chemicals)
+    out = list(GENERAL_CAUTIONS)
+    if any(any(library.get_ion(i).id == CALCIUM for i, _ in c.ions) and c.alkalinity_eq_per_mol > 0 and
+           not c.systems for c in chems):
+        out.append(LIME_CAUTION)
+    if any(c.id == "Na2CO3" for c in chems):
+        out.append(SODA_ASH_CAUTION)
+    if any(c.is_gas for c in chems):
+        out.append(CO2_CAUTION)
+    if any(any(k == PHOSPHATE for k, _ in c.systems) for c in chems):
+        out.append(PHOSPHATE_CAUTION)
+    return out
+
+
+def chemical_direction(chem) -> int:
+    """+1 if the chemical is a base (raises pH, LSI and CCPP), -1 an acid or CO2, 0 not known.
+
+    A chemical that adds equivalence-point alkalinity is a base; one that removes it, or CO2
+    (no alkalinity, two equivalents of acidity per mole), an acid.
+
+    Examples
+    --------
+    >>> chemical_direction(get_chemical("NaOH")), chemical_direction(get_chemical("CO2"))
+    (1, -1)
+    """
+    if chem.is_gas or chem.alkalinity_eq_per_mol < 0:
+        return -1
+    if chem.alkalinity_eq_per_mol > 0:
+        return 1
+    return 0
+
+
+# --------------------------------------------------------------------------------------
+# a water by its dissolved totals
+
+
+@dataclass
+class Water:
+    """A closed, electroneutral water by its dissolved totals.
+
+    ``systems`` (:class:`acidscape.science.tableau.SystemInput`, pKa at ``T``) and ``ions``
+    (:class:`IonInput`) name the components; ``totals`` maps each component id to its
+    dissolved total [mol/L]; ``guess`` is a warm start (component names to ln free
+    concentration, ``I``, solids present) for the next solve.
+    """
+
+    systems: tuple
+    ions: tuple
+    totals: dict
+    T: float
+    pKw: float
+    model: str = "davies"
+    complexes: bool = True
+    I_fixed: float | None = None
+    notes: tuple = ()
+    guess: dict | None = field(default=None, repr=False, compare=False)
+
+    @property
+    def temperature_C(self) -> float:
+        return self.T - T0
+
+    def keys(self) -> list[str]:
+        return [s.key for s in self.systems] + [i.key for i in self.ions]
+
+    def build(self) -> WaterModel:
+        """The water's tableau with its totals."""
+        systems = [dataclasses.replace(s, total_M=self.totals.get(s.key, 0.0), fixed_first_M=None)
+                   for s in self.systems]
+        ions = [dataclasses.replace(i, conc_M=self.totals.get(i.key, 0.0)) for i in self.ions]
+        return WaterModel(systems, ions, T=self.T, pKw=self.pKw, model=self.model, complexes=self.complexes,
+                          I_fixed=self.I_fixed)
+
+
+def _dissolved(wm: WaterModel, sol) -> list[float]:
+    """Dissolved total of each component [mol/L]: the total less what sits in solids."""
+    out = list(sol.totals)
+    for s, n in sol.solids.items():
+        for j, b in wm.tab.solids[s].stoich:
+            out[j] -= b * n
+    return out
+
+
+def _named_state(wm: WaterModel, sol) -> dict:
+    """A solve's warm start keyed by component name and solid id (survives a new tableau)."""
+    st = sol.state
+    return {"x": {wm.tab.components[j]: v for j, v in st.get("x", {}).items()}, "I": st.get("I"),
+            "active": [wm.tab.solids[s].id for s in st.get("active", [])]}
+
+
+def _indexed_state(wm: WaterModel, named: dict | None) -> dict | None:
+    if not named:
+        return None
+    comps = wm.tab.components
+    return {"x": {j: named["x"][c] for j, c in enumerate(comps) if c in named["x"]}, "I": named.get("I"),
+            "active": [wm.solid_index[s] for s in named.get("active", []) if s in wm.solid_index]}
+
+
+def water_from_closed(closed) -> Water:
+    """The dissolved water of a closed water (:class:`acidscape.operations.closure.Closed`).
+
+    Solids present in the water as described (its scenario's ``precipitate``) are left
+    behind (settled); a note says so.
+    """
+    wm, sol = closed.wm, closed.sol
+    dis = _dissolved(wm, sol)
+    totals = {c: max(dis[j], 0.0) for j, c in enumerate(wm.tab.components) if j}
+    notes = list(getattr(closed, "notes", []) or [])
+    if sol.solids:
+        notes.append("solids present in the water as described ("
+                     + ", ".join(wm.tab.solids[s].id for s in sol.solids)
+                     + ") are taken as settled: treatment starts from the dissolved water")
+    systems = tuple(dataclasses.replace(s, fixed_first_M=None) for s in wm.systems)
+    w = Water(systems, tuple(wm.ions), totals, wm.T, wm.pKw, wm.model, wm.complexes, wm.I_fixed, tuple(notes))
+    w.guess = _named_state(wm, sol)
+    return w
+
+
+def water_scenario(water: Water) -> dict:
+    """An ordinary scenario of the water (totals in mol/L), for ``acidscape.solve``.
+
+    Library systems and ions are named by id; others (a custom acid, the balancing ion of a
+    closed water) are written as ``custom`` entries with their name, pKa and charges.
+    """
+    known_systems = library.systems()
+    systems, ions = [], []
+    for s in water.systems:
+        t = water.totals.get(s.key, 0.0)
+        if s.key in known_systems:
+            systems.append({"id": s.key, "total": t, "unit": "mol/L"})
+        else:
+            systems.append({"custom": {"name": s.name, "pKa": list(s.pKa), "charge_most_protonated": s.charges[0]},
+                            "total": t, "unit": "mol/L"})
+    for i in water.ions:
+        t = water.totals.get(i.key, 0.0)
+        try:
+            lib = library.get_ion(i.key)
+        except UnknownIdError:
+            lib = None
+        if lib is not None and lib.id == i.key:
+            ions.append({"id": i.key, "total": t, "unit": "mol/L"})
+        else:
+            ions.append({"custom": {"name": i.name, "charge": i.charge}, "total": t, "unit": "mol/L"})
+    out = {"temperature_C": water.temperature_C, "activity": water.model, "complexes": water.complexes,
+           "systems": systems, "ions": ions}
+    if water.I_fixed is not None:
+        out["ionic_strength_M"] = water.I_fixed
+    return out
+
+
+# --------------------------------------------------------------------------------------
+# what a water is: the summary every job reports
+
+
+def total_alkalinity(wm: WaterModel, dissolved: list[float]) -> float:
+    """Equivalence-point total alkalinity [eq/L] of a neutral water from its dissolved totals.
+
+    Each acid-base system counts with the charge of its species that predominates at pH 4.5
+    (H2CO3*, H2PO4-, SO4-2, NH4+ ...) times its total, each ion with its charge: by the charge
+    balance this is [HCO3-] + 2 [CO3-2] + [OH-] - [H+] + ..., ion pairs counted (Standard
+    Methods 2320, from memory).
+
+    Examples
+    --------
+    >>> from acidscape.science.tableau import SystemInput
+    >>> c = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 2e-3)
+    >>> wm = WaterModel([c], [IonInput("sodium", "Na+", 1, 1.5e-3)], T=298.15, pKw=13.995, model="ideal")
+    >>> round(total_alkalinity(wm, wm.totals) * 1e3, 6)
+    1.5
+    """
+    alk = 0.0
+    for s in wm.systems:
+        k = sum(1 for p in s.pKa if p < ALKALINITY_REFERENCE_PH)
+        alk += s.charges[k] * dissolved[wm.comp_index[s.key]]
+    for ion in wm.ions:
+        alk += ion.charge * dissolved[wm.comp_index[ion.key]]
+    return alk
+
+
+def _summary(wm: WaterModel, sol, *, indices: bool = True) -> dict:
+    """The water summary (see the module notes) of a solved water without solids."""
+    dis = _dissolved(wm, sol)
+
+    def tot(key):
+        j = wm.comp_index.get(key)
+        return dis[j] if j is not None else 0.0
+
+    alk = total_alkalinity(wm, dis)
+    ca, mg, c, p = tot(CALCIUM), tot(MAGNESIUM), tot(CARBONATE), tot(PHOSPHATE)
+    h2co3 = sol.conc[wm.system_species[CARBONATE][0]] if CARBONATE in wm.system_species else 0.0
+    has_p = PHOSPHATE in wm.comp_index
+    out = {
+        "pH": sol.pH,
+        "temperature_C": wm.T - T0,
+        "ionic_strength_M": sol.I,
+        "total_alkalinity_meq_per_L": alk * 1e3,
+        "total_alkalinity_mg_per_L_as_CaCO3": alk * 1e3 * M_CaCO3 / 2.0,
+        "DIC_mmol_per_L": c * 1e3,
+        "DIC_mg_per_L_as_C": c * ATOMIC_WEIGHT["C"] * 1e3,
+        "CO2_mg_per_L": h2co3 * M_CO2 * 1e3,
+        "calcium_mg_per_L": ca * ATOMIC_WEIGHT["Ca"] * 1e3,
+        "magnesium_mg_per_L": mg * ATOMIC_WEIGHT["Mg"] * 1e3,
+        "calcium_hardness_mg_per_L_as_CaCO3": ca * M_CaCO3 * 1e3,
+        "magnesium_hardness_mg_per_L_as_CaCO3": mg * M_CaCO3 * 1e3,
+        "total_hardness_mg_per_L_as_CaCO3": (ca + mg) * M_CaCO3 * 1e3,
+        "orthophosphate_mg_per_L_as_PO4": p * M_PO4 * 1e3 if has_p else None,
+        "orthophosphate_mg_per_L_as_P": p * ATOMIC_WEIGHT["P"] * 1e3 if has_p else None,
+        "LSI": None, "RSI": None, "pHs": None, "CCPP_mg_per_L_as_CaCO3": None, "tendency": None,
+        "SI": {sid: sol.SI[wm.solid_index[sid]] for sid in SUMMARY_SOLIDS
+               if sid in wm.solid_index and wm.solid_index[sid] in sol.SI},
+        "components_M": {cid: dis[j] for j, cid in enumerate(wm.tab.components) if j},
+        "notes": [],
+    }
+    if indices:
+        cc, notes = calcium_carbonate(wm, sol)
+        out["notes"].extend(notes)
+        if cc is not None:
+            out.update(LSI=cc["LSI"], RSI=cc["RSI"], pHs=cc["pHs"], CCPP_mg_per_L_as_CaCO3=cc["CCPP_mg_per_L_as_CaCO3"],
+                       tendency=cc["tendency"])
+            out["notes"].extend(cc.get("notes", []))
+    out["notes"].extend(sol.warnings)
+    return out
+
+
+def summarize(water: Water) -> dict:
+    """The summary of a water (see the module notes): pH, alkalinity, hardness, indices.
+
+    Examples
+    --------
+    >>> from acidscape.science.tableau import SystemInput
+    >>> c = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 0.0)
+    >>> w = Water((c,), (IonInput("calcium", "Ca+2", 2, 0.0),), {"carbonate": 4e-3, "calcium": 2e-3},
+    ...           T=298.15, pKw=13.995)
+    >>> s = summarize(w)
+    >>> round(s["pH"], 2), round(s["total_hardness_mg_per_L_as_CaCO3"], 1), round(s["LSI"], 2)
+    (8.05, 200.2, 0.88)
+    """
+    wm = water.build()
+    sol = wm.solve(guess=_indexed_state(wm, water.guess))
+    water.guess = _named_state(wm, sol)
+    return _summary(wm, sol)
+
+
+# --------------------------------------------------------------------------------------
+# one water plus one chemical
+
+
+@dataclass
+class _Point:
+    d: float               # dose [mol/L]
+    totals: list
+    sol: object
+    allowed: tuple         # solids allowed at this dose (ids)
+    value: float | None    # the searched quantity
+    cc: dict | None = None  # calcium carbonate block, when computed
+    limit: bool = False    # beyond a physical limit (CO2 solubility)
+
+
+class _Dosed:
+    """A water and one chemical as one tableau holding the components of both."""
+
+    def __init__(self, water: Water, chem, allow: tuple):
+        self.water, self.chem = water, chem
+        systems, ions = list(water.systems), list(water.ions)
+        keys = set(water.keys())
+        add: dict[str, float] = {}
+        for key, n in chem.systems:
+            if key not in keys:
+                systems.append(chem.components_at(water.T)[key])
+                keys.add(key)
+            add[key] = add.get(key, 0.0) + n
+        for iid, n in chem.ions:
+            ion = library.get_ion(iid)
+            key = ion.id
+            if key not in keys:
+                ions.append(IonInput(key, ion.formula, ion.charge, 0.0, ion.ion_size_A))
+                keys.add(key)
+            add[key] = add.get(key, 0.0) + n
+        self.new_keys = [k for k in add if k not in water.totals]
+        self.base_water = Water(tuple(systems), tuple(ions), dict(water.totals), water.T, water.pKw, water.model,
+                                water.complexes, water.I_fixed, water.notes)
+        self.wm = wm = self.base_water.build()
+        self.base = list(wm.totals)
+        self.per = [0.0] * len(self.base)
+        for key, n in add.items():
+            self.per[wm.comp_index[key]] += n
+        self.allow = tuple(allow)
+        self.guess = _indexed_state(wm, water.guess)
+        self.evaluations = 0
+        self._stoich = {sid: wm.tab.solids[wm.solid_index[sid]].stoich for sid in self.allow if sid in wm.solid_index}
+        self.sat_H2CO3 = (10.0 ** temperature.log10_KH_CO2(water.T)
+                          if chem.is_gas and CARBONATE in wm.system_species else None)
+
+    def totals(self, d: float) -> list[float]:
+        return [b + d * n for b, n in zip(self.base, self.per)]
+
+    def allowed(self, totals) -> tuple:
+        """The allowed solids whose components are all present."""
+        return tuple(sid for sid, st in self._stoich.items() if all(totals[j] > 0.0 for j, _ in st if j))
+
+    def solve(self, d: float, allow: tuple | None = None):
+        T = self.totals(d)
+        allowed = self.allowed(T) if allow is None else allow
+        sol = self.wm.solve(totals=T, allow_solids=allowed, guess=self.guess)
+        self.guess = sol.state
+        self.evaluations += 1
+        return T, sol, allowed
+
+    def point(self, d: float, kind: str) -> _Point:
+        T, sol, allowed = self.solve(d)
+        p = _Point(d, T, sol, allowed, None)
+        if kind in ("target_pH", "dose_mg_per_L"):
+            p.value = sol.pH
+        elif kind == "target_LSI":
+            p.value = self.lsi(sol)
+        else:
+            p.cc, _ = calcium_carbonate(self.wm, sol, allow_solids=allowed)
+            p.value = None if p.cc is None else p.cc["CCPP_mg_per_L_as_CaCO3"]
+        if self.sat_H2CO3 is not None:
+            p.limit = sol.conc[self.wm.system_species[CARBONATE][0]] > self.sat_H2CO3
+        return p
+
+    def lsi(self, sol) -> float | None:
+        """The LSI of a solved dosed water: with free-ion activities it equals the calcite
+        saturation index (:mod:`acidscape.operations.indices`), read here off the solution."""
+        s = self.wm.solid_index.get("calcite")
+        jCa, jC = self.wm.comp_index.get(CALCIUM), self.wm.comp_index.get(CARBONATE)
+        if s is None or jCa is None or jC is None or not (sol.totals[jCa] > 0 and sol.totals[jC] > 0):
+            return None
+        return sol.SI.get(s)
+
+    def indices(self, p: _Point) -> dict | None:
+        if p.cc is None:
+            p.cc, _ = calcium_carbonate(self.wm, p.sol, allow_solids=p.allowed)
+        return p.cc
+
+
+def add_chemical(water: Water, chem, d: float) -> Water:
+    """The water with ``d`` mol/L of a chemical added to its totals (nothing solved, no solid formed)."""
+    dosed = _Dosed(water, chem, ())
+    T = dosed.totals(d)
+    bw = dosed.base_water
+    out = Water(bw.systems, bw.ions, {c: T[j] for j, c in enumerate(dosed.wm.tab.components) if j}, bw.T, bw.pKw,
+                bw.model, bw.complexes, bw.I_fixed, bw.notes)
+    out.guess = water.guess
+    return out
+
+
+# --------------------------------------------------------------------------------------
+# the 1-D search on the dose
+
+
+@dataclass
+class _Found:
+    status: str                  # "found" | "met" | "unreachable" | "no effect"
+    point: _Point
+    start: _Point
+    direction: int               # +1 the chemical raises the value, -1 lowers it
+    points: list
+    hump: tuple | None = None    # (dose, value) where the value turned, when it first moved the other way
+    bracket: tuple | None = None
+    limited: bool = False        # stopped by a physical limit (CO2 solubility)
+    best: _Point | None = None   # the point nearest the target (unreachable)
+
+    @property
+    def monotone(self) -> bool:
+        if self.hump is not None:
+            return False
+        pts = sorted(self.points, key=lambda q: q.d)
+        return all((b.value - a.value) * self.direction >= -1e3 * NO_CHANGE
+                   for a, b in zip(pts, pts[1:]) if a.value is not None and b.value is not None)
+
+
+def _brent(g, a: float, ga: float, b: float, gb: float, xtol, ftol: float, max_iter: int = 100):
+    """Zero of g in [a, b] with g(a) g(b) < 0 by Brent's method (Brent 1973, ch. 4)."""
+    if abs(ga) < abs(gb):
+        a, b, ga, gb = b, a, gb, ga
+    c, gc, d_prev = a, ga, a
+    bisected = True
+    for _ in range(max_iter):
+        if abs(gb) <= ftol or abs(b - a) <= xtol(b):
+            return b
+        if ga != gc and gb != gc:  # inverse quadratic interpolation
+            s = (a * gb * gc / ((ga - gb) * (ga - gc)) + b * ga * gc / ((gb - ga) * (gb - gc))
+                 + c * ga * gb / ((gc - ga) * (gc - gb)))
+        else:  # secant
+            s = b - gb * (b - a) / (gb - ga)
+        lo, hi = sorted(((3 * a + b) / 4, b))
+        if (not lo < s < hi or (bisected and abs(s - b) >= abs(b - c) / 2)
+                or (not bisected and abs(s - b) >= abs(c - d_prev) / 2)
+                or (bisected and abs(b - c) < xtol(b)) or (not bisected and abs(c - d_prev) < xtol(b))):
+            s = 0.5 * (a + b)
+            bisected = True
+        else:
+            bisected = False
+        gs = g(s)
+        d_prev, c, gc = c, b, gb
+        if (ga < 0) != (gs < 0):
+            b, gb = s, gs
+        else:
+            a, ga = s, gs
+        if abs(ga) < abs(gb):
+            a, b, ga, gb = b, a, gb, ga
+    return b
+
+
+def _search(evaluate, target: float, tol: float, direction: int, d_first: float = FIRST_DOSE_M,
+            d_max: float = MAX_DOSE_M, start: _Point | None = None) -> _Found:
+    """The smallest dose whose value reaches ``target`` (see the module notes).
+
+    ``evaluate(d) -> _Point``; ``direction`` is the chemical's own (+1, -1) or 0 (take the
+    first move's); ``start`` the point at zero dose if already evaluated. Returns a
+    :class:`_Found`; never raises for an unreachable target.
+    """
+    pts: list[_Point] = []
+    by_d: dict[float, _Point] = {}
+
+    def ev(d: float) -> _Point:
+        if d in by_d:
+            return by_d[d]
+        p = evaluate(d)
+        if p.value is None:
+            raise ConvergenceError(f"the searched value could not be computed at a dose of {d * 1e3:.4g} mmol/L",
+                                   field=None)
+        pts.append(p)
+        by_d[d] = p
+        return p
+
+    if start is not None:
+        pts.append(start)
+        by_d[start.d] = start
+    p0 = start if start is not None else ev(0.0)
+    d = max(d_first, 10.0 * p0.d)
+    p1 = ev(d)
+    while abs(p1.value - p0.value) <= NO_CHANGE and d < d_max and not p1.limit:
+        d = min(10.0 * d, d_max)
+        p1 = ev(d)
+    if abs(p1.value - p0.value) <= NO_CHANGE:
+        return _Found("no effect", p0, p0, 0, pts)
+    first = 1 if p1.value > p0.value else -1
+    s = direction or first
+    g0 = p0.value - target
+    hump = first != s
+    if abs(g0) <= tol and not hump or g0 * s > tol:
+        return _Found("met", p0, p0, s, pts)
+    below = p0 if not hump else p1      # the last point short of the target
+    prev, cur = p0, p1
+    turn = None
+    while (cur.value - target) * s < 0 and not cur.limit:
+        if hump and turn is None and (cur.value - prev.value) * s > 0:
+            turn = (prev.d, prev.value)
+        below = cur
+        if cur.d >= d_max:
+            break
+        slope = (cur.value - prev.value) / (cur.d - prev.d)
+        if slope * s > 0:
+            est = cur.d + (target - cur.value) / slope
+            nd = min(max(est + 0.5 * (est - cur.d), 1.5 * cur.d), 16.0 * cur.d)
+        else:
+            nd = 4.0 * cur.d
+        prev, cur = cur, ev(min(nd, d_max))
+    if hump and turn is None:
+        turn = (prev.d, prev.value) if (cur.value - prev.value) * s > 0 else (cur.d, cur.value)
+    found = _Found("unreachable", cur, p0, s, pts, hump=turn if hump else None)
+    crossed = (cur.value - target) * s >= 0
+    if not crossed:
+        found.limited = cur.limit
+        if cur.limit:  # the best value is at the limit itself: bisect on it
+            lo, hi = below.d, cur.d
+            for _ in range(LIMIT_BISECTIONS):
+                mid = 0.5 * (lo + hi)
+                q = ev(mid)
+                if q.limit:
+                    hi = mid
+                else:
+                    lo = mid
+                    if (q.value - target) * s >= 0:  # reached before the limit after all
+                        return _search(evaluate, target, tol, s, d_first, mid, p0)
+        found.best = _best(pts, s, target)
+        return found
+    # refine inside the bracket: in ln(dose) when the bracket does not start at zero (titration
+    # curves and indices are smoother against the logarithm of the dose)
+    if below.d > 0.0:
+        u = _brent(lambda x: ev(math.exp(x)).value - target, math.log(below.d), below.value - target,
+                   math.log(cur.d), cur.value - target, lambda x: DOSE_RTOL, tol)
+        root = ev(math.exp(u))
+    else:
+        root = ev(_brent(lambda x: ev(x).value - target, 0.0, below.value - target, cur.d, cur.value - target,
+                         lambda x: DOSE_RTOL * abs(x) + 1e-15, tol))
+    found.bracket = (below.d, cur.d)
+    if root.limit:
+        found.limited = True
+        found.best = _best([q for q in pts if not q.limit], s, target)
+        return found
+    found.status, found.point = "found", root
+    return found
+
+
+def _best(pts, s: int, target: float) -> _Point | None:
+    ok = [q for q in pts if q.value is not None and not q.limit]
+    return max(ok, key=lambda q: q.value * s) if ok else None
+
+
+# --------------------------------------------------------------------------------------
+# steps
+
+
+@dataclass
+class Step:
+    """One checked step: a chemical and what fixes its dose."""
+
+    chemical: object             # Chemical
+    field: str                   # one of FIELDS
+    value: float
+    strength_pct: float | None = None
+    density_kg_per_L: float | None = None
+    precipitate: tuple | None = None   # None: the default
+    path: str = ""               # "steps[0]" in a sequence; "" for a single dose
+
+    def where(self, key: str) -> str:
+        return f"{self.path}.{key}" if self.path else key
+
+
+def read_solids(raw, where: str) -> tuple | None:
+    """Check a list of solid ids of the database (None stays None: the default applies).
+
+    Examples
+    --------
+    >>> read_solids(["calcite", "brucite", "calcite"], "precipitate")
+    ('calcite', 'brucite')
+    """
+    if raw is None:
+        return None
+    if isinstance(raw, str):
+        raw = [raw]
+    if not isinstance(raw, (list, tuple)):
+        raise InputError(f"{where} must be a list of solid ids such as [\"calcite\"], got {raw!r}", field=where)
+    out = []
+    for k, sid in enumerate(raw):
+        if not isinstance(sid, str):
+            raise InputError(f"{where}[{k}] must be a solid id (text), got {sid!r}", field=f"{where}[{k}]")
+        try:
+            sid = library.get_solid(sid).id
+        except UnknownIdError as exc:
+            exc.field = f"{where}[{k}]"
+            raise
+        if sid not in out:
+            out.append(sid)
+    return tuple(out)
+
+
+def _positive(value, where: str, hi: float) -> float | None:
+    if value is None:
+        return None
+    v = number(value, where, hi=hi, allow_text=True)
+    if not v > 0:
+        raise InputError(f"{where} = {v:g} must be above 0", field=where)
+    return v
+
+
+def make_step(chemical, field: str, value, *, strength_pct=None, density_kg_per_L=None, precipitate=None,
+              path: str = "") -> Step:
+    """A checked :class:`Step` (errors name ``path.key``)."""
+    where = (lambda k: f"{path}.{k}" if path else k)  # noqa: E731
+    chem = get_chemical(chemical, field=where("chemical")) if isinstance(chemical, str) else None
+    if chem is None:
+        raise InputError(f"{where('chemical')} must be a chemical id such as 'NaOH', got {chemical!r}",
+                         field=where("chemical"))
+    if field not in FIELDS:
+        raise InputError(f"give one of {', '.join(FIELDS)}", field=where("target_pH"))
+    lo, hi = BOUNDS[field]
+    v = number(value, where(field), lo=lo, hi=hi, allow_text=True)
+    return Step(chem, field, v, _positive(strength_pct, where("strength_pct"), 100.0),
+                _positive(density_kg_per_L, where("density_kg_per_L"), 5.0),
+                read_solids(precipitate, where("precipitate")), path)
+
+
+#: Keys a step may hold.
+STEP_KEYS = {"chemical", "strength_pct", "density_kg_per_L", "precipitate", "note", "name"} | set(FIELDS)
+#: At most this many steps in one sequence.
+MAX_STEPS = 20
+
+
+def read_steps(raw, path: str = "steps") -> list[Step]:
+    """Check a list of steps, each ``{chemical, target_pH | target_LSI | target_CCPP |
+    dose_mg_per_L, strength_pct?, density_kg_per_L?, precipitate?}``.
+
+    Errors name the step and key (``steps[1].target_LSI``).
+
+    Examples
+    --------
+    >>> [s.field for s in read_steps([{"chemical": "Ca(OH)2", "target_pH": 10.3},
+    ...                               {"chemical": "CO2", "target_LSI": 0}])]
+    ['target_pH', 'target_LSI']
+    >>> read_steps([{"chemical": "NaOH"}])
+    Traceback (most recent call last):
+    ...
+    acidscape.errors.InputError: steps[0]: give one of target_pH, target_LSI, target_CCPP, dose_mg_per_L
+    """
+    if not isinstance(raw, list) or not raw:
+        raise InputError(f"{path} must be a non-empty list of steps such as [{{\"chemical\": \"NaOH\", "
+                         "\"target_pH\": 8.5}]", field=path)
+    if len(raw) > MAX_STEPS:
+        raise InputError(f"{path} holds {len(raw)} steps; at most {MAX_STEPS} are allowed", field=path)
+    out = []
+    for k, st in enumerate(raw):
+        where = f"{path}[{k}]"
+        if not isinstance(st, dict):
+            raise InputError(f"{where} must be an object {{chemical, target_pH | target_LSI | target_CCPP | "
+                             "dose_mg_per_L, ...}", field=where)
+        unknown = sorted(set(st) - STEP_KEYS)
+        if unknown:
+            raise InputError(f"{where}: unknown keys {', '.join(unknown)}", field=f"{where}.{unknown[0]}")
+        given = [f for f in FIELDS if st.get(f) is not None]
+        if len(given) != 1:
+            raise InputError(f"{where}: give one of {', '.join(FIELDS)}"
+                             + (f" (got {', '.join(given)})" if given else ""),
+                             field=f"{where}.{given[1] if len(given) > 1 else 'target_pH'}")
+        out.append(make_step(st.get("chemical"), given[0], st[given[0]], strength_pct=st.get("strength_pct"),
+                             density_kg_per_L=st.get("density_kg_per_L"), precipitate=st.get("precipitate"),
+                             path=where))
+    return out
+
+
+def _label(field: str) -> str:
+    return {"target_pH": "pH", "target_LSI": "LSI", "target_CCPP": "CCPP", "dose_mg_per_L": "dose"}[field]
+
+
+def _fmt(field: str, v: float) -> str:
+    if field == "target_CCPP":
+        return f"{v:+.4g} mg/L as CaCO3"
+    if field == "target_LSI":
+        return f"{v:+.3f}"
+    return f"{v:.3f}"
+
+
+def _allowed_solids(step: Step, default_scenario: tuple) -> tuple[tuple, str]:
+    if step.precipitate is not None:
+        return step.precipitate, "step"
+    if default_scenario:
+        return tuple(default_scenario), "scenario"
+    if step.field in ("target_LSI", "target_CCPP"):
+        return DEFAULT_SOLIDS_INDEX, "default"
+    return DEFAULT_SOLIDS, "default"
+
+
+def _mg_of_solid(sid: str) -> tuple[object, float]:
+    s = library.get_solid(sid)
+    return s, s.molar_mass_g_per_mol
+
+
+def _formed(dosed: _Dosed, sol, flow_Ld: float | None) -> list[dict]:
+    return _formed_rows(dosed.wm, sol, flow_Ld)
+
+
+def _formed_rows(wm: WaterModel, sol, flow_Ld: float | None) -> list[dict]:
+    """One row per solid present: id, name, formula, mol/L, mg/L and (with a flow) kg/d."""
+    out = []
+    for s, n in sorted(sol.solids.items()):
+        info = wm.solid_info[s]
+        mg = n * info.molar_mass_g_per_mol * 1e3
+        out.append({"id": info.id, "name": info.name, "formula": info.formula, "mol_per_L": n, "mg_per_L": mg,
+                    "kg_per_d": mg * flow_Ld * 1e-6 if flow_Ld is not None else None})
+    return out
+
+
+def _product(mg: float, strength: float | None, density: float | None, flow_Ld: float | None,
+             warnings: list[str]) -> dict | None:
+    if strength is None:
+        return None
+    prod = {"strength_pct": strength, "density_kg_per_L": density, "product_mg_per_L": mg / (strength / 100.0),
+            "feed_kg_per_d": None, "feed_L_per_h": None, "feed_gal_per_d": None}
+    if flow_Ld is not None:
+        kg = prod["product_mg_per_L"] * flow_Ld * 1e-6
+        prod["feed_kg_per_d"] = kg
+        if density is not None:
+            prod["feed_L_per_h"] = kg / density / 24.0
+            prod["feed_gal_per_d"] = kg / density / L_PER_US_GALLON
+        else:
+            warnings.append("give density_kg_per_L for the product feed as a volume (L/h, gal/d)")
+    return prod
+
+
+def _unreachable(step: Step, found: _Found, allowed: tuple) -> TargetUnreachableError:
+    chem = step.chemical
+    label = _label(step.field)
+    where = step.where(step.field)
+    s = found.direction
+    best = found.best
+    side = "above" if s > 0 else "below"
+    most = "highest" if s > 0 else "lowest"
+    if best is None:
+        best = found.start
+    msg = (f"{where} {_fmt(step.field, step.value)} is {side} the {most} {label} {chem.id} can give this water: "
+           f"{_fmt(step.field, best.value)} at {best.d * 1e3:.4g} mmol/L")
+    if found.limited:
+        msg += ("; more CO2 would leave more dissolved H2CO3* than 1 atm of pure CO2 holds in solution "
+                "(Henry's law, Plummer & Busenberg 1982)")
+    elif found.point.d >= MAX_DOSE_M:
+        msg += f" (searched to {MAX_DOSE_M * 1e3:g} mmol/L)"
+    if step.field in ("target_LSI", "target_CCPP") and "calcite" in allowed and s > 0:
+        msg += ("; calcite is allowed to precipitate in this step, which holds the water at saturation (LSI 0, "
+                "CCPP 0): leave calcite out of precipitate to dose to an oversaturated water")
+    detail = {"direction": side, "best_value": best.value, "best_dose_mmol_per_L": best.d * 1e3,
+              "searched_to_mmol_per_L": max(q.d for q in found.points) * 1e3, "chemical": chem.id}
+    return TargetUnreachableError(msg, where, detail)
+
+
+def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solids: tuple = (),
+              number_: int = 1, compare: bool = False) -> tuple[dict, Water, list[dict]]:
+    """One dose on a water: (step record, the dissolved water after, solids formed).
+
+    ``compare``: when solids formed, also find the dose that would reach the target if none formed.
+    """
+    chem = step.chemical
+    allow, basis = _allowed_solids(step, scenario_solids)
+    dosed = _Dosed(water, chem, allow)
+    requested = [sid for sid in allow if sid not in dosed._stoich]
+    warnings: list[str] = []
+    if requested and basis != "default":
+        warnings.append("cannot form in this water (a component is missing): " + ", ".join(requested))
+    kind = step.field
+    found = None
+    if kind == "dose_mg_per_L":
+        d = step.value / chem.molar_mass_g_per_mol * 1e-3
+        p = dosed.point(d, kind)
+        if p.limit:
+            warnings.append(f"this CO2 dose leaves more dissolved H2CO3* than 1 atm of pure CO2 holds in solution; "
+                            "part of it would not dissolve")
+        status = "dosed" if d > 0 else "no dose needed"
+        message = f"{chem.id} {step.value:g} mg/L as given"
+    else:
+        p0 = None
+        direction = 0
+        if kind == "target_LSI" or kind == "target_CCPP":
+            direction = chemical_direction(chem)
+            p0 = dosed.point(0.0, kind)
+            if p0.value is None:
+                # the chemical may bring the missing calcium or carbonate (lime or soda ash into a
+                # water without it): start from a trace of it
+                p0 = dosed.point(TRACE_DOSE_M, kind)
+                if p0.value is None:
+                    raise InputError(f"{step.where(kind)}: the {_label(kind)} is not defined for this water: it "
+                                     f"holds no calcium or no carbonate (alkalinity), and {chem.id} adds none",
+                                     field=step.where(kind))
+                warnings.append(f"the water holds no calcium or no carbonate before the dose: its {_label(kind)} is "
+                                f"not defined, and the search starts from a trace of {chem.id}")
+        found = _search(lambda x: dosed.point(x, kind), step.value, TOLERANCE[kind], direction, start=p0)
+        if found.status == "no effect":
+            raise TargetUnreachableError(
+                f"{step.where(kind)}: {chem.id} does not change the {_label(kind)} of this water",
+                step.where(kind), {"direction": "none", "best_value": found.start.value, "best_dose_mmol_per_L": 0.0,
+                                   "searched_to_mmol_per_L": max(q.d for q in found.points) * 1e3,
+                                   "chemical": chem.id})
+        if found.status == "unreachable":
+            raise _unreachable(step, found, dosed.allowed(dosed.totals(MAX_DOSE_M)))
+        p = found.point
+        d = p.d
+        moves = "raises" if found.direction > 0 else "lowers"
+        if found.status == "met":
+            status = "no dose needed"
+            v0 = found.start.value
+            if abs(v0 - step.value) <= TOLERANCE[kind]:
+                message = f"no dose needed: the {_label(kind)} is already at the target {_fmt(kind, step.value)}"
+            else:
+                message = (f"no dose needed: the {_label(kind)} is {_fmt(kind, v0)}, already "
+                           f"{'above' if found.direction > 0 else 'below'} the target {_fmt(kind, step.value)}, "
+                           f"and {chem.id} {moves} it further; moving it back needs a chemical that acts the other way")
+        else:
+            status = "dosed"
+            message = f"{chem.id} {moves} the {_label(kind)} to {_fmt(kind, p.value)}"
+            if found.hump is not None:
+                warnings.append(
+                    f"the {_label(kind)} is not monotone in the {chem.id} dose: it first moves the other way "
+                    f"(to {_fmt(kind, found.hump[1])} at {found.hump[0] * 1e3:.4g} mmol/L) and reaches the target "
+                    "on its far side; the water between is " + ("oversaturated and may deposit calcite"
+                                                                if found.direction < 0 else "undersaturated"))
+            elif not found.monotone:
+                warnings.append(f"the {_label(kind)} is not monotone in the {chem.id} dose; the smallest dose "
+                                "found to reach the target is reported")
+    mg = d * chem.molar_mass_g_per_mol * 1e3
+    formed = _formed(dosed, p.sol, flow_Ld)
+    # the dissolved water after: solids separated; chemical components left at zero dropped
+    dis = _dissolved(dosed.wm, p.sol)
+    comps = dosed.wm.tab.components
+    totals = {c: max(dis[j], 0.0) for j, c in enumerate(comps) if j}
+    drop = {k for k in dosed.new_keys if totals.get(k, 0.0) == 0.0}
+    bw = dosed.base_water
+    after = Water(tuple(s for s in bw.systems if s.key not in drop), tuple(i for i in bw.ions if i.key not in drop),
+                  {k: v for k, v in totals.items() if k not in drop}, bw.T, bw.pKw, bw.model, bw.complexes,
+                  bw.I_fixed)
+    if p.sol.solids:
+        sol_after = dosed.wm.solve(totals=dis, guess=p.sol.state)
+    else:
+        sol_after = p.sol
+    after.guess = _named_state(dosed.wm, sol_after)
+    summary_after = _summary(dosed.wm, sol_after)
+    if p.sol.solids:  # the dosed water in contact with its solids
+        cc = dosed.indices(p)
+        reached = {"pH": p.sol.pH, "LSI": None if cc is None else cc["LSI"],
+                   "CCPP_mg_per_L_as_CaCO3": None if cc is None else cc["CCPP_mg_per_L_as_CaCO3"]}
+    else:  # the same water as after the step
+        reached = {"pH": p.sol.pH, "LSI": summary_after["LSI"],
+                   "CCPP_mg_per_L_as_CaCO3": summary_after["CCPP_mg_per_L_as_CaCO3"]}
+    without = None
+    if compare and formed and kind != "dose_mg_per_L" and status == "dosed":
+        plain = _Dosed(water, chem, ())
+        try:
+            alt = _search(lambda x: plain.point(x, kind), step.value, TOLERANCE[kind],
+                          found.direction if kind != "target_pH" else 0)
+            without = alt.point.d * 1e3 if alt.status in ("found", "met") else None
+        except (ConvergenceError, AcidscapeError):
+            without = None
+    total_mg = sum(f["mg_per_L"] for f in formed)
+    record = {
+        "step": number_,
+        "chemical": chem.as_json(),
+        "target": {"field": kind, "value": step.value},
+        "status": status,
+        "message": message,
+        "dose_mmol_per_L": d * 1e3,
+        "dose_mg_per_L": mg,
+        "dose_meq_per_L": d * chem.alkalinity_eq_per_mol * 1e3,
+        "pure_chemical_kg_per_d": mg * flow_Ld * 1e-6 if flow_Ld is not None else None,
+        "product": _product(mg, step.strength_pct, step.density_kg_per_L, flow_Ld, warnings),
+        "reached": reached,
+        "precipitation": {
+            "allowed": list(allow),
+            "basis": basis,
+            "formed": formed,
+            "total_mg_per_L": total_mg,
+            "total_kg_per_d": total_mg * flow_Ld * 1e-6 if flow_Ld is not None else None,
+            "dose_without_precipitation_mmol_per_L": without,
+            "note": ("solids allowed to form reach equilibrium (SI 0) in the dosed water and the dose includes what "
+                     "they take up; they are taken as settled or filtered before the water goes on"
+                     if allow else "no solid was allowed to form"),
+        },
+        "search": {
+            "evaluations": dosed.evaluations,
+            "monotone": None if found is None else found.monotone,
+            "direction": None if found is None else ("raises" if found.direction > 0 else "lowers"),
+            "bracket_mmol_per_L": None if found is None or found.bracket is None
+            else [found.bracket[0] * 1e3, found.bracket[1] * 1e3],
+            "hump": None if found is None or found.hump is None
+            else {"dose_mmol_per_L": found.hump[0] * 1e3, "value": found.hump[1]},
+        },
+        "water_after": summary_after,
+        "warnings": warnings + [w for w in p.sol.warnings if w not in warnings],
+    }
+    if formed:
+        record["warnings"].append("the dose includes what the solids formed take up: "
+                                  + ", ".join(f"{f['name']} {f['mg_per_L']:.4g} mg/L" for f in formed))
+    over = [(si, sid) for sid, si in summary_after["SI"].items() if si > 0.3 and sid in ("calcite", "brucite")
+            and sid not in allow]
+    for si, sid in over:
+        record["warnings"].append(f"the water after this step is oversaturated with {sid} (SI {si:+.2f}); name it in "
+                                  "precipitate to let it form")
+    return record, after, formed
+
+
+def _flow(flow, flow_unit) -> float | None:
+    if flow is None and flow_unit is None:
+        return None
+    if flow is None:
+        raise InputError("flow_unit given without flow", field="flow")
+    return flow_L_per_d(flow, flow_unit)
+
+
+def _flow_json(flow, flow_unit, flow_Ld) -> dict | None:
+    if flow_Ld is None:
+        return None
+    return {"value": float(flow), "unit": flow_unit, "L_per_d": flow_Ld, "m3_per_d": flow_Ld / 1e3}
+
+
+def dose_to_target(closed, chemical: str, field: str, value, *, strength_pct=None, density_kg_per_L=None,
+                   flow=None, flow_unit=None, precipitate=None) -> dict:
+    """Dose of one chemical that brings a water to a target pH, LSI or CCPP (or a given dose).
+
+    Parameters
+    ----------
+    closed : acidscape.operations.closure.Closed
+        The closed water (the boundary reads and closes the scenario)
+    chemical : str
+        Chemical id (:func:`acidscape.operations.dosing.get_chemical`) [-]
+    field : str
+        ``"target_pH"`` [-], ``"target_LSI"`` [-], ``"target_CCPP"`` [mg/L as CaCO3] or
+        ``"dose_mg_per_L"`` [mg/L]
+    value : float
+        The target or the dose [unit of ``field``]
+    strength_pct : float, optional
+        Product strength, 0 < S <= 100 [% w/w]
+    density_kg_per_L : float, optional
+        Product density, 0 < rho <= 5 [kg/L]
+    flow, flow_unit : float, str, optional
+        Plant flow [flow_unit] and its unit (m3/d, m3/h, L/s, L/min, MGD, gpm)
+    precipitate : list of str, optional
+        Solids allowed to form in the dosed water (default: see the module notes) [-]
+
+    Returns
+    -------
+    dict
+        The dose step record (module notes) plus ``water_before``, ``initial_pH``,
+        ``scenario_after``, ``precipitated``, ``flow``, ``cautions``
+
+    Raises
+    ------
+    TargetUnreachableError
+        No dose reaches the target (field names the target; ``detail`` which way and the best value)
+
+    Examples
+    --------
+    Caustic soda to LSI +0.2 (a 15 °C water; the dosed water's LSI is checked in the tests
+    against an independent solver):
+
+    >>> from acidscape.boundary.scenario import read_scenario
+    >>> from acidscape.operations.closure import close_scenario
+    >>> sc = {"temperature_C": 15, "systems": [{"id": "carbonate", "total": 2.0, "unit": "mmol/L"}],
+    ...       "ions": [{"id": "calcium", "total": 1.0, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}]}
+    >>> out = dose_to_target(close_scenario(sc, read_scenario(sc)), "NaOH", "target_LSI", 0.2)
+    >>> out["status"], round(out["reached"]["LSI"], 4)
+    ('dosed', 0.2)
+    """
+    step = make_step(chemical, field, value, strength_pct=strength_pct, density_kg_per_L=density_kg_per_L,
+                     precipitate=precipitate)
+    flow_Ld = _flow(flow, flow_unit)
+    water = water_from_closed(closed)
+    before = summarize(water)
+    record, after, formed = _run_step(water, step, flow_Ld=flow_Ld,
+                                      scenario_solids=tuple(getattr(closed, "precipitate", ()) or ()), compare=True)
+    record["water_before"] = before
+    record["initial_pH"] = before["pH"]
+    record["scenario_after"] = water_scenario(after)
+    record["precipitated"] = formed
+    record["flow"] = _flow_json(flow, flow_unit, flow_Ld)
+    record["warnings"] = list(water.notes) + record["warnings"]
+    if flow_Ld is None and step.strength_pct is not None:
+        record["warnings"].append("give flow and flow_unit for the product feed in kg/d")
+    record["cautions"] = cautions_for([step.chemical])
+    return record
+
+
+def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
+    """Several chemicals in sequence, each step on the water the one before left.
+
+    Parameters
+    ----------
+    closed : acidscape.operations.closure.Closed
+        The raw water, closed
+    steps : list of dict or Step
+        ``{chemical, target_pH | target_LSI | target_CCPP | dose_mg_per_L, strength_pct?,
+        density_kg_per_L?, precipitate?}`` in order (see :func:`read_steps`)
+    flow, flow_unit : float, str, optional
+        Plant flow and its unit, for kg/d of chemicals and solids
+
+    Returns
+    -------
+    dict
+        ``water_before``, ``steps`` (each a dose step record, module notes), ``water_after``,
+        ``scenario_after``, ``chemicals`` (summed by chemical), ``precipitated_total_mg_per_L``,
+        ``precipitated_total_kg_per_d``, ``flow``, ``cautions``, ``warnings``, ``method``
+
+    Examples
+    --------
+    Lime to pH 10.3 with calcite forming, then CO2 back to LSI 0 (an invented hard water):
+
+    >>> from acidscape.boundary.scenario import read_scenario
+    >>> from acidscape.operations.closure import close_scenario
+    >>> sc = {"systems": [{"id": "carbonate", "total": 4, "unit": "mmol/L"}],
+    ...       "ions": [{"id": "calcium", "total": 2, "unit": "mmol/L"}]}
+    >>> out = treat(close_scenario(sc, read_scenario(sc)),
+    ...             [{"chemical": "Ca(OH)2", "target_pH": 10.3}, {"chemical": "CO2", "target_LSI": -0.1}])
+    >>> [s["status"] for s in out["steps"]], out["steps"][0]["precipitation"]["formed"][0]["id"]
+    (['dosed', 'dosed'], 'calcite')
+    >>> round(out["water_after"]["LSI"], 4)
+    -0.1
+    """
+    parsed = [s if isinstance(s, Step) else None for s in steps] if isinstance(steps, list) else None
+    if parsed is None or any(s is None for s in parsed):
+        parsed = read_steps(steps)
+    flow_Ld = _flow(flow, flow_unit)
+    water = water_from_closed(closed)
+    scenario_solids = tuple(getattr(closed, "precipitate", ()) or ())
+    before = summarize(water)
+    records = []
+    for k, step in enumerate(parsed):
+        rec, water, _ = _run_step(water, step, flow_Ld=flow_Ld, scenario_solids=scenario_solids, number_=k + 1)
+        rec["water_before"] = before if k == 0 else records[-1]["water_after"]
+        records.append(rec)
+    for rec in records[1:]:
+        rec.pop("water_before", None)  # the previous step's water_after
+    records[0].pop("water_before", None)
+    sums: dict[str, dict] = {}
+    for rec, step in zip(records, parsed):
+        e = sums.setdefault(step.chemical.id, {"id": step.chemical.id, "dose_mg_per_L": 0.0,
+                                               "pure_chemical_kg_per_d": 0.0 if flow_Ld is not None else None})
+        e["dose_mg_per_L"] += rec["dose_mg_per_L"]
+        if flow_Ld is not None:
+            e["pure_chemical_kg_per_d"] += rec["pure_chemical_kg_per_d"]
+    solids_mg = sum(r["precipitation"]["total_mg_per_L"] for r in records)
+    warnings = list(closed.notes) if getattr(closed, "notes", None) else []
+    warnings += [n for n in water_from_closed(closed).notes if n not in warnings]
+    return {
+        "water_before": before,
+        "steps": records,
+        "water_after": records[-1]["water_after"],
+        "scenario_after": water_scenario(water),
+        "chemicals": list(sums.values()),
+        "precipitated_total_mg_per_L": solids_mg,
+        "precipitated_total_kg_per_d": solids_mg * flow_Ld * 1e-6 if flow_Ld is not None else None,
+        "flow": _flow_json(flow, flow_unit, flow_Ld),
+        "cautions": cautions_for(s.chemical for s in parsed),
+        "warnings": warnings,
+        "method": METHOD,
+    }
+
+
+METHOD = ("each step: the water as the step finds it plus the dose (no dilution: a dose per litre treated), solved "
+          "by the equilibrium model with its pH from the charge balance and the allowed solids at equilibrium; the "
+          "dose is the root of value(dose) - target, bracketed and refined by Brent's method; LSI and CCPP after "
+          "Standard Methods 2330 (acidscape.operations.indices); solids formed in a step are settled before the "
+          "next; no gas exchange and no temperature change")
