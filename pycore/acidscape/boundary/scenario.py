@@ -24,7 +24,7 @@ Ion ids are words (``"calcium"``, ``"lead"``, ``"iron(III)"``); the older formul
 
 Functions
 ---------
-read_scenario(scenario) -> Parsed    validated inputs for :func:`acidscape.science.solver.equilibrate`
+read_scenario(scenario) -> Parsed    validated inputs for :class:`acidscape.science.tableau.WaterModel`
 """
 
 from __future__ import annotations
@@ -40,7 +40,7 @@ from ..science import purewater
 from ..constants import T0
 from ..checks import number
 from ..errors import InputError, UnknownIdError
-from ..science.solver import Component, Ion
+from ..science.tableau import IonInput as Ion, SystemInput as Component
 from ..science.speciation import MAX_STEPS, _check_pKa, generic_species_names
 from .units import to_molar
 

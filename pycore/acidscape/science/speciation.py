@@ -29,7 +29,7 @@ proton_moments(pH, cum)             mean and variance of protons released (charg
 generic_species_names(n, z0)        names H_nA .. A for an acid without a library entry
 
 ``pH`` here is whatever scale the constants are on: with thermodynamic pKa it
-is -log10 a(H+); with conditional ("mixed") constants from :mod:`acidscape.science.solver`
+is -log10 a(H+); with conditional ("mixed") constants (:mod:`acidscape.science.model` at an ionic strength)
 it is still the meter pH, since the activity coefficients of the acid and base
 are folded into the constant.
 
