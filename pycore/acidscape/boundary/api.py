@@ -407,6 +407,9 @@ def dose(params: dict) -> dict:
 
     ``params``: ``scenario``, ``chemical`` (id), ``target_pH``, optional ``strength_pct`` [% w/w],
     ``density_kg_per_L`` [kg/L], ``flow`` and ``flow_unit`` (m3/d, m3/h, L/s, L/min, MGD, gpm).
+    ``target_LSI`` or ``target_CCPP`` [mg/L as CaCO3] instead of ``target_pH`` dose to a
+    calcium carbonate index (:func:`acidscape.operations.treatment.dose_to_target`; its result
+    shape is described there); ``precipitate`` names the solids that may form.
     """
     from ..operations.dosing import dose_to_pH
 
@@ -417,10 +420,99 @@ def dose(params: dict) -> dict:
         raise InputError(f"chemical must be an id such as 'NaOH', got {chem!r}", field="chemical")
     opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
            ("strength_pct", "density_kg_per_L", "flow")}
+    targets = [k for k in ("target_pH", "target_LSI", "target_CCPP") if params.get(k) is not None]
+    if len(targets) > 1:
+        raise InputError(f"give one target: {' or '.join(targets)}", field=targets[1])
+    if targets and targets[0] != "target_pH":
+        from ..operations.treatment import dose_to_target
+
+        return dose_to_target(_closed_water(_scenario_param(params)), chem, targets[0], params[targets[0]],
+                              strength_pct=opt["strength_pct"], density_kg_per_L=opt["density_kg_per_L"],
+                              flow=opt["flow"], flow_unit=params.get("flow_unit"),
+                              precipitate=params.get("precipitate"))
     return dose_to_pH(_closed_water(_scenario_param(params)), chem, _number(params, "target_pH"),
                       strength_pct=opt["strength_pct"], density_kg_per_L=opt["density_kg_per_L"],
                       flow=opt["flow"], flow_unit=params.get("flow_unit"), precipitate=params.get("precipitate"),
                       describe=solve)
+
+
+def treat(params: dict) -> dict:
+    """Several chemicals in sequence (:func:`acidscape.operations.treatment.treat`; result shape there).
+
+    ``params`` (also the file the CLI's ``treat FILE`` reads): ``scenario`` (the raw water),
+    ``steps`` (list of ``{chemical, target_pH | target_LSI | target_CCPP | dose_mg_per_L,
+    strength_pct?, density_kg_per_L?, precipitate?}``, applied in order), optional ``flow``
+    and ``flow_unit``.
+    """
+    from ..operations import treatment
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    steps = treatment.read_steps(params.get("steps"))
+    flow = None if params.get("flow") is None else _number(params, "flow")
+    return treatment.treat(_closed_water(_scenario_param(params)), steps, flow=flow,
+                           flow_unit=params.get("flow_unit"))
+
+
+def blend(params: dict) -> dict:
+    """Two or more waters blended by flow fraction (:func:`acidscape.operations.blend.blend`).
+
+    ``params``: ``waters`` (list of scenarios), ``fractions`` (one per water, summing to 1),
+    optional ``names``, ``precipitate`` (solids allowed to form in the blend), ``flow``,
+    ``flow_unit``. Errors inside a water name it: ``waters[1].systems[0].total``.
+    """
+    from ..operations import blend as blending
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    waters = params.get("waters")
+    if not isinstance(waters, list) or len(waters) < 2:
+        raise InputError("waters must be a list of two or more scenarios", field="waters")
+    blending.check_fractions(params.get("fractions"), len(waters))
+    closed = []
+    for k, sc in enumerate(waters):
+        try:
+            closed.append(_closed_water(sc))
+        except AcidscapeError as exc:
+            exc.field = f"waters[{k}]" + (f".{exc.field}" if exc.field and exc.field != "scenario" else "")
+            raise
+    names = params.get("names")
+    if names is not None and (not isinstance(names, list) or len(names) != len(waters)
+                              or not all(isinstance(n, str) for n in names)):
+        raise InputError("names must be a list of one text per water", field="names")
+    flow = None if params.get("flow") is None else _number(params, "flow")
+    return blending.blend(closed, params.get("fractions"), precipitate=params.get("precipitate"), flow=flow,
+                          flow_unit=params.get("flow_unit"), names=names)
+
+
+def soften(params: dict) -> dict:
+    """Lime (and soda ash) softening to equilibrium and recarbonation
+    (:func:`acidscape.operations.softening.soften`; result shape there).
+
+    ``params``: ``scenario``; optional ``softening_pH`` or ``lime_mg_per_L`` (as Ca(OH)2),
+    ``soda_ash_mg_per_L`` or ``target_hardness_mg_per_L_as_CaCO3``, ``remove_magnesium``
+    (bool), ``excess_lime_meq_per_L`` (stoichiometric estimate), ``first_stage_pH`` (null: no
+    first stage; absent: the default), ``recarbonation`` (``{"target_LSI": 0}`` by default;
+    ``{"target_CCPP": x}``, ``{"target_pH": x}``; null or false: none), ``flow``, ``flow_unit``.
+    """
+    from ..operations import softening
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
+           ("softening_pH", "lime_mg_per_L", "soda_ash_mg_per_L", "target_hardness_mg_per_L_as_CaCO3",
+            "excess_lime_meq_per_L", "flow")}
+    kw = {}
+    if "first_stage_pH" in params:
+        kw["first_stage_pH"] = None if params["first_stage_pH"] is None else _number(params, "first_stage_pH")
+    if "recarbonation" in params:
+        kw["recarbonation"] = params["recarbonation"]
+    return softening.soften(_closed_water(_scenario_param(params)), softening_pH=opt["softening_pH"],
+                            lime_mg_per_L=opt["lime_mg_per_L"], soda_ash_mg_per_L=opt["soda_ash_mg_per_L"],
+                            target_hardness_mg_per_L_as_CaCO3=opt["target_hardness_mg_per_L_as_CaCO3"],
+                            remove_magnesium=params.get("remove_magnesium", False),
+                            excess_lime_meq_per_L=opt["excess_lime_meq_per_L"], flow=opt["flow"],
+                            flow_unit=params.get("flow_unit"), **kw)
 
 
 def _parsed_water(params: dict):
@@ -644,6 +736,10 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "water": water,
         "titrate": titrate,
         "dose": dose,
+        # treatment jobs: chemicals in sequence, blends, lime softening (operations/treatment, blend, softening)
+        "treat": treat,
+        "blend": blend,
+        "soften": soften,
         # lead and copper solubility; conditional metal-EDTA constants (operations/solubility, hardness)
         "solubility": solubility,
         "conditional_constants": conditional_constants,

@@ -11,9 +11,22 @@ titrate FILE --titrant ID [--titrant-M C] [--sample-mL V] [--to-pH X] [--points 
 solubility FILE --metal lead|copper --axis pH|DIC|orthophosphate --from A --to B [--points N]
            [--fixed-pH X] [--unit U] [--solids ID,ID]
                       dissolved lead or copper in equilibrium with its least soluble solid, as JSON
-dose FILE --chemical ID --target-pH X [--strength-pct S] [--density-kg-per-L D]
-     [--flow VALUE --flow-unit U]
-                      dose to a target pH, product feed and the water after, as JSON
+dose FILE --chemical ID (--target-pH X | --target-LSI X | --target-CCPP X) [--precipitate IDS]
+     [--strength-pct S] [--density-kg-per-L D] [--flow VALUE --flow-unit U]
+                      dose to a target pH, LSI or CCPP (mg/L as CaCO3), product feed and the water after,
+                      as JSON; --precipitate: solids allowed to form (comma-separated ids)
+treat FILE [--flow VALUE --flow-unit U]
+                      chemicals in sequence: FILE is {"scenario": {...}, "steps": [{"chemical": ID,
+                      "target_pH" | "target_LSI" | "target_CCPP" | "dose_mg_per_L": X, "strength_pct"?,
+                      "density_kg_per_L"?, "precipitate"?}, ...], "flow"?, "flow_unit"?}; each step's
+                      dose and the water after it, as JSON
+blend FILE FILE... --fractions F1,F2,... [--precipitate IDS] [--flow VALUE --flow-unit U]
+                      waters (scenario files) blended by flow fraction: the blend's equilibrium and indices
+soften FILE [--softening-pH X | --lime-mg-per-L L] [--soda-ash-mg-per-L S | --target-hardness H]
+       [--remove-magnesium] [--first-stage-pH X | --no-first-stage] [--recarbonate-LSI X |
+       --recarbonate-CCPP X | --recarbonate-pH X | --no-recarbonation] [--flow VALUE --flow-unit U]
+                      lime (and soda ash) softening to equilibrium with calcite and brucite, sludge,
+                      recarbonation, and the textbook stoichiometric estimate beside it, as JSON
 batch IN.csv --mapping MAP.json [--jobs N] [--out OUT.csv] [--digits D]
                       one row of results per sample of a CSV, as CSV (see acidscape.boundary.batch);
                       bad rows are listed by spreadsheet row on stderr; batch --template: a CSV to fill in
@@ -85,11 +98,49 @@ def _add_commands(sub) -> None:
     d = sub.add_parser("dose", help="dose of a chemical that brings a water to a target pH")
     d.add_argument("file", metavar="FILE")
     d.add_argument("--chemical", required=True, metavar="ID")
-    d.add_argument("--target-pH", type=float, required=True, metavar="X")
+    target = d.add_mutually_exclusive_group(required=True)
+    target.add_argument("--target-pH", type=float, metavar="X")
+    target.add_argument("--target-LSI", type=float, metavar="X", help="Langelier saturation index to reach")
+    target.add_argument("--target-CCPP", type=float, metavar="X",
+                        help="calcium carbonate precipitation potential to reach [mg/L as CaCO3]")
+    d.add_argument("--precipitate", default=None, metavar="IDS",
+                   help="solids allowed to form as the dose is added (comma-separated ids, e.g. calcite,brucite)")
     d.add_argument("--strength-pct", type=float, default=None, metavar="S", help="product strength [%% w/w]")
     d.add_argument("--density-kg-per-L", type=float, default=None, metavar="D", help="product density [kg/L]")
     d.add_argument("--flow", type=float, default=None, metavar="VALUE", help="plant flow")
     d.add_argument("--flow-unit", default=None, metavar="U", help="m3/d, m3/h, L/s, L/min, MGD or gpm")
+    tr = sub.add_parser("treat", help="chemicals in sequence on a water (scenario and steps in one JSON file)")
+    tr.add_argument("file", metavar="FILE")
+    _flow_arguments(tr)
+    bl = sub.add_parser("blend", help="waters blended by flow fraction")
+    bl.add_argument("files", metavar="FILE", nargs="+")
+    bl.add_argument("--fractions", required=True, metavar="F1,F2,...", help="flow fractions, one per file, sum 1")
+    bl.add_argument("--precipitate", default=None, metavar="IDS", help="solids allowed to form in the blend")
+    _flow_arguments(bl)
+    sf = sub.add_parser("soften", help="lime (and soda ash) softening to equilibrium, then recarbonation")
+    sf.add_argument("file", metavar="FILE")
+    lime = sf.add_mutually_exclusive_group()
+    lime.add_argument("--softening-pH", type=float, default=None, metavar="X",
+                      help="pH the lime brings the water to (default 10.3; 11.0 with --remove-magnesium)")
+    lime.add_argument("--lime-mg-per-L", type=float, default=None, metavar="L", help="lime dose [mg/L as Ca(OH)2]")
+    soda = sf.add_mutually_exclusive_group()
+    soda.add_argument("--soda-ash-mg-per-L", type=float, default=None, metavar="S", help="soda ash dose [mg/L]")
+    soda.add_argument("--target-hardness", type=float, default=None, metavar="H",
+                      help="total hardness of the softened water the soda ash is dosed for [mg/L as CaCO3]")
+    sf.add_argument("--remove-magnesium", action="store_true", help="excess-lime softening (magnesium removal)")
+    sf.add_argument("--excess-lime-meq-per-L", type=float, default=None, metavar="E",
+                    help="excess lime of the stoichiometric estimate [meq/L] (default 1.25)")
+    first = sf.add_mutually_exclusive_group()
+    first.add_argument("--first-stage-pH", type=float, default=None, metavar="X",
+                       help="first recarbonation stage pH, calcite settled (default 10.3 with --remove-magnesium)")
+    first.add_argument("--no-first-stage", action="store_true", help="no first recarbonation stage")
+    rc = sf.add_mutually_exclusive_group()
+    rc.add_argument("--recarbonate-LSI", type=float, default=None, metavar="X", help="recarbonate to this LSI (default 0)")
+    rc.add_argument("--recarbonate-CCPP", type=float, default=None, metavar="X",
+                    help="recarbonate to this CCPP [mg/L as CaCO3]")
+    rc.add_argument("--recarbonate-pH", type=float, default=None, metavar="X", help="recarbonate to this pH")
+    rc.add_argument("--no-recarbonation", action="store_true", help="no recarbonation")
+    _flow_arguments(sf)
     b = sub.add_parser("batch", help="results of every sample of a CSV, as CSV")
     b.add_argument("file", metavar="IN.csv", nargs="?", help="CSV of samples (- for stdin)")
     b.add_argument("--mapping", metavar="MAP.json", help="which column holds what (JSON)")
@@ -101,6 +152,52 @@ def _add_commands(sub) -> None:
     b.add_argument("--template", action="store_true", help="write a CSV template to fill in instead")
     for add in extra_commands:
         add(sub)
+
+
+def _flow_arguments(p) -> None:
+    p.add_argument("--flow", type=float, default=None, metavar="VALUE", help="plant flow")
+    p.add_argument("--flow-unit", default=None, metavar="U", help="m3/d, m3/h, L/s, L/min, MGD or gpm")
+
+
+def _ids(text: str | None) -> list[str] | None:
+    return None if text is None else [x.strip() for x in text.split(",") if x.strip()]
+
+
+def _with_flow(params: dict, args) -> dict:
+    """``params`` with the command line's flow, when given (it overrides the file's)."""
+    if args.flow is not None or args.flow_unit is not None:
+        params = dict(params, flow=args.flow, flow_unit=args.flow_unit)
+    return params
+
+
+def _fractions(text: str) -> list:
+    out = []
+    for part in text.split(","):
+        try:
+            out.append(float(part))
+        except ValueError:
+            raise InputError(f"--fractions must be numbers separated by commas, got {text!r}",
+                             field="fractions") from None
+    return out
+
+
+def _soften_params(args, read) -> dict:
+    params = {"scenario": read(args.file), "softening_pH": args.softening_pH, "lime_mg_per_L": args.lime_mg_per_L,
+              "soda_ash_mg_per_L": args.soda_ash_mg_per_L,
+              "target_hardness_mg_per_L_as_CaCO3": args.target_hardness, "remove_magnesium": args.remove_magnesium,
+              "excess_lime_meq_per_L": args.excess_lime_meq_per_L}
+    if args.no_first_stage:
+        params["first_stage_pH"] = None
+    elif args.first_stage_pH is not None:
+        params["first_stage_pH"] = args.first_stage_pH
+    if args.no_recarbonation:
+        params["recarbonation"] = None
+    else:
+        for key, value in (("target_LSI", args.recarbonate_LSI), ("target_CCPP", args.recarbonate_CCPP),
+                           ("target_pH", args.recarbonate_pH)):
+            if value is not None:
+                params["recarbonation"] = {key: value}
+    return _with_flow(params, args)
 
 
 #: Hooks ``add(subparsers)`` and handlers registered by other modules.
@@ -147,8 +244,24 @@ def run(argv: list[str] | None = None) -> int:
             from .api import dose
 
             _print(dose({"scenario": _read_json(args.file), "chemical": args.chemical, "target_pH": args.target_pH,
+                         "target_LSI": args.target_LSI, "target_CCPP": args.target_CCPP,
+                         "precipitate": _ids(args.precipitate),
                          "strength_pct": args.strength_pct, "density_kg_per_L": args.density_kg_per_L,
                          "flow": args.flow, "flow_unit": args.flow_unit}))
+        elif args.command == "treat":
+            from .api import treat
+
+            _print(treat(_with_flow(_read_json(args.file), args)))
+        elif args.command == "blend":
+            from .api import blend
+
+            _print(blend(_with_flow({"waters": [_read_json(f) for f in args.files],
+                                     "fractions": _fractions(args.fractions),
+                                     "precipitate": _ids(args.precipitate)}, args)))
+        elif args.command == "soften":
+            from .api import soften
+
+            _print(soften(_soften_params(args, _read_json)))
         elif args.command == "batch":
             from .batch import run_cli
 
