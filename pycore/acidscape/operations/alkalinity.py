@@ -82,7 +82,7 @@ from collections.abc import Sequence
 from ..checks import number
 from ..constants import LN10, M_CaCO3
 from ..errors import ConvergenceError, InputError
-from .probe import aqueous_totals, derivatives, from_equilibrium, held, resolve
+from .probe import aqueous_totals, derivatives, held, resolve
 
 #: mg of CaCO3 per meq: half the molar mass of CaCO3 (IUPAC 2021 weights) [mg/meq].
 MG_CACO3_PER_MEQ = M_CaCO3 / 2.0
@@ -359,7 +359,7 @@ def _speciation_split(wm, sol) -> tuple[float, float, float]:
     return OH, CO3, HCO3
 
 
-def alkalinity_report(wm, sol=None) -> dict:
+def alkalinity_report(wm, sol) -> dict:
     """Alkalinity and acidity of a solved water, both definitions, JSON-ready.
 
     Parameters
@@ -393,8 +393,6 @@ def alkalinity_report(wm, sol=None) -> dict:
     >>> abs(rep["total_meq_per_L"] - 2.0) < 0.01   # fixed end point pH 4.5: close, not equal
     True
     """
-    if sol is None:  # TRANSITION: an acid-base Equilibrium of the old solver (remove with it)
-        wm, sol = from_equilibrium(wm)
     tab = wm.tab
     pH = sol.pH
     notes = []

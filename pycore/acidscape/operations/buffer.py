@@ -64,7 +64,7 @@ from ..errors import InputError
 from ..science.activity import gamma_function  # noqa: F401  (re-exported: was defined here)
 from ..science.speciation import _check_pH, cumulative_pKa
 from ..science.speciation import proton_moments as _moments
-from .probe import aqueous_totals, derivatives, from_equilibrium, held, resolve
+from .probe import aqueous_totals, derivatives, held, resolve
 
 _LN10 = math.log(10.0)
 _exp = math.exp
@@ -209,13 +209,7 @@ def _closed(wm, sol):
     return aqueous_totals(sol), sol.I
 
 
-def _args(wm, sol):
-    if sol is None:  # TRANSITION: an acid-base Equilibrium of the old solver (remove with it)
-        return from_equilibrium(wm)
-    return wm, sol
-
-
-def buffer_intensity(wm, sol=None, pH: float | None = None) -> float:
+def buffer_intensity(wm, sol, pH: float | None = None) -> float:
     """Buffer intensity of a solved water, closed, at its ionic strength, complexes included.
 
     .. math::
@@ -257,7 +251,6 @@ def buffer_intensity(wm, sol=None, pH: float | None = None) -> float:
     >>> round(buffer_intensity(wm, wm.solve(pH=7.0)) / 0.1, 3)
     0.576
     """
-    wm, sol = _args(wm, sol)
     if pH is not None and pH != sol.pH:
         T, I = _closed(wm, sol)
         sol = resolve(wm, pH=_check_pH(pH), totals=T, I=I, closed=True, guess=sol.state)
@@ -265,15 +258,12 @@ def buffer_intensity(wm, sol=None, pH: float | None = None) -> float:
     return _LN10 * S
 
 
-def buffer_curve(wm, sol=None, pH_values: Iterable[float] = ()) -> list[float]:
+def buffer_curve(wm, sol, pH_values: Iterable[float]) -> list[float]:
     """Buffer intensity [eq/(L pH)] of a solved water at each pH in ``pH_values`` (closed, fixed I).
 
     Each pH is solved by the model at the water's dissolved totals and ionic strength, warm
     started from the one before.
     """
-    if sol is not None and not hasattr(sol, "tableau"):  # TRANSITION: buffer_curve(eq, grid)
-        pH_values, sol = sol, None
-    wm, sol = _args(wm, sol)
     T, I = _closed(wm, sol)
     out = []
     state = sol.state
@@ -284,15 +274,12 @@ def buffer_curve(wm, sol=None, pH_values: Iterable[float] = ()) -> list[float]:
     return out
 
 
-def buffer_capacity(wm, sol=None, pH1: float | None = None, pH2: float | None = None) -> float:
+def buffer_capacity(wm, sol, pH1: float, pH2: float) -> float:
     """Strong base [eq/L] that takes a solved water from pH1 to pH2 (negative: acid).
 
     The exact difference of the proton totals at the two pH values, at the water's dissolved
     totals and ionic strength: C_B = T_H(pH1) - T_H(pH2), the integral of beta between them.
     """
-    if not hasattr(sol, "tableau"):  # TRANSITION: buffer_capacity(eq, pH1, pH2)
-        pH1, pH2, sol = sol, pH1, None
-    wm, sol = _args(wm, sol)
     T, I = _closed(wm, sol)
     a = resolve(wm, pH=_check_pH(pH1), totals=T, I=I, closed=True, guess=sol.state)
     b = resolve(wm, pH=_check_pH(pH2), totals=T, I=I, closed=True, guess=a.state)

@@ -277,7 +277,7 @@ def _balance_ion(q: float, index: int) -> IonInput:
     return IonInput(f"custom-ion-{index}", BALANCE_NAME, 1 if q > 0 else -1, abs(q))
 
 
-def resolve_measured(base: dict, parsed=None, measured: Measured | None = None) -> tuple[dict, dict]:
+def resolve_measured(base: dict, parsed, measured: Measured) -> tuple[dict, dict]:
     """Turn a measured water into an ordinary one (carbonate total and balancing ion).
 
     Parameters
@@ -319,9 +319,6 @@ def resolve_measured(base: dict, parsed=None, measured: Measured | None = None) 
     >>> round(info["DIC_M"] * 1e3, 2)
     2.03
     """
-    if parsed is None:  # TRANSITION: resolve_measured(scenario) of earlier versions (boundary reads)
-        base, measured = read_measured(base)
-        parsed = _read(base)
     pH = measured.pH
     C, q, I = _close(parsed, pH, measured=measured)
     out = copy.deepcopy(base)
@@ -343,14 +340,7 @@ def resolve_measured(base: dict, parsed=None, measured: Measured | None = None) 
     return out, info
 
 
-def _read(scenario: dict):
-    """TRANSITION (remove when the boundary passes parsed waters): read a scenario."""
-    from ..boundary.scenario import read_scenario
-
-    return read_scenario(scenario)
-
-
-def close_scenario(scenario: dict, parsed=None) -> Closed:
+def close_scenario(scenario: dict, parsed) -> Closed:
     """The closed, electroneutral water equivalent to ``scenario``, solved by the model.
 
     Parameters
@@ -369,11 +359,6 @@ def close_scenario(scenario: dict, parsed=None) -> Closed:
     """
     if not isinstance(scenario, dict):
         raise InputError("the scenario must be a JSON object", field="scenario")
-    inferred = None
-    if parsed is None:  # TRANSITION: close_scenario(scenario) of earlier versions (boundary reads)
-        if scenario.get("measured") is not None:
-            scenario, inferred = resolve_measured(scenario)
-        parsed = _read(scenario)
     notes = []
     precipitate = tuple(getattr(parsed, "precipitate", ()) or ())
     out = copy.deepcopy(scenario)
@@ -410,5 +395,4 @@ def close_scenario(scenario: dict, parsed=None) -> Closed:
                              "it is carried by a monovalent balancing ion")
     wm = model_of(parsed, systems=systems, ions=ions)
     sol = wm.solve(allow_solids=precipitate)
-    return Closed(scenario=out, wm=wm, sol=sol, notes=notes + list(parsed.warnings), inferred=inferred,
-                  precipitate=precipitate)
+    return Closed(scenario=out, wm=wm, sol=sol, notes=notes + list(parsed.warnings), precipitate=precipitate)

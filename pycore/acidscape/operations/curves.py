@@ -26,7 +26,7 @@ import math
 
 from ..checks import number, whole
 from ..errors import InputError
-from .probe import aqueous_totals, from_equilibrium, resolve
+from .probe import aqueous_totals, resolve
 
 
 def pH_grid(pH_min: float = 0.0, pH_max: float = 14.0, points: int = 281) -> list[float]:
@@ -57,7 +57,7 @@ def _log10(c: float) -> float | None:
     return math.log10(c) if c > 0.0 else None
 
 
-def water_curves(wm, sol, grid: list[float] | None = None) -> dict:
+def water_curves(wm, sol, grid: list[float]) -> dict:
     """Fractions and log10 concentrations [log10 mol/L] of every species over ``grid``.
 
     Parameters
@@ -92,9 +92,6 @@ def water_curves(wm, sol, grid: list[float] | None = None) -> dict:
     >>> [round(f, 4) for f in out["systems"][0]["fractions"][1]]
     [0.0909, 0.5, 0.9091]
     """
-    if grid is None:  # TRANSITION: water_curves(eq, grid) with an Equilibrium of the old solver
-        grid = sol
-        wm, sol = from_equilibrium(wm)
     tab = wm.tab
     n = len(grid)
     T = aqueous_totals(sol)

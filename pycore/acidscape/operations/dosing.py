@@ -59,9 +59,10 @@ from ..data import library
 from ..data.formula import molar_mass
 from ..errors import InputError, UnknownIdError, UnreachableError
 from ..science import temperature
+from ..science.activity import VALIDITY_I_M
 from ..science.tableau import SystemInput
 from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, equivalence_alkalinity, reference_index, reference_levels
-from .closure import Closed, close_scenario
+from .closure import Closed
 from .mixture import MAX_AMOUNT_M, PH_RANGE, Mixture, limit_pH_trace
 from .probe import aqueous_totals, ionic_strength
 
@@ -311,13 +312,22 @@ def _dose(closed: Closed, chem, target_pH: float, allow: tuple = ()) -> _Dose:
     role = "an acid" if g0 < 0 else ("a base" if g0 > 0 else "neutral")
     wrong_side = g0 == 0.0 or (target_pH > pH0) != upward
     if not wrong_side:
-        limit = limit_pH_trace(mix, pH0, upward, target_pH, I0)
-        if limit is not None:
-            raise UnreachableError(
-                f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the "
-                f"pH only approaches {limit:.2f}", field="target_pH")
-        d, sol, ok, I_after = mix.amount(target_pH, 0.0, I0=I0, guess=sol0.state, sign=1.0 if upward else -1.0,
-                                         d_max=MAX_AMOUNT_M, exact=True, robust=True)
+        sign = 1.0 if upward else -1.0
+        ok = False
+        if not allow:
+            # Newton on (dose, I) at the target pH; trusted where the activity model holds (beyond
+            # it the Davies equation turns upward and can invent a second crossing)
+            d, sol, ok, I_after = mix.amount(target_pH, 0.0, I0=I0, guess=sol0.state, sign=sign,
+                                             d_max=MAX_AMOUNT_M, exact=True)
+            ok = ok and (mix.wm.model != "davies" or I_after <= VALIDITY_I_M["davies"])
+        if not ok:
+            limit = limit_pH_trace(mix, pH0, upward, target_pH, I0)
+            if limit is not None:
+                raise UnreachableError(
+                    f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the "
+                    f"pH only approaches {limit:.2f}", field="target_pH")
+            d, sol, ok, I_after = mix.amount(target_pH, 0.0, I0=I0, guess=sol0.state, sign=sign,
+                                             d_max=MAX_AMOUNT_M, exact=True, robust=True)
     else:
         # Where the salt a dose adds moves the meter pH against the chemical's acid-base action
         # (activity corrections), a target on the "wrong" side can still be reached at some dose:
@@ -564,12 +574,10 @@ def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg
             raise InputError("flow_unit given without flow", field="flow")
         flow_Ld = flow_L_per_d(flow, flow_unit)
     asked = _solids(precipitate)
-    if isinstance(water, Closed):
-        closed = water
-    else:  # TRANSITION: a scenario dict, read here (the boundary passes a Closed water)
-        closed = close_scenario(water)
-    if describe is None and not isinstance(water, Closed):
-        from ..boundary.api import solve as describe  # TRANSITION: remove with the line above
+    if not isinstance(water, Closed):
+        raise InputError("the water must be a closed water (acidscape.operations.closure.close_scenario)",
+                         field="scenario")
+    closed = water
     allow = tuple(dict.fromkeys(tuple(closed.precipitate) + asked))
     res = _dose(closed, chem, target_pH, allow)
     d = res.d

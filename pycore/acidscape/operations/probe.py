@@ -153,37 +153,83 @@ TRACE_M = 1e-200
 
 
 class _Cholesky:
-    """Jacobi-scaled Cholesky factor of a small symmetric positive definite matrix (factor once)."""
+    """Jacobi-scaled Cholesky factor of a small symmetric positive definite matrix (factor once).
 
-    __slots__ = ("n", "d", "L")
+    A diagonal matrix (components that share no species, as in an acid-base-only water) is
+    kept as its diagonal.
+    """
+
+    __slots__ = ("n", "d", "L", "diag")
 
     def __init__(self, A: list[list[float]]):
         n = self.n = len(A)
-        d = self.d = [math.sqrt(A[i][i]) if A[i][i] > 0.0 else 1.0 for i in range(n)]
+        for i, row in enumerate(A):
+            if not row[i] > 0.0:
+                # a Gram matrix of present components is positive definite; guard anyway
+                raise ArithmeticError("singular Hessian in the linearisation of the water")
+        if all(not v for i, row in enumerate(A) for k, v in enumerate(row) if k != i):
+            self.diag = [row[i] for i, row in enumerate(A)]
+            return
+        self.diag = None
+        d = self.d = [math.sqrt(A[i][i]) for i in range(n)]
         L = self.L = [[0.0] * n for _ in range(n)]
         for i in range(n):
             Ai, Li = A[i], L[i]
             for k in range(i + 1):
                 Lk = L[k]
-                v = Ai[k] / (d[i] * d[k]) - sum(Li[p] * Lk[p] for p in range(k))
+                v = Ai[k] / (d[i] * d[k])
+                for p in range(k):
+                    v -= Li[p] * Lk[p]
                 if i == k:
                     if not v > 1e-300:
-                        # a Gram matrix of present components is positive definite; guard anyway
                         raise ArithmeticError("singular Hessian in the linearisation of the water")
                     Li[i] = math.sqrt(v)
                 else:
                     Li[k] = v / Lk[k]
 
     def solve(self, b: list[float]) -> list[float]:
+        if self.diag is not None:
+            return [bi / di for bi, di in zip(b, self.diag)]
         n, d, L = self.n, self.d, self.L
         y = [0.0] * n
         for i in range(n):
             Li = L[i]
-            y[i] = (b[i] / d[i] - sum(Li[p] * y[p] for p in range(i))) / Li[i]
+            v = b[i] / d[i]
+            for p in range(i):
+                v -= Li[p] * y[p]
+            y[i] = v / Li[i]
         x = [0.0] * n
         for i in range(n - 1, -1, -1):
-            x[i] = (y[i] - sum(L[p][i] * x[p] for p in range(i + 1, n))) / L[i][i]
+            v = y[i]
+            for p in range(i + 1, n):
+                v -= L[p][i] * x[p]
+            x[i] = v / L[i][i]
         return [x[i] / d[i] for i in range(n)]
+
+
+#: Per tableau (by identity): each species' proton coefficient and its other (component, coef) pairs.
+_STRUCTURE: dict[int, tuple] = {}
+
+
+def _structure(tab):
+    """(tableau, [(aH, ((j, a), ...)) per species]) for a tableau, computed once."""
+    hit = _STRUCTURE.get(id(tab))
+    if hit is not None and hit[0] is tab:
+        return hit[1]
+    rows = []
+    for sp in tab.species:
+        aH = 0
+        rest = []
+        for j, a in sp.stoich:
+            if j == 0:
+                aH = a
+            else:
+                rest.append((j, a))
+        rows.append((aH, tuple(rest)))
+    if len(_STRUCTURE) > 64:
+        _STRUCTURE.clear()
+    _STRUCTURE[id(tab)] = (tab, rows)
+    return rows
 
 
 class Linearization:
@@ -198,13 +244,17 @@ class Linearization:
         self.sol = sol
         tab = sol.tableau
         m = len(tab.components)
+        rows = _structure(tab)
+        conc = sol.conc
         # a component held below TRACE_M is treated as absent (its trace formula is the exact
         # limit, and its Hessian row would underflow)
         amount = [0.0] * m
-        for sp, c in zip(tab.species, sol.conc):
-            for j, a in sp.stoich:
-                amount[j] += a * a * c
-        present = [j for j in range(1, m) if sol.free_ln[j] > -math.inf and amount[j] > TRACE_M]
+        for (aH, rest), c in zip(rows, conc):
+            if c:
+                for j, a in rest:
+                    amount[j] += a * a * c
+        free_ln = sol.free_ln
+        present = [j for j in range(1, m) if amount[j] > TRACE_M and free_ln[j] > -math.inf]
         self.pos = pos = {j: k for k, j in enumerate(present)}
         self.present = present
         n = self.n = len(present)
@@ -212,17 +262,13 @@ class Linearization:
         hH = [0.0] * n
         HH = 0.0
         live = []
-        for i, (sp, c) in enumerate(zip(tab.species, sol.conc)):
+        species = tab.species
+        for i, c in enumerate(conc):
             if not c:
                 continue
-            aH = 0
-            idx = []
-            for j, a in sp.stoich:
-                if j == 0:
-                    aH = a
-                elif j in pos:
-                    idx.append((pos[j], a))
-            live.append((i, sp, c, idx, aH))
+            aH, rest = rows[i]
+            idx = [(pos[j], a) for j, a in rest if j in pos]
+            live.append((i, species[i], c, idx, aH))
             if aH:
                 HH += c * aH * aH
             for p, a in idx:
@@ -235,6 +281,7 @@ class Linearization:
         self.live, self.hH, self.HH = live, hH, HH
         self.chol = _Cholesky(H) if n else None
         self._g = None
+        self._along = None
 
     def _solve(self, b):
         return self.chol.solve(b) if self.n else []
@@ -291,6 +338,13 @@ class Linearization:
 
     def along(self, direction: dict[int, float]) -> tuple[float, float]:
         """d(charge)/ds and d(I_species)/ds when the totals move by ``direction`` x ds (fixed pH, I)."""
+        if self._along is not None and self._along[0] == direction:
+            return self._along[1]
+        out = self._along_new(direction)
+        self._along = (dict(direction), out)
+        return out
+
+    def _along_new(self, direction):
         tab = self.sol.tableau
         pos = self.pos
         rhs = [0.0] * self.n
@@ -433,15 +487,3 @@ def charge_response(sol, direction: dict[int, float], g: dict[int, float] | None
         return Linearization(sol).along(direction)[0]
     z = sol.tableau.charges
     return math.fsum(v * (g.get(j, 0.0) + z[j]) for j, v in direction.items() if v and j)
-
-
-def from_equilibrium(eq):
-    """TRANSITION (remove with ``acidscape.science.solver``): the (WaterModel, Solution) of an
-    acid-base ``Equilibrium`` of the old charge-balance solver, at its pH and ionic strength."""
-    wm = WaterModel([st.component for st in eq.systems], [ion for ion, _ in eq.ions], T=eq.T, pKw=eq.pKw,
-                    model=eq.model, complexes=False, I_fixed=eq.I)
-    totals = list(wm.totals)
-    for st in eq.systems:
-        if st.component.fixed_first_M is None:
-            totals[wm.comp_index[st.component.key]] = st.total_M
-    return wm, wm.solve(pH=eq.pH, totals=totals)

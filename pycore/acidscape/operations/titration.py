@@ -50,7 +50,7 @@ from ..checks import number, whole
 from ..data import library
 from ..errors import InputError, UnreachableError
 from ..science.tableau import IonInput, WaterModel
-from .closure import Closed, close_scenario
+from .closure import Closed
 from .mixture import MAX_AMOUNT_M, PH_RANGE, Mixture, limit_pH_trace
 
 #: Default and largest number of curve points.
@@ -241,7 +241,10 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
         if titrant_M is None:
             raise InputError("titrant_M is required for a titrant in solution", field="titrant_M")
         titrant_M = _positive(titrant_M, "titrant_M", 20.0)
-    closed = water if isinstance(water, Closed) else close_scenario(water)  # TRANSITION: a scenario dict
+    if not isinstance(water, Closed):
+        raise InputError("the water must be a closed water (acidscape.operations.closure.close_scenario)",
+                         field="scenario")
+    closed = water
     warnings = list(closed.notes)
     if closed.sol.solids:
         warnings.append("solids present in the water are left out: the curve is that of the dissolved sample")
