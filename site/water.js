@@ -335,58 +335,77 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
 
   /**
    * The species table in the chosen unit: every number the view shows, worked out here.
+   * Works with results that list strong ions apart (result.ions) and with results whose
+   * species hold every kind ("acid-base", "free ion", "complex").
    *
    * @param {object} result  the core's solve result
+   * @param {object} curves  the core's curves (the colour slot of a row is its line's index)
    * @param {object[]} scenarioIons  the scenario's ion entries (custom molar masses)
    * @param {string} unit  one of DISPLAY_UNITS
    */
-  function speciesRows(result, scenarioIons, unit) {
+  function speciesRows(result, curves, scenarioIons, unit) {
     const names = systemNames(result);
     const molar = unit in MOLAR_SCALE;
     const activityUnit = unit === "mol/L" || unit === "umol/L" ? unit : "mmol/L";
     const activityScale = MOLAR_SCALE[activityUnit];
+    const lineIndex = new Map((curves?.log_concentration || []).map((l, i) => [`${l.system ?? ""}|${l.name}`, i]));
     // [shown value, what it is "as" (or "")] for a concentration c [mol/L] of a species
     const inUnit = (c, massOf, asOf) => {
       if (molar) return [c * MOLAR_SCALE[unit], ""];
       if (unit === "mg/L as basis" && asOf) return [c * asOf.g * 1e3, asOf.formula];
       return massOf ? [c * massOf.g * MASS_SCALE[unit], massOf.as] : [null, ""];
     };
+    const customMass = (id) => {
+      const k = /^custom-ion-(\d+)$/.exec(String(id));
+      return k ? scenarioIons?.[Number(k[1])]?.custom?.molar_mass_g_per_mol ?? null : null;
+    };
+    const componentName = (id) => library.get(id)?.name ?? ionLibrary.get(id)?.name ?? names.get(id) ?? id;
     const rows = [];
-    let slot = 2; // slots follow the log-concentration plot: H+, OH-, then every species in order
-    for (const s of result.species) {
-      const system = library.get(s.system);
-      // Free CO2 is reported as CO2 in mass units (H2CO3* counts CO2(aq) + H2CO3 together).
-      const asCO2 = s.name === "H2CO3*" && co2MolarMass;
-      const massOf = asCO2 ? { g: co2MolarMass, as: "CO2" } : s.molar_mass_g_per_mol ? { g: s.molar_mass_g_per_mol, as: "" } : null;
-      const asOf = system?.as_formula ? { g: system.as_g_per_mol, formula: system.as_formula } : null;
+    const row = (s, system, systemName, massOf, asOf, percent, slot) => {
       const [shown, as] = inUnit(s.concentration_M, massOf, asOf);
       rows.push({
-        name: s.name, system: s.system, systemName: names.get(s.system) ?? s.system, charge: s.charge,
-        concentration_M: s.concentration_M, shown, as, activity_M: s.activity_M,
-        activityShown: s.activity_M * activityScale, gamma: s.activity_coefficient,
-        percent: s.fraction * 100, slot: slot++,
+        name: s.name, system, systemName, charge: s.charge, concentration_M: s.concentration_M, shown, as,
+        activity_M: s.activity_M, activityShown: s.activity_M * activityScale, gamma: s.activity_coefficient,
+        percent, slot,
+      });
+    };
+    let next = 2; // results without curve systems: H+, OH-, then every species in order
+    const slotOf = (name, system) => lineIndex.get(`${system ?? ""}|${name}`) ?? (lineIndex.size ? null : next++);
+    const ionsAmongSpecies = result.species.some((s) => s.kind === "free ion");
+    for (const s of result.species) {
+      const kind = s.kind ?? "acid-base";
+      if (kind === "acid-base") {
+        const system = library.get(s.system);
+        // Free CO2 is reported as CO2 in mass units (H2CO3* counts CO2(aq) + H2CO3 together).
+        const asCO2 = s.name === "H2CO3*" && co2MolarMass;
+        const massOf = asCO2 ? { g: co2MolarMass, as: "CO2" } : s.molar_mass_g_per_mol ? { g: s.molar_mass_g_per_mol, as: "" } : null;
+        const asOf = system?.as_formula ? { g: system.as_g_per_mol, formula: system.as_formula } : null;
+        row(s, s.system, names.get(s.system) ?? s.system, massOf, asOf, s.fraction * 100, slotOf(s.name, s.system));
+      } else if (kind === "free ion") {
+        const id = Object.keys(s.holds || {})[0];
+        const lib = ionLibrary.get(id);
+        const mass = s.molar_mass_g_per_mol ?? lib?.molar_mass_g_per_mol ?? customMass(id);
+        const asOf = lib?.as_formula ? { g: lib.as_g_per_mol, formula: lib.as_formula } : null;
+        row(s, "strong ion", lib?.name ?? "strong ion", mass ? { g: mass, as: "" } : null, asOf, null, slotOf(s.name, s.system));
+      } else {
+        const of = Object.keys(s.holds || {}).map(componentName).join(" + ");
+        const mass = s.molar_mass_g_per_mol;
+        row(s, kind, of ? `${kind} of ${of}` : kind, mass ? { g: mass, as: "" } : null, null, null, slotOf(s.name, s.system));
+      }
+    }
+    if (!ionsAmongSpecies) {
+      result.ions.forEach((ion) => {
+        const lib = ionLibrary.get(ion.id);
+        const mass = lib?.molar_mass_g_per_mol ?? customMass(ion.id);
+        const asOf = lib?.as_formula ? { g: lib.as_g_per_mol, formula: lib.as_formula } : null;
+        row({ ...ion, name: lib ? lib.formula : ion.name }, "strong ion", lib ? lib.name : "strong ion",
+          mass ? { g: mass, as: "" } : null, asOf, null, null);
       });
     }
-    result.ions.forEach((ion, k) => {
-      const lib = ionLibrary.get(ion.id);
-      const mass = lib?.molar_mass_g_per_mol ?? scenarioIons?.[k]?.custom?.molar_mass_g_per_mol ?? null;
-      const asOf = lib?.as_formula ? { g: lib.as_g_per_mol, formula: lib.as_formula } : null;
-      const [shown, as] = inUnit(ion.concentration_M, mass ? { g: mass, as: "" } : null, asOf);
-      rows.push({
-        name: lib ? lib.formula : ion.name, system: "strong ion", systemName: lib ? lib.name : "strong ion",
-        charge: ion.charge, concentration_M: ion.concentration_M, shown, as, activity_M: ion.activity_M,
-        activityShown: ion.activity_M * activityScale, gamma: ion.activity_coefficient, percent: null, slot: null,
-      });
-    });
     // H+ and OH- (the molar masses of H and O+H: IUPAC 2021 standard atomic weights, abridged)
     const waterMass = { "H+": 1.008, "OH-": 17.007 };
     result.water_ions.forEach((w, k) => {
-      const [shown, as] = inUnit(w.concentration_M, { g: waterMass[w.name], as: "" }, null);
-      rows.push({
-        name: w.name, system: "water", systemName: "water", charge: w.charge, concentration_M: w.concentration_M,
-        shown, as, activity_M: w.activity_M, activityShown: w.activity_M * activityScale,
-        gamma: w.activity_coefficient, percent: null, slot: k,
-      });
+      row(w, "water", "water", { g: waterMass[w.name], as: "" }, null, null, lineIndex.get(`water|${w.name}`) ?? lineIndex.get(`|${w.name}`) ?? k);
     });
     return { rows, activityUnit };
   }
@@ -394,7 +413,7 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
   function drawTable() {
     if (!last) return;
     const unit = view.readConditions().displayUnit;
-    const { rows, activityUnit } = speciesRows(last.result, last.scenario.ions, unit);
+    const { rows, activityUnit } = speciesRows(last.result, last.curves, last.scenario.ions, unit);
     const summary = {
       pHLabel: last.result.inferred_from_measurements ? "pH (measured)" : last.result.pH_was_given ? "pH (given)" : "Equilibrium pH",
       alkalinity: totalAlkalinity(last.result),
