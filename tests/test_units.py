@@ -6,7 +6,7 @@ from hypothesis import strategies as st
 
 from acidscape.data import library
 from acidscape.errors import InputError, UnknownIdError
-from acidscape.boundary.units import accepted_units, factor_to_molar, from_molar, to_molar
+from acidscape.data.units import accepted_units, factor_to_molar, from_molar, to_molar
 
 # Standard atomic weights (IUPAC CIAAW 2021 conventional values; from memory):
 # N 14.007, P 30.974, C 12.011, Cl2 = 2 x 35.45.

@@ -595,7 +595,7 @@ def solubility(params: dict) -> dict:
     """
     from ..data import library
     from ..operations import solubility as sol
-    from .units import from_molar, to_molar
+    from ..data.units import from_molar, to_molar
 
     if not isinstance(params, dict):
         raise InputError("parameters must be a JSON object", field=None)

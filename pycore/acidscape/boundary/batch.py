@@ -34,7 +34,7 @@ A *column mapping* says which column holds what (every key optional except as no
      "decimal": "auto"}            # ".", "," or "auto" (see above)
 
 Ion ids may be the ion's word (``"calcium"``, ``"sulfate"``: the library's ion names) or its
-formula id (``"Ca+2"``, ``"SO4-2"``). Units are those of :mod:`acidscape.boundary.units`
+formula id (``"Ca+2"``, ``"SO4-2"``). Units are those of :mod:`acidscape.data.units`
 (``mg/L``, ``mg/L as X``, ``mmol/L``, ``umol/L``, ``mol/L``, ``meq/L`` for strong ions) and
 ``ug/L`` (``ug/L as X``), read as 1/1000 of the mg/L unit when the core lists no ``ug/L``.
 Each column's unit becomes one factor to mol/L when the mapping is read, not once per row.
@@ -376,7 +376,7 @@ def _lookup_system(key):
 
 def _units_of(item) -> list[str]:
     """Units a column of this system or ion may be in: the core's, plus ug/L forms of its mg/L ones."""
-    from ..boundary.units import accepted_units
+    from ..data.units import accepted_units
 
     units = list(accepted_units(item))
     for u in list(units):
@@ -389,7 +389,7 @@ def _units_of(item) -> list[str]:
 
 def _factor(unit, item, field: str) -> float:
     """mol/L per one unit of ``item`` (one multiplication per cell afterwards)."""
-    from ..boundary.units import accepted_units, factor_to_molar
+    from ..data.units import accepted_units, factor_to_molar
 
     core = accepted_units(item)
     if isinstance(unit, str) and unit.replace("µ", "u").replace("μ", "u") != unit:

@@ -42,7 +42,7 @@ from ..checks import number
 from ..errors import InputError, UnknownIdError
 from ..science.tableau import IonInput as Ion, SystemInput as Component
 from ..science.speciation import MAX_STEPS, _check_pKa, generic_species_names
-from .units import to_molar
+from ..data.units import to_molar
 
 #: At most this many acid-base systems in one water.
 MAX_SYSTEMS = 40

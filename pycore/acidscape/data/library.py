@@ -1451,7 +1451,7 @@ def accepted_units(system_or_ion) -> list[str]:
 
     Notes
     -----
-    The rule is that of :func:`acidscape.boundary.units.accepted_units`, which this
+    The rule is that of :func:`acidscape.data.units.accepted_units`, which this
     function calls so that both always agree.
 
     Examples
@@ -1464,7 +1464,7 @@ def accepted_units(system_or_ion) -> list[str]:
     >>> "mg/L as CaCO3" in accepted_units("calcium")
     True
     """
-    from ..boundary import units
+    from . import units
 
     item = system_or_ion
     if isinstance(item, str):

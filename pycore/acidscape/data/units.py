@@ -1,4 +1,4 @@
-"""Concentration units at the boundary: what a practitioner types, to and from mol/L.
+"""Concentration units: what a practitioner types, to and from mol/L (one factor each way).
 
 Accepted unit strings (spelling is exact; ``µ`` and ``u`` both mean micro):
 
