@@ -19,22 +19,29 @@ LSI with free-ion activities, which equals the model's calcite saturation index,
 identity the search uses between reports; the CCPP of the closed water). The dose is the
 root of ``value(d) - target`` on ``d >= 0`` found in two stages:
 
-1. *bracket*: the value at ``d = 0`` and at a first dose of 0.1 mmol/L gives the direction
-   the chemical moves it; later doses follow secant estimates (at least x1.5, at most x16
-   per step) until the value passes the target or the dose reaches :data:`MAX_DOSE_M`;
+1. *bracket*: the value at ``d = 0`` and at a first dose give the direction the chemical
+   moves it; later doses follow secant estimates (at least x1.5, at most x16 per step;
+   x4 while a hump carries the value away from the target) until the value passes the
+   target or the dose reaches :data:`MAX_DOSE_M`;
 2. *refine*: Brent's method [1]_ inside the bracket (inverse quadratic interpolation,
    secant and bisection steps), to :data:`TOLERANCE`.
 
-pH and the indices are monotone in the dose in the usual cases (a base raises them, an
-acid lowers them). Where they are not, the result says so (``search.monotone`` false and a
-warning): CO2 dosed into a water that holds hydroxide alkalinity (after excess-lime
-softening) first turns OH- into CO3-2 and *raises* the LSI and CCPP, which fall only later.
-For the indices the direction is the chemical's own (:func:`chemical_direction`: a base
-raises them, an acid or CO2 lowers them), so such a hump is passed and the target is met
-on its far side; the water between is oversaturated.
+For the indices the value is probed first at 1 umol/L, to see which way the chemical moves
+it where a hump would begin; a pH search starts at 0.1 mmol/L. pH and the
+indices are monotone in the dose in the usual cases (a base raises them, an acid lowers
+them). Where they are not, the result says so (``search.monotone`` false and a warning):
+CO2 dosed into a water that holds hydroxide alkalinity (after lime softening) first turns
+OH- into CO3-2 and *raises* the LSI and CCPP, which fall only later. For the indices the
+direction is the chemical's own (:func:`chemical_direction`: a base raises them, an acid
+or CO2 lowers them; for pH it is the first move), and the dose is the smallest at which the
+value passes the target *moving that way*: such a hump is passed and the target is met on
+its far side (``search.hump``: the extreme sampled on it); the water between is
+oversaturated. This is the recarbonation of a softened water, which leaves the basin
+saturated (LSI 0): CO2 to LSI 0 or to a small positive CCPP is the dose past the hump.
 
-A target already met, or already passed in the direction the chemical moves the value,
-needs no dose: the result has ``status`` "no dose needed" and zero dose (not an error).
+A target already met, or already passed in the direction the chemical moves the value (and
+not crossed again by a hump), needs no dose: the result has ``status`` "no dose needed"
+and zero dose (not an error).
 A target the chemical cannot reach raises :class:`TargetUnreachableError` (an
 :class:`acidscape.errors.UnreachableError`) naming the field (``target_LSI``,
 ``steps[1].target_CCPP`` ...), which way it fails and the best value reached.
@@ -142,7 +149,9 @@ from .indices import calcium_carbonate
 
 #: The largest dose searched [mol/L]: 100 mmol/L (4000 mg/L of NaOH), beyond any water treatment.
 MAX_DOSE_M = 0.1
-#: First trial dose of a search [mol/L] (0.1 mmol/L, 4 mg/L of NaOH).
+#: Dose that probes the direction a chemical moves a value at the start [mol/L] (1 umol/L).
+PROBE_DOSE_M = 1e-6
+#: First trial dose of a search after the probe [mol/L] (0.1 mmol/L, 4 mg/L of NaOH).
 FIRST_DOSE_M = 1e-4
 #: Dose standing for "a trace" where a value is not defined without the chemical [mol/L].
 TRACE_DOSE_M = 1e-9
@@ -171,6 +180,8 @@ M_PO4 = ATOMIC_WEIGHT["P"] + 4 * ATOMIC_WEIGHT["O"]
 ALKALINITY_REFERENCE_PH = 4.5
 #: Bisections locating a physical limit of the dose (CO2 solubility) when a target lies beyond it.
 LIMIT_BISECTIONS = 24
+#: Golden-section steps refining the extreme of a hump that might pass the target.
+HUMP_REFINEMENTS = 10
 #: A change of a value below this is no change (rounding of the solves).
 NO_CHANGE = 1e-9
 
@@ -466,6 +477,13 @@ def summarize(water: Water) -> dict:
     return _summary(wm, sol)
 
 
+def _summary_of_closed(closed, water: Water) -> dict:
+    """The summary of a closed water, from its own solution when it holds no solid."""
+    if not closed.sol.solids and not closed.wm.fixed_species:
+        return _summary(closed.wm, closed.sol)
+    return summarize(water)
+
+
 # --------------------------------------------------------------------------------------
 # one water plus one chemical
 
@@ -655,7 +673,9 @@ def _search(evaluate, target: float, tol: float, direction: int, d_first: float 
         pts.append(start)
         by_d[start.d] = start
     p0 = start if start is not None else ev(0.0)
-    d = max(d_first, 10.0 * p0.d)
+    # the first move, from a small dose: the direction at the start (where a hump begins);
+    # a search that takes the first move's direction (pH) has no hump and starts larger
+    d = max(PROBE_DOSE_M if direction else d_first, 10.0 * p0.d)
     p1 = ev(d)
     while abs(p1.value - p0.value) <= NO_CHANGE and d < d_max and not p1.limit:
         d = min(10.0 * d, d_max)
@@ -664,61 +684,107 @@ def _search(evaluate, target: float, tol: float, direction: int, d_first: float 
         return _Found("no effect", p0, p0, 0, pts)
     first = 1 if p1.value > p0.value else -1
     s = direction or first
-    g0 = p0.value - target
     hump = first != s
-    if abs(g0) <= tol and not hump or g0 * s > tol:
+
+    def past(q: _Point) -> bool:
+        return (q.value - target) * s >= 0
+
+    if not hump and (p0.value - target) * s >= -tol:
         return _Found("met", p0, p0, s, pts)
-    below = p0 if not hump else p1      # the last point short of the target
+    # walk up the dose to the first crossing from short of the target to past it
+    short = p0 if (p0.value - target) * s < -tol else None
     prev, cur = p0, p1
-    turn = None
-    while (cur.value - target) * s < 0 and not cur.limit:
-        if hump and turn is None and (cur.value - prev.value) * s > 0:
-            turn = (prev.d, prev.value)
-        below = cur
-        if cur.d >= d_max:
+    crossed = False
+    while True:
+        if not past(cur):
+            short = cur
+        elif short is not None:
+            crossed = True
+            break
+        if cur.limit or cur.d >= d_max:
             break
         slope = (cur.value - prev.value) / (cur.d - prev.d)
-        if slope * s > 0:
+        if short is cur and slope * s > 0:
             est = cur.d + (target - cur.value) / slope
             nd = min(max(est + 0.5 * (est - cur.d), 1.5 * cur.d), 16.0 * cur.d)
-        else:
+        elif short is None:  # on the rising side of a hump: sample it closely
             nd = 4.0 * cur.d
+        else:
+            nd = max(4.0 * cur.d, d_first)
         prev, cur = cur, ev(min(nd, d_max))
-    if hump and turn is None:
-        turn = (prev.d, prev.value) if (cur.value - prev.value) * s > 0 else (cur.d, cur.value)
-    found = _Found("unreachable", cur, p0, s, pts, hump=turn if hump else None)
-    crossed = (cur.value - target) * s >= 0
+    if hump and short is None:
+        # the hump's sampled extreme did not pass the target: refine the extreme before saying so
+        q = _hump_extreme(ev, pts, s, cur.d, lambda r: not past(r))
+        if q is not None and not past(q):
+            short = q
+            after = [r for r in pts if r.d > q.d and past(r)]
+            cur, crossed = min(after, key=lambda r: r.d), True
+    turn = None
+    if hump:
+        ext = max((q for q in pts if q.d <= cur.d), key=lambda q: -q.value * s)
+        turn = (ext.d, ext.value)
+    found = _Found("unreachable", cur, p0, s, pts, hump=turn)
+    if short is None:  # past the target at the start, and the hump never carried the value back over it
+        found.status, found.point = "met", p0
+        return found
+    if cur.limit:  # the best value is at the limit itself: bisect on it (the root may lie before it)
+        found.limited = True
+        lo, hi = short.d, cur.d
+        for _ in range(LIMIT_BISECTIONS):
+            mid = 0.5 * (lo + hi)
+            q = ev(mid)
+            if q.limit:
+                hi = mid
+            elif past(q):
+                cur, crossed = q, True
+                break
+            else:
+                lo, short = mid, q
     if not crossed:
-        found.limited = cur.limit
-        if cur.limit:  # the best value is at the limit itself: bisect on it
-            lo, hi = below.d, cur.d
-            for _ in range(LIMIT_BISECTIONS):
-                mid = 0.5 * (lo + hi)
-                q = ev(mid)
-                if q.limit:
-                    hi = mid
-                else:
-                    lo = mid
-                    if (q.value - target) * s >= 0:  # reached before the limit after all
-                        return _search(evaluate, target, tol, s, d_first, mid, p0)
         found.best = _best(pts, s, target)
         return found
     # refine inside the bracket: in ln(dose) when the bracket does not start at zero (titration
     # curves and indices are smoother against the logarithm of the dose)
-    if below.d > 0.0:
-        u = _brent(lambda x: ev(math.exp(x)).value - target, math.log(below.d), below.value - target,
+    if short.d > 0.0:
+        u = _brent(lambda x: ev(math.exp(x)).value - target, math.log(short.d), short.value - target,
                    math.log(cur.d), cur.value - target, lambda x: DOSE_RTOL, tol)
         root = ev(math.exp(u))
     else:
-        root = ev(_brent(lambda x: ev(x).value - target, 0.0, below.value - target, cur.d, cur.value - target,
+        root = ev(_brent(lambda x: ev(x).value - target, 0.0, short.value - target, cur.d, cur.value - target,
                          lambda x: DOSE_RTOL * abs(x) + 1e-15, tol))
-    found.bracket = (below.d, cur.d)
+    found.bracket = (short.d, cur.d)
     if root.limit:
         found.limited = True
-        found.best = _best([q for q in pts if not q.limit], s, target)
+        found.best = _best(pts, s, target)
         return found
-    found.status, found.point = "found", root
+    found.status, found.point, found.limited = "found", root, False
     return found
+
+
+def _hump_extreme(ev, pts, s: int, d_end: float, stop) -> _Point | None:
+    """Golden-section refinement of the extreme of a hump (the value furthest against ``s``)
+    between the sampled points beside the sampled extreme; stops early where ``stop(point)``."""
+    seq = sorted((q for q in pts if q.d <= d_end), key=lambda q: q.d)
+    k = max(range(len(seq)), key=lambda i: -seq[i].value * s)
+    if k == 0 or k == len(seq) - 1:
+        return None
+    a, b = math.log(max(seq[k - 1].d, TRACE_DOSE_M)), math.log(seq[k + 1].d)
+    r = (math.sqrt(5.0) - 1.0) / 2.0
+    x1, x2 = b - r * (b - a), a + r * (b - a)
+    f1, f2 = ev(math.exp(x1)), ev(math.exp(x2))
+    for _ in range(HUMP_REFINEMENTS):
+        for q in (f1, f2):
+            if stop(q):
+                return q
+        if -f1.value * s > -f2.value * s:
+            b, x2, f2 = x2, x1, f1
+            x1 = b - r * (b - a)
+            f1 = ev(math.exp(x1))
+        else:
+            a, x1, f1 = x1, x2, f2
+            x2 = a + r * (b - a)
+            f2 = ev(math.exp(x2))
+    return max((f1, f2), key=lambda q: -q.value * s)
 
 
 def _best(pts, s: int, target: float) -> _Point | None:
@@ -987,6 +1053,11 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
             v0 = found.start.value
             if abs(v0 - step.value) <= TOLERANCE[kind]:
                 message = f"no dose needed: the {_label(kind)} is already at the target {_fmt(kind, step.value)}"
+            elif found.hump is not None:
+                message = (f"no dose needed: the {_label(kind)} is {_fmt(kind, v0)}, "
+                           f"{'above' if found.direction > 0 else 'below'} the target {_fmt(kind, step.value)}; "
+                           f"{chem.id} first {'lowers' if found.direction > 0 else 'raises'} it only to "
+                           f"{_fmt(kind, found.hump[1])} (at {found.hump[0] * 1e3:.4g} mmol/L) and then {moves} it")
             else:
                 message = (f"no dose needed: the {_label(kind)} is {_fmt(kind, v0)}, already "
                            f"{'above' if found.direction > 0 else 'below'} the target {_fmt(kind, step.value)}, "
@@ -1020,7 +1091,12 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
         sol_after = p.sol
     after.guess = _named_state(dosed.wm, sol_after)
     summary_after = _summary(dosed.wm, sol_after)
-    if p.sol.solids:  # the dosed water in contact with its solids
+    calcite = dosed.wm.solid_index.get("calcite")
+    if p.sol.solids and calcite in p.sol.solids and not p.cc:
+        # at equilibrium with calcite: LSI = its saturation index (0), and the closed CCPP is 0
+        # by its definition (Standard Methods 2330 C: nothing more precipitates or dissolves)
+        reached = {"pH": p.sol.pH, "LSI": dosed.lsi(p.sol), "CCPP_mg_per_L_as_CaCO3": 0.0}
+    elif p.sol.solids:  # the dosed water in contact with its solids
         cc = dosed.indices(p)
         reached = {"pH": p.sol.pH, "LSI": None if cc is None else cc["LSI"],
                    "CCPP_mg_per_L_as_CaCO3": None if cc is None else cc["CCPP_mg_per_L_as_CaCO3"]}
@@ -1149,7 +1225,7 @@ def dose_to_target(closed, chemical: str, field: str, value, *, strength_pct=Non
                      precipitate=precipitate)
     flow_Ld = _flow(flow, flow_unit)
     water = water_from_closed(closed)
-    before = summarize(water)
+    before = _summary_of_closed(closed, water)
     record, after, formed = _run_step(water, step, flow_Ld=flow_Ld,
                                       scenario_solids=tuple(getattr(closed, "precipitate", ()) or ()), compare=True)
     record["water_before"] = before
@@ -1205,7 +1281,7 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
     flow_Ld = _flow(flow, flow_unit)
     water = water_from_closed(closed)
     scenario_solids = tuple(getattr(closed, "precipitate", ()) or ())
-    before = summarize(water)
+    before = _summary_of_closed(closed, water)
     records = []
     for k, step in enumerate(parsed):
         rec, water, _ = _run_step(water, step, flow_Ld=flow_Ld, scenario_solids=scenario_solids, number_=k + 1)
