@@ -91,3 +91,25 @@ test("settle resets what cannot be used until the inputs compute", async () => {
   assert.deepEqual(notes, ["ph reset", "t reset"]);
   assert.deepEqual(inputs, { t: "25", ph: "7" });
 });
+
+test("settle leaves a question the chemistry cannot answer to the user", async () => {
+  let resets = 0;
+  const block = computation({
+    read: () => ({ params: { target: 8.5 }, errors: {} }),
+    call: async () => {
+      const e = new Error("NaOH acts as a base on this water; it cannot bring it to 8.5");
+      e.name = "CoreError";
+      e.type = "UnreachableError";
+      e.field = "target";
+      throw e;
+    },
+    explain: (e) => ({ [e.field]: e.message }),
+    render: () => {},
+  });
+  const notes = await block.settle(() => {
+    resets += 1;
+    return ["reset"];
+  });
+  assert.deepEqual(notes, []);
+  assert.equal(resets, 0);
+});
