@@ -161,7 +161,7 @@ def chemicals() -> dict:
 
     Examples
     --------
-    >>> [c for c in chemicals()]
+    >>> list(chemicals())[:7]
     ['NaOH', 'HCl', 'H2SO4', 'Ca(OH)2', 'Na2CO3', 'NaHCO3', 'CO2']
     >>> chemicals()["Na2CO3"].alkalinity_eq_per_mol
     2.0
@@ -477,25 +477,18 @@ def _summary(wm, sol) -> dict:
     }
 
 
-def _oversaturation_warnings(wm, sol, allow) -> list[str]:
-    """Calcite (and the most oversaturated other solid) oversaturated after dosing and not allowed to form."""
-    out = []
-    others = []
+def _calcite_warning(wm, sol, allow) -> list[str]:
+    """A warning when the dosed water is oversaturated with calcite and calcite may not form.
+
+    (Other solids are named in the description of the water after, ``water_after``.)
+    """
     for s, si in sol.SI.items():
         sid = wm.tab.solids[s].id
-        if sid in allow or si <= 0.0:
-            continue
-        name = getattr(wm.solid_info[s], "name", sid)
-        if sid == "calcite":
-            out.append(f"the dosed water is oversaturated with {name} (SI {si:+.2f}); it may precipitate and "
-                       "take up more of the dose: add \"calcite\" to precipitate to include it")
-        elif si > 0.3:
-            others.append((si, name, sid))
-    if others:
-        si, name, sid = max(others)
-        out.append(f"the dosed water is oversaturated with {name} (SI {si:+.2f}); add \"{sid}\" to precipitate "
-                   "to let it form")
-    return out
+        if sid == "calcite" and sid not in allow and si > 0.0:
+            name = getattr(wm.solid_info[s], "name", sid)
+            return [f"the dosed water is oversaturated with {name} (SI {si:+.2f}); it may precipitate and "
+                    "take up more of the dose: add \"calcite\" to precipitate to include it"]
+    return []
 
 
 def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg_per_L=None,
@@ -633,7 +626,8 @@ def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg
         "note": "solids allowed to form reach equilibrium (SI 0) in the water after; a formed solid is "
                 "assumed to stay in contact with the water" if allow else "no solid was allowed to form",
     }
-    warnings.extend(_oversaturation_warnings(res.mix.wm, res.sol, allow))
+    calcite = _calcite_warning(res.mix.wm, res.sol, allow)
+    warnings.extend(calcite)
     warnings.extend(w for w in res.sol.warnings if w not in warnings)
     out["scenario_after"] = _after_scenario(closed, chem, d, allow)
     if describe is not None:
@@ -641,7 +635,8 @@ def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg
         after_desc = describe(out["scenario_after"])
         out["water_before"] = before_desc
         out["water_after"] = after_desc
-        warnings.extend(w for w in after_desc.get("warnings", []) if w not in warnings)
+        warnings.extend(w for w in after_desc.get("warnings", [])
+                        if w not in warnings and not (calcite and "alcite" in w))
     out["cautions"] = list(CAUTIONS)
     out["warnings"] = warnings
     return out
