@@ -24,18 +24,13 @@ expected number comes from one of the sources above.
 from __future__ import annotations
 
 import json
-import math
 import subprocess
 import sys
 
 import pytest
 
 import reference_model
-from acidscape.boundary.api import dose, handle, solve
-from acidscape.boundary.api import blend as api_blend
-from acidscape.boundary.api import soften as api_soften
-from acidscape.boundary.api import treat as api_treat
-from acidscape.errors import InputError, UnknownIdError, UnreachableError
+from acidscape.boundary.api import handle, solve
 from acidscape.operations.softening import stoichiometric_softening
 
 MM = "mmol/L"
@@ -193,7 +188,8 @@ def test_dose_input_errors():
     assert err("dose", {"scenario": WATER, "chemical": "NaOH", "target_LSI": 9})["field"] == "target_LSI"
     assert err("dose", {"scenario": WATER, "chemical": "NaOH", "target_LSI": 0.2,
                         "precipitate": ["chalk"]})["field"] == "precipitate[0]"
-    no_ca = {"systems": [{"id": "carbonate", "total": 1, "unit": MM}], "ions": [{"id": "sodium", "total": 1, "unit": MM}]}
+    no_ca = {"systems": [{"id": "carbonate", "total": 1, "unit": MM}],
+             "ions": [{"id": "sodium", "total": 1, "unit": MM}]}
     assert err("dose", {"scenario": no_ca, "chemical": "NaOH", "target_LSI": 0.2})["field"] == "target_LSI"
 
 
@@ -226,7 +222,8 @@ def test_sequence_with_precipitation_equals_the_steps_applied_by_hand():
     def closed(sc):
         return close_scenario(sc, read_scenario(sc))
 
-    sc = dict(WATER, systems=[{"id": "carbonate", "total": 3.0, "unit": MM}, {"id": "sulfate", "total": 0.4, "unit": MM}],
+    sc = dict(WATER, systems=[{"id": "carbonate", "total": 3.0, "unit": MM},
+                              {"id": "sulfate", "total": 0.4, "unit": MM}],
               ions=[{"id": "calcium", "total": 1.7, "unit": MM}, {"id": "magnesium", "total": 0.3, "unit": MM},
                     {"id": "sodium", "total": 0.5, "unit": MM}, {"id": "chloride", "total": 0.9, "unit": MM}])
     seq = treat(closed(sc), [{"chemical": "Ca(OH)2", "target_pH": 10.2}, {"chemical": "CO2", "target_LSI": -0.2}],
@@ -255,7 +252,8 @@ def test_caustic_and_orthophosphate_stoichiometry():
     # an acid: it removes one equivalent of alkalinity to the pH 4.5 end point per mole (H2PO4-)
     step = out["steps"][1]
     assert step["dose_meq_per_L"] == pytest.approx(-3.0 / M_H3PO4, rel=1e-9)
-    drop = out["steps"][0]["water_after"]["total_alkalinity_meq_per_L"] - out["water_after"]["total_alkalinity_meq_per_L"]
+    drop = (out["steps"][0]["water_after"]["total_alkalinity_meq_per_L"]
+            - out["water_after"]["total_alkalinity_meq_per_L"])
     assert drop == pytest.approx(3.0 / M_H3PO4, rel=1e-9)
     assert step["product"]["product_mg_per_L"] == pytest.approx(3.0 / 0.85, rel=1e-12)
     assert any("nutrient" in c for c in out["cautions"])
@@ -347,7 +345,9 @@ def test_blend_with_calcite_forming_balances():
     assert out["blend"]["components_M"]["calcium"] + n == pytest.approx(rows["calcium"]["blend_M"], rel=1e-10)
     assert out["blend"]["components_M"]["carbonate"] + n == pytest.approx(rows["carbonate"]["blend_M"], rel=1e-10)
     assert ref_solve(out["scenario"])["saturation"]["calcite"] == pytest.approx(0.0, abs=1e-6)
-    assert out["precipitation"]["total_kg_per_d"] == pytest.approx(out["precipitation"]["total_mg_per_L"] * 1.2, rel=1e-12)
+    # 50 m3/h = 1.2e6 L/d: kg/d = mg/L x 1.2
+    assert out["precipitation"]["total_kg_per_d"] == pytest.approx(out["precipitation"]["total_mg_per_L"] * 1.2,
+                                                                   rel=1e-12)
 
 
 def test_blend_fractions_must_sum_to_one():
@@ -411,8 +411,10 @@ def _textbook_scenario():
     return {"temperature_C": 15,
             "systems": [{"id": "carbonate", "total": t["CO2"] / M_CO2 + t["Alk"] / EQ["CaCO3"], "unit": MM},
                         {"id": "sulfate", "total": t["SO4"], "unit": "mg/L"}],
-            "ions": [{"id": "calcium", "total": t["Ca"], "unit": "mg/L"}, {"id": "magnesium", "total": t["Mg"], "unit": "mg/L"},
-                     {"id": "sodium", "total": t["Na"], "unit": "mg/L"}, {"id": "chloride", "total": t["Cl"], "unit": "mg/L"}]}
+            "ions": [{"id": "calcium", "total": t["Ca"], "unit": "mg/L"},
+                     {"id": "magnesium", "total": t["Mg"], "unit": "mg/L"},
+                     {"id": "sodium", "total": t["Na"], "unit": "mg/L"},
+                     {"id": "chloride", "total": t["Cl"], "unit": "mg/L"}]}
 
 
 @pytest.mark.parametrize("options", [{"remove_magnesium": True, "target_hardness_mg_per_L_as_CaCO3": 90.0},
@@ -470,8 +472,9 @@ def test_softening_targets():
     assert e["field"] == "target_hardness_mg_per_L_as_CaCO3" and e["detail"]["direction"] == "below"
     assert e["detail"]["best_value"] > 5.0
     assert err("soften", {"scenario": sc, "softening_pH": 10, "lime_mg_per_L": 50})["field"] == "lime_mg_per_L"
-    assert err("soften", {"scenario": {"ions": [{"id": "sodium", "total": 1, "unit": MM}],
-                                       "systems": [{"id": "carbonate", "total": 1, "unit": MM}]}})["field"] == "scenario"
+    no_hardness = {"ions": [{"id": "sodium", "total": 1, "unit": MM}],
+                   "systems": [{"id": "carbonate", "total": 1, "unit": MM}]}
+    assert err("soften", {"scenario": no_hardness})["field"] == "scenario"
 
 
 # --------------------------------------------------------------------------------------

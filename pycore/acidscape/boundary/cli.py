@@ -135,7 +135,8 @@ def _add_commands(sub) -> None:
                        help="first recarbonation stage pH, calcite settled (default 10.3 with --remove-magnesium)")
     first.add_argument("--no-first-stage", action="store_true", help="no first recarbonation stage")
     rc = sf.add_mutually_exclusive_group()
-    rc.add_argument("--recarbonate-LSI", type=float, default=None, metavar="X", help="recarbonate to this LSI (default 0)")
+    rc.add_argument("--recarbonate-LSI", type=float, default=None, metavar="X",
+                    help="recarbonate to this LSI (default 0)")
     rc.add_argument("--recarbonate-CCPP", type=float, default=None, metavar="X",
                     help="recarbonate to this CCPP [mg/L as CaCO3]")
     rc.add_argument("--recarbonate-pH", type=float, default=None, metavar="X", help="recarbonate to this pH")

@@ -209,7 +209,7 @@ def blend(closed_waters: list, fractions, *, precipitate=None, flow=None, flow_u
 
     Parameters
     ----------
-    closed_waters : list of acidscape.operations.closure.Closed
+    closed_waters : list of acidscape.operations.closure.Closed or treatment.Water
         The waters (the boundary reads and closes each scenario)
     fractions : list of float
         Each water's share of the flow, in [0, 1], summing to 1 within 1e-6 [-]
@@ -235,11 +235,8 @@ def blend(closed_waters: list, fractions, *, precipitate=None, flow=None, flow_u
     --------
     A water blended with itself is the same water:
 
-    >>> from acidscape.boundary.scenario import read_scenario
-    >>> from acidscape.operations.closure import close_scenario
-    >>> sc = {"systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
-    ...       "ions": [{"id": "calcium", "total": 1, "unit": "mmol/L"}]}
-    >>> w = close_scenario(sc, read_scenario(sc))
+    >>> from acidscape.operations.treatment import make_water
+    >>> w = make_water({"carbonate": 2e-3}, {"calcium": 1e-3})
     >>> out = blend([w, w], [0.5, 0.5])
     >>> round(out["blend"]["pH"] - out["waters"][0]["pH"], 12)
     0.0

@@ -97,9 +97,9 @@ from ..constants import ATOMIC_WEIGHT, M_CaCO3
 from ..data import library
 from ..errors import InputError
 from .dosing import get_chemical
-from .treatment import (DEFAULT_SOLIDS, MAX_DOSE_M, TOLERANCE, TargetUnreachableError, Water, _best, _dissolved,
-                        _Dosed, _flow, _flow_json, _Point, _run_step, _search, add_chemical, cautions_for, make_step,
-                        summarize, water_from_closed, water_scenario)
+from .treatment import (DEFAULT_SOLIDS, MAX_DOSE_M, TOLERANCE, TargetUnreachableError, _dissolved, _Dosed, _flow,
+                        _flow_json, _Point, _run_step, _search, add_chemical, cautions_for, make_step, summarize,
+                        water_from_closed, water_scenario)
 
 #: Softening pH without and with magnesium removal (common practice: calcite precipitates well
 #: about pH 10.3, brucite about pH 11 and above; from memory).
@@ -273,7 +273,7 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
 
     Parameters
     ----------
-    closed : acidscape.operations.closure.Closed
+    closed : acidscape.operations.closure.Closed or treatment.Water
         The raw water, closed (the boundary reads and closes the scenario)
     softening_pH : float, optional
         pH the lime brings the water to [-] (default 10.3, or 11.0 with ``remove_magnesium``)
@@ -313,11 +313,8 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     --------
     Calcium-only softening of a calcium bicarbonate water (mass balances are checked in the tests):
 
-    >>> from acidscape.boundary.scenario import read_scenario
-    >>> from acidscape.operations.closure import close_scenario
-    >>> sc = {"systems": [{"id": "carbonate", "total": 5, "unit": "mmol/L"}],
-    ...       "ions": [{"id": "calcium", "total": 2.5, "unit": "mmol/L"}]}
-    >>> out = soften(close_scenario(sc, read_scenario(sc)))
+    >>> from acidscape.operations.treatment import make_water
+    >>> out = soften(make_water({"carbonate": 5e-3}, {"calcium": 2.5e-3}))
     >>> round(out["softened"]["pH"], 6), out["sludge"]["solids"][0]["id"]
     (10.3, 'calcite')
     """
@@ -340,7 +337,8 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
         if not isinstance(recarbonation, dict):
             raise InputError("recarbonation must be an object such as {\"target_LSI\": 0}, or false",
                              field="recarbonation")
-        fields = [k for k in ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L") if recarbonation.get(k) is not None]
+        fields = [k for k in ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L")
+                  if recarbonation.get(k) is not None]
         if len(fields) != 1:
             raise InputError("recarbonation: give one of target_LSI, target_CCPP, target_pH, dose_mg_per_L",
                              field="recarbonation")

@@ -112,6 +112,7 @@ An unreachable target becomes, at the boundary, ``{"type": "UnreachableError", "
 Functions and classes
 ---------------------
 Water, water_from_closed(closed)        a closed water by its dissolved totals
+make_water(systems, ions, ...)          a water from library ids and totals (examples, scripts)
 water_scenario(water) -> dict           the same as an ordinary scenario
 summarize(water) -> dict                the water summary above
 read_steps(raw, path) -> list[Step]     checked steps of a sequence; make_step(...) one step
@@ -142,7 +143,7 @@ from ..constants import ATOMIC_WEIGHT, M_CaCO3, T0
 from ..data import library
 from ..errors import AcidscapeError, ConvergenceError, InputError, UnknownIdError, UnreachableError
 from ..science import purewater, temperature
-from ..science.tableau import IonInput, WaterModel
+from ..science.tableau import IonInput, SystemInput, WaterModel
 from .dosing import CAUTIONS as GENERAL_CAUTIONS
 from .dosing import L_PER_US_GALLON, flow_L_per_d, get_chemical
 from .indices import calcium_carbonate
@@ -336,8 +337,10 @@ def water_from_closed(closed) -> Water:
     """The dissolved water of a closed water (:class:`acidscape.operations.closure.Closed`).
 
     Solids present in the water as described (its scenario's ``precipitate``) are left
-    behind (settled); a note says so.
+    behind (settled); a note says so. A :class:`Water` is returned as a copy.
     """
+    if isinstance(closed, Water):
+        return dataclasses.replace(closed, totals=dict(closed.totals))
     wm, sol = closed.wm, closed.sol
     dis = _dissolved(wm, sol)
     totals = {c: max(dis[j], 0.0) for j, c in enumerate(wm.tab.components) if j}
@@ -350,6 +353,44 @@ def water_from_closed(closed) -> Water:
     w = Water(systems, tuple(wm.ions), totals, wm.T, wm.pKw, wm.model, wm.complexes, wm.I_fixed, tuple(notes))
     w.guess = _named_state(wm, sol)
     return w
+
+
+def make_water(systems: dict, ions: dict, *, temperature_C: float = 25.0, model: str = "davies",
+               complexes: bool = True) -> Water:
+    """A water from library ids and totals, for examples and scripts.
+
+    Parameters
+    ----------
+    systems : dict
+        Acid-base system id -> total [mol/L] (``{"carbonate": 4e-3}``)
+    ions : dict
+        Ion id -> total [mol/L] (``{"calcium": 2e-3}``)
+    temperature_C : float
+        Temperature [°C]; the pKa are taken there
+    model : str
+        Activity model [-]
+    complexes : bool
+        Ion pairs and complexes of the database on or off [-]
+
+    Examples
+    --------
+    >>> w = make_water({"carbonate": 4e-3}, {"calcium": 2e-3})
+    >>> round(summarize(w)["pH"], 2)
+    8.05
+    """
+    T = temperature_C + T0
+    sys_in, ion_in, totals = [], [], {}
+    for key, t in systems.items():
+        s = library.get_system(key)
+        sys_in.append(SystemInput(s.id, s.name, tuple(sp.formula for sp in s.species),
+                                  tuple(sp.charge for sp in s.species), tuple(temperature.pKa_at(s, T)), 0.0,
+                                  tuple(sp.ion_size_A for sp in s.species)))
+        totals[s.id] = t
+    for key, t in ions.items():
+        ion = library.get_ion(key)
+        ion_in.append(IonInput(ion.id, ion.formula, ion.charge, 0.0, ion.ion_size_A))
+        totals[ion.id] = t
+    return Water(tuple(sys_in), tuple(ion_in), totals, T, purewater.pKw(T), model, complexes)
 
 
 def water_scenario(water: Water) -> dict:
@@ -479,7 +520,7 @@ def summarize(water: Water) -> dict:
 
 def _summary_of_closed(closed, water: Water) -> dict:
     """The summary of a closed water, from its own solution when it holds no solid."""
-    if not closed.sol.solids and not closed.wm.fixed_species:
+    if not isinstance(closed, Water) and not closed.sol.solids and not closed.wm.fixed_species:
         return _summary(closed.wm, closed.sol)
     return summarize(water)
 
@@ -1179,7 +1220,7 @@ def dose_to_target(closed, chemical: str, field: str, value, *, strength_pct=Non
 
     Parameters
     ----------
-    closed : acidscape.operations.closure.Closed
+    closed : acidscape.operations.closure.Closed or Water
         The closed water (the boundary reads and closes the scenario)
     chemical : str
         Chemical id (:func:`acidscape.operations.dosing.get_chemical`) [-]
@@ -1213,11 +1254,8 @@ def dose_to_target(closed, chemical: str, field: str, value, *, strength_pct=Non
     Caustic soda to LSI +0.2 (a 15 °C water; the dosed water's LSI is checked in the tests
     against an independent solver):
 
-    >>> from acidscape.boundary.scenario import read_scenario
-    >>> from acidscape.operations.closure import close_scenario
-    >>> sc = {"temperature_C": 15, "systems": [{"id": "carbonate", "total": 2.0, "unit": "mmol/L"}],
-    ...       "ions": [{"id": "calcium", "total": 1.0, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}]}
-    >>> out = dose_to_target(close_scenario(sc, read_scenario(sc)), "NaOH", "target_LSI", 0.2)
+    >>> w = make_water({"carbonate": 2e-3}, {"calcium": 1e-3, "chloride": 0.2e-3}, temperature_C=15)
+    >>> out = dose_to_target(w, "NaOH", "target_LSI", 0.2)
     >>> out["status"], round(out["reached"]["LSI"], 4)
     ('dosed', 0.2)
     """
@@ -1245,7 +1283,7 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
 
     Parameters
     ----------
-    closed : acidscape.operations.closure.Closed
+    closed : acidscape.operations.closure.Closed or Water
         The raw water, closed
     steps : list of dict or Step
         ``{chemical, target_pH | target_LSI | target_CCPP | dose_mg_per_L, strength_pct?,
@@ -1262,14 +1300,10 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
 
     Examples
     --------
-    Lime to pH 10.3 with calcite forming, then CO2 back to LSI 0 (an invented hard water):
+    Lime to pH 10.3 with calcite forming, then CO2 to LSI -0.1 (a calcium bicarbonate water):
 
-    >>> from acidscape.boundary.scenario import read_scenario
-    >>> from acidscape.operations.closure import close_scenario
-    >>> sc = {"systems": [{"id": "carbonate", "total": 4, "unit": "mmol/L"}],
-    ...       "ions": [{"id": "calcium", "total": 2, "unit": "mmol/L"}]}
-    >>> out = treat(close_scenario(sc, read_scenario(sc)),
-    ...             [{"chemical": "Ca(OH)2", "target_pH": 10.3}, {"chemical": "CO2", "target_LSI": -0.1}])
+    >>> w = make_water({"carbonate": 4e-3}, {"calcium": 2e-3})
+    >>> out = treat(w, [{"chemical": "Ca(OH)2", "target_pH": 10.3}, {"chemical": "CO2", "target_LSI": -0.1}])
     >>> [s["status"] for s in out["steps"]], out["steps"][0]["precipitation"]["formed"][0]["id"]
     (['dosed', 'dosed'], 'calcite')
     >>> round(out["water_after"]["LSI"], 4)
@@ -1279,7 +1313,7 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
     if parsed is None or any(s is None for s in parsed):
         parsed = read_steps(steps)
     flow_Ld = _flow(flow, flow_unit)
-    water = water_from_closed(closed)
+    water = start = water_from_closed(closed)
     scenario_solids = tuple(getattr(closed, "precipitate", ()) or ())
     before = _summary_of_closed(closed, water)
     records = []
@@ -1298,8 +1332,7 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
         if flow_Ld is not None:
             e["pure_chemical_kg_per_d"] += rec["pure_chemical_kg_per_d"]
     solids_mg = sum(r["precipitation"]["total_mg_per_L"] for r in records)
-    warnings = list(closed.notes) if getattr(closed, "notes", None) else []
-    warnings += [n for n in water_from_closed(closed).notes if n not in warnings]
+    warnings = list(start.notes)
     return {
         "water_before": before,
         "steps": records,
