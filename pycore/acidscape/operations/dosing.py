@@ -365,18 +365,26 @@ def _scan(mix: Mixture, pH: float, I0: float, guess):
     """Smallest dose in (0, 5 mol/L] at which the charge at ``pH`` changes sign, refined; or not found.
 
     The charge is evaluated on a logarithmic grid (8 per decade from 1e-10 mol/L); the first
-    change of sign brackets the root.
+    change of sign brackets the root. Where the charge comes close to zero and turns back
+    between grid points (a double root of a pH that passes through an extreme), the extreme is
+    located by golden-section search and checked.
     """
     R0, _, sol = mix.charge_at(pH, 0.0, guess)
-    prev = (0.0, R0)
+    s = 1.0 if R0 < 0.0 else -1.0           # orient so that the charge must rise to zero
+    pts = [(0.0, s * R0)]
     for k in range(1, 81):
         d = MAX_AMOUNT_M * 10.0 ** ((k - 80) / 8.0)   # 1e-10 .. 5 mol/L
         R, _, sol = mix.charge_at(pH, d, sol.state)
-        if (R > 0.0) != (prev[1] > 0.0):
-            sign = 1.0 if prev[1] < 0.0 else -1.0
-            dd, sol, ok = mix.root_between(pH, prev[0], sign * prev[1], d, sign * R, sign, sol.state)
+        g = s * R
+        if g > 0.0:
+            dd, sol, ok = mix.root_between(pH, pts[-1][0], pts[-1][1], d, g, s, sol.state)
             return dd, sol, ok, sol.I
-        prev = (d, R)
+        if len(pts) >= 2 and pts[-1][1] > pts[-2][1] and pts[-1][1] > g:
+            peak, gp, sol_p = mix._peak(pH, pts[-2][0], d, s, sol.state)
+            if gp >= 0.0:
+                dd, sol, ok = mix.root_between(pH, pts[-2][0], pts[-2][1], peak, gp, s, sol_p.state)
+                return dd, sol, ok, sol.I
+        pts.append((d, g))
     return 0.0, sol, False, I0
 
 

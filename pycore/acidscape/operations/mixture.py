@@ -53,6 +53,7 @@ import math
 
 from ..constants import LN10
 from ..data import library
+from ..science.activity import VALIDITY_I_M
 from ..science.tableau import IonInput, WaterModel
 from .probe import Linearization, aqueous_totals, ionic_strength, resolve
 
@@ -343,9 +344,10 @@ class Mixture:
 
         The bracket is sought upward from ``d0`` by secant steps (the first from the slope
         without solids; later ones at most fourfold). With ``first_branch``, a drop of R before
-        it reaches zero means the pH passed its extreme: a golden-section search finds that
-        extreme, and the first root lies before it if R there is past zero; otherwise there is
-        none (:attr:`stopped` = "turn").
+        it reaches zero means the pH passed an extreme: a golden-section search finds that
+        extreme, and the first root lies before it if R there is past zero; otherwise the
+        search goes on (the pH may turn again) until the mixture leaves the Davies equation's
+        range of ionic strength (:attr:`stopped` = "turn").
         """
         d = max(d0, 0.0)
         R, scale, sol = self.charge_at(pH, d, guess)
@@ -366,6 +368,8 @@ class Mixture:
             d, sol, ok = self.root_between(pH, 0.0, sign * Ra, a, ga, sign, state)
             return d, sol, ok, sol.I
         pts = [(a, ga)]
+        rising = True
+        limit_I = VALIDITY_I_M.get(self.wm.model, math.inf) if self.wm.model == "davies" else math.inf
         for _ in range(200):
             if len(pts) >= 2 and pts[-1][1] != pts[-2][1]:
                 slope = (pts[-1][1] - pts[-2][1]) / (pts[-1][0] - pts[-2][0])
@@ -383,16 +387,22 @@ class Mixture:
                 return nxt, sol, True, sol.I
             if gn > 0.0:
                 d, sol, ok = self.root_between(pH, a, ga, nxt, gn, sign, state)
-                return d, sol, ok, sol.I
-            if first_branch and gn < ga:
+                return self._within(d, sol, ok, first_branch, limit_I)
+            if first_branch and gn < ga and rising:
+                # the charge turned back before reaching zero: the largest value lies between the
+                # point before a and nxt; if it passes zero the first root lies before it
                 left = pts[-2][0] if len(pts) >= 2 else pts[-1][0]
                 peak, gp, sol_p = self._peak(pH, left, nxt, sign, state)
-                if gp < 0.0:
-                    self.stopped = "turn"
-                    return peak, sol_p, False, sol_p.I
-                lo_pt = max((p for p in pts if p[0] < peak), default=(left, ga))
-                d, sol, ok = self.root_between(pH, lo_pt[0], lo_pt[1], peak, gp, sign, sol_p.state)
-                return d, sol, ok, sol.I
+                if gp >= 0.0:
+                    lo_pt = max((p for p in pts if p[0] < peak), default=(left, ga))
+                    d, sol, ok = self.root_between(pH, lo_pt[0], lo_pt[1], peak, gp, sign, sol_p.state)
+                    return self._within(d, sol, ok, first_branch, limit_I)
+            if first_branch and sol.I > limit_I:
+                # beyond the activity model's range (where the Davies equation turns upward and
+                # would invent a crossing) the search stops: the target is not reached before
+                self.stopped = "turn"
+                return nxt, sol, False, sol.I
+            rising = gn >= ga
             pts.append((nxt, gn))
             a, ga = nxt, gn
             if a >= d_max:
@@ -400,6 +410,13 @@ class Mixture:
                 return a, sol, False, sol.I
         self.stopped = "iterations"
         return a, sol, False, sol.I
+
+    def _within(self, d, sol, ok, first_branch, limit_I):
+        """A root found beyond the activity model's range is not trusted (see above)."""
+        if ok and first_branch and sol.I > limit_I:
+            self.stopped = "turn"
+            return d, sol, False, sol.I
+        return d, sol, ok, sol.I
 
     def _peak(self, pH, a, b, sign, state):
         """Golden-section search for the largest sign*R on [a, b] (to 1e-9 relative)."""
