@@ -259,6 +259,23 @@ def test_caustic_and_orthophosphate_stoichiometry():
     assert any("nutrient" in c for c in out["cautions"])
 
 
+def test_a_water_entering_oversaturated_is_metastable_unless_calcite_is_named():
+    # caustic to CCPP +3, then orthophosphate: by default the phosphate step keeps the oversaturation
+    steps = [{"chemical": "NaOH", "target_CCPP": 3.0}, {"chemical": "Na2HPO4", "dose_mg_per_L": 2.0}]
+    kept = ok("treat", {"scenario": WATER, "steps": steps})
+    assert kept["steps"][1]["precipitation"]["formed"] == []
+    assert "calcite" not in kept["steps"][1]["precipitation"]["allowed"]
+    assert any("metastable" in w for w in kept["steps"][1]["warnings"])
+    assert kept["water_after"]["CCPP_mg_per_L_as_CaCO3"] > 2.5
+    # named, calcite forms: as much as the reference solver precipitates from the same water
+    steps[1]["precipitate"] = ["calcite"]
+    named = ok("treat", {"scenario": WATER, "steps": steps})
+    n = named["steps"][1]["precipitation"]["formed"][0]["mol_per_L"]
+    ref = ref_solve(kept["scenario_after"], precipitate=["calcite"])
+    assert n == pytest.approx(ref["precipitated"]["calcite"], rel=1e-6)
+    assert named["water_after"]["LSI"] == pytest.approx(0.0, abs=1e-9)
+
+
 def test_sequence_step_errors_name_the_step():
     assert err("treat", {"scenario": WATER, "steps": [{"chemical": "NaOH"}]})["field"] == "steps[0].target_pH"
     assert err("treat", {"scenario": WATER, "steps": [{"chemical": "NaOH", "target_pH": 8, "target_LSI": 0}]})[

@@ -360,9 +360,10 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     before = summarize(w0)
     warnings: list[str] = list(w0.notes)
 
-    # calcite and brucite: the default solids of a pH or fixed-dose step (DEFAULT_SOLIDS)
+    # calcite and brucite precipitate in the softening basin (whatever the raw water's saturation)
     step = (make_step("Ca(OH)2", "dose_mg_per_L", lime_mg) if lime_mg is not None
             else make_step("Ca(OH)2", "target_pH", pH_s))
+    step.precipitate, step.basis = DEFAULT_SOLIDS, "softening"
     field_pH = "softening_pH"
 
     def softened_hardness(S: float) -> _Point:
@@ -426,13 +427,15 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     if first_pH is not None:
         st1 = make_step("CO2", "target_pH", first_pH, precipitate=["calcite"], path="first_stage")
         try:
-            rc1, final, formed_rc1 = _run_step(final, st1, flow_Ld=flow_Ld, scenario_solids=(), number_=2)
+            rc1, final, formed_rc1 = _run_step(final, st1, flow_Ld=flow_Ld, scenario_solids=(), number_=2,
+                                           entering_SI=rec["water_after"]["SI"])
         except TargetUnreachableError as exc:
             exc.field = "first_stage_pH"
             raise
     if rc_step is not None:
         rc, final, formed_rc = _run_step(final, rc_step, flow_Ld=flow_Ld, scenario_solids=(),
-                                         number_=3 if rc1 is not None else 2)
+                                         number_=3 if rc1 is not None else 2,
+                                         entering_SI=(rc1 or rec)["water_after"]["SI"])
         if rc["status"] == "no dose needed" and rc_step.field == "target_LSI":
             rc["warnings"].append("the settled water is saturated with calcite (LSI 0 at equilibrium), and CO2 only "
                                   "lowers its LSI: give recarbonation a target_pH (or a negative target_LSI) to lower "

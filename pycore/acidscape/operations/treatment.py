@@ -58,9 +58,15 @@ step's ``precipitate``; the scenario's ``precipitate``; by default calcite and b
 only at the high pH of softening). For LSI and CCPP targets the default is brucite only
 (:data:`DEFAULT_SOLIDS_INDEX`): those targets are the calcium carbonate driving force of the
 water leaving the step, which calcite forming in it would cancel (an LSI above 0 cannot be
-reached with calcite at equilibrium; the error says so). Give ``"precipitate": []`` to let
-nothing form. Solids formed in a step are taken to be settled or filtered off before the
-next step: the next step starts from the dissolved water.
+reached with calcite at equilibrium; the error says so). A default solid is left out where
+the water *enters* the step already oversaturated with it: such a water is taken as
+metastable, as it was described or as an LSI or CCPP target before left it (calcite
+precipitates from solution only with enough supersaturation and seed; a stabilised water
+keeps its small oversaturation for days, common practice), so that orthophosphate dosed
+after caustic to a CCPP target does not undo the target; a warning says so, and naming
+the solid lets it form. Give ``"precipitate": []`` to let nothing form. Solids formed in a
+step are taken to be settled or filtered off before the next step: the next step starts
+from the dissolved water.
 
 JSON shapes
 -----------
@@ -169,6 +175,10 @@ FIELDS = ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L")
 DEFAULT_SOLIDS = ("calcite", "brucite")
 #: The default for LSI and CCPP targets: calcite forming would cancel the target itself.
 DEFAULT_SOLIDS_INDEX = ("brucite",)
+#: A default solid is left out of a step whose water enters with a saturation index above this.
+METASTABLE_SI = 1e-6
+#: The calcium carbonate targets.
+INDEX_FIELDS = ("target_LSI", "target_CCPP")
 #: Solids whose saturation index a water summary reports (when their components are present).
 SUMMARY_SOLIDS = ("calcite", "aragonite", "brucite", "portlandite", "gypsum", "brushite")
 #: Component ids.
@@ -848,6 +858,7 @@ class Step:
     density_kg_per_L: float | None = None
     precipitate: tuple | None = None   # None: the default
     path: str = ""               # "steps[0]" in a sequence; "" for a single dose
+    basis: str | None = None     # where ``precipitate`` came from, when not from the user ("softening")
 
     def where(self, key: str) -> str:
         return f"{self.path}.{key}" if self.path else key
@@ -966,19 +977,17 @@ def _fmt(field: str, v: float) -> str:
     return f"{v:.3f}"
 
 
-def _allowed_solids(step: Step, default_scenario: tuple) -> tuple[tuple, str]:
+def _allowed_solids(step: Step, default_scenario: tuple, entering_SI: dict | None) -> tuple[tuple, str, list]:
+    """(solids allowed, basis, default solids left out because the water entered oversaturated)."""
     if step.precipitate is not None:
-        return step.precipitate, "step"
+        return step.precipitate, step.basis or "step", []
     if default_scenario:
-        return tuple(default_scenario), "scenario"
-    if step.field in ("target_LSI", "target_CCPP"):
-        return DEFAULT_SOLIDS_INDEX, "default"
-    return DEFAULT_SOLIDS, "default"
-
-
-def _mg_of_solid(sid: str) -> tuple[object, float]:
-    s = library.get_solid(sid)
-    return s, s.molar_mass_g_per_mol
+        return tuple(default_scenario), "scenario", []
+    default = DEFAULT_SOLIDS_INDEX if step.field in ("target_LSI", "target_CCPP") else DEFAULT_SOLIDS
+    # a water that enters the step already oversaturated is metastable as described (or as an
+    # LSI or CCPP target before left it): its solid forms only if named
+    kept = tuple(sid for sid in default if (entering_SI or {}).get(sid, -1.0) <= METASTABLE_SI)
+    return kept, "default", [sid for sid in default if sid not in kept]
 
 
 def _formed(dosed: _Dosed, sol, flow_Ld: float | None) -> list[dict]:
@@ -1039,18 +1048,23 @@ def _unreachable(step: Step, found: _Found, allowed: tuple) -> TargetUnreachable
 
 
 def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solids: tuple = (),
-              number_: int = 1, compare: bool = False) -> tuple[dict, Water, list[dict]]:
+              number_: int = 1, compare: bool = False, entering_SI: dict | None = None
+              ) -> tuple[dict, Water, list[dict]]:
     """One dose on a water: (step record, the dissolved water after, solids formed).
 
     ``compare``: when solids formed, also find the dose that would reach the target if none formed.
+    ``entering_SI``: saturation indices of the water as it enters (its summary's ``SI``).
     """
     chem = step.chemical
-    allow, basis = _allowed_solids(step, scenario_solids)
+    allow, basis, metastable = _allowed_solids(step, scenario_solids, entering_SI)
     dosed = _Dosed(water, chem, allow)
     requested = [sid for sid in allow if sid not in dosed._stoich]
     warnings: list[str] = []
-    if requested and basis != "default":
+    if requested and basis in ("step", "scenario"):
         warnings.append("cannot form in this water (a component is missing): " + ", ".join(requested))
+    if metastable:
+        warnings.append("the water enters this step oversaturated with " + ", ".join(metastable)
+                        + " and is taken as metastable: name it in precipitate to let it form")
     kind = step.field
     found = None
     if kind == "dose_mg_per_L":
@@ -1193,7 +1207,7 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
         record["warnings"].append("the dose includes what the solids formed take up: "
                                   + ", ".join(f"{f['name']} {f['mg_per_L']:.4g} mg/L" for f in formed))
     over = [(si, sid) for sid, si in summary_after["SI"].items() if si > 0.3 and sid in ("calcite", "brucite")
-            and sid not in allow]
+            and sid not in allow and sid not in metastable and not (sid == "calcite" and kind in INDEX_FIELDS)]
     for si, sid in over:
         record["warnings"].append(f"the water after this step is oversaturated with {sid} (SI {si:+.2f}); name it in "
                                   "precipitate to let it form")
@@ -1265,7 +1279,8 @@ def dose_to_target(closed, chemical: str, field: str, value, *, strength_pct=Non
     water = water_from_closed(closed)
     before = _summary_of_closed(closed, water)
     record, after, formed = _run_step(water, step, flow_Ld=flow_Ld,
-                                      scenario_solids=tuple(getattr(closed, "precipitate", ()) or ()), compare=True)
+                                      scenario_solids=tuple(getattr(closed, "precipitate", ()) or ()), compare=True,
+                                      entering_SI=before["SI"])
     record["water_before"] = before
     record["initial_pH"] = before["pH"]
     record["scenario_after"] = water_scenario(after)
@@ -1300,9 +1315,10 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
 
     Examples
     --------
-    Lime to pH 10.3 with calcite forming, then CO2 to LSI -0.1 (a calcium bicarbonate water):
+    Lime to pH 10.3 with calcite forming, then CO2 to LSI -0.1 (a calcium bicarbonate water
+    with some free CO2, undersaturated with calcite):
 
-    >>> w = make_water({"carbonate": 4e-3}, {"calcium": 2e-3})
+    >>> w = make_water({"carbonate": 5e-3}, {"calcium": 2e-3})
     >>> out = treat(w, [{"chemical": "Ca(OH)2", "target_pH": 10.3}, {"chemical": "CO2", "target_LSI": -0.1}])
     >>> [s["status"] for s in out["steps"]], out["steps"][0]["precipitation"]["formed"][0]["id"]
     (['dosed', 'dosed'], 'calcite')
@@ -1318,7 +1334,9 @@ def treat(closed, steps, *, flow=None, flow_unit=None) -> dict:
     before = _summary_of_closed(closed, water)
     records = []
     for k, step in enumerate(parsed):
-        rec, water, _ = _run_step(water, step, flow_Ld=flow_Ld, scenario_solids=scenario_solids, number_=k + 1)
+        entering = before if k == 0 else records[-1]["water_after"]
+        rec, water, _ = _run_step(water, step, flow_Ld=flow_Ld, scenario_solids=scenario_solids, number_=k + 1,
+                                  entering_SI=entering["SI"])
         rec["water_before"] = before if k == 0 else records[-1]["water_after"]
         records.append(rec)
     for rec in records[1:]:
