@@ -72,7 +72,10 @@ Result JSON::
      "stoichiometric": <stoichiometric_softening(...)>,
      "comparison": {"lime_mg_per_L_as_CaO": {"equilibrium", "stoichiometric", "difference"},
                     "soda_ash_mg_per_L": {...}, "residual_hardness_mg_per_L_as_CaCO3": {...},
-                    "sludge_mg_per_L": {...}, "why": [str]},
+                    "sludge_mg_per_L": {...}, "why": [str],
+                    "evidence": {"temperature_C", "ionic_strength_M", "calcium_free_fraction",
+                                 "calcium_activity_coefficient", "magnesium_free_fraction",
+                                 "magnesium_activity_coefficient"} (of the softened water), "note"},
      "flow", "cautions", "warnings", "method"}
 
 Functions
@@ -98,8 +101,8 @@ from ..data import library
 from ..errors import InputError
 from .dosing import get_chemical
 from .treatment import (DEFAULT_SOLIDS, MAX_DOSE_M, TOLERANCE, TargetUnreachableError, _dissolved, _Dosed, _flow,
-                        _flow_json, _Point, _run_step, _search, add_chemical, cautions_for, make_step, summarize,
-                        water_from_closed, water_scenario)
+                        _flow_json, _indexed_state, _Point, _run_step, _search, add_chemical, cautions_for, make_step,
+                        summarize, water_from_closed, water_scenario)
 
 #: Softening pH without and with magnesium removal (common practice: calcite precipitates well
 #: about pH 10.3, brucite about pH 11 and above; from memory).
@@ -469,12 +472,23 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     def cmp(eq, st):
         return {"equilibrium": eq, "stoichiometric": st, "difference": eq - st}
 
+    # the numbers behind the reasons, in the softened water
+    wm_s = softened.build()
+    sol_s = wm_s.solve(guess=_indexed_state(wm_s, softened.guess))
+    evidence = {"temperature_C": sm["temperature_C"], "ionic_strength_M": sol_s.I}
+    for comp in ("calcium", "magnesium"):
+        i = wm_s.ion_species.get(comp)
+        tot = softened.totals.get(comp, 0.0)
+        if i is not None and tot > 0:
+            evidence[f"{comp}_free_fraction"] = sol_s.conc[i] / tot
+            evidence[f"{comp}_activity_coefficient"] = 10.0 ** sol_s.log10_gamma[i]
     comparison = {
         "lime_mg_per_L_as_CaO": cmp(eq_lime_CaO, stoich["lime_mg_per_L_as_CaO"]),
         "soda_ash_mg_per_L": cmp(soda_mg_eq, stoich["soda_ash_mg_per_L"]),
         "residual_hardness_mg_per_L_as_CaCO3": cmp(H_eq, stoich["residual_hardness_mg_per_L_as_CaCO3"]["total"]),
         "sludge_mg_per_L": cmp(dry, stoich["sludge_mg_per_L"]["total"]),
         "why": list(WHY),
+        "evidence": evidence,
         "note": ("equilibrium residual hardness is that of the water after recarbonation (solids formed in "
                  "recarbonation settled)" if rc or rc1 else "equilibrium residual hardness of the softened water"),
     }

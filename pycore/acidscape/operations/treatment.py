@@ -1204,7 +1204,8 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
         "warnings": warnings + [w for w in p.sol.warnings if w not in warnings],
     }
     if formed:
-        record["warnings"].append("the dose includes what the solids formed take up: "
+        record["warnings"].append(("solids formed in the dosed water: " if kind == "dose_mg_per_L" else
+                                   "the dose includes what the solids formed take up: ")
                                   + ", ".join(f"{f['name']} {f['mg_per_L']:.4g} mg/L" for f in formed))
     over = [(si, sid) for sid, si in summary_after["SI"].items() if si > 0.3 and sid in ("calcite", "brucite")
             and sid not in allow and sid not in metastable and not (sid == "calcite" and kind in INDEX_FIELDS)]
