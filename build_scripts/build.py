@@ -11,7 +11,8 @@ Steps, in order:
     ``npm ci --prefix build_scripts``) into vendor/pyodide/ and BokehJS from the
     installed Python bokeh into vendor/bokeh/, so the two Bokeh halves match;
  4b. make the Pyodide memory snapshot (build_scripts/snapshot.mjs, in Node) after the whole
-    core is imported and its data loaded, into snapshots/ (gzip level 1 by default);
+    core is imported and its data loaded, into snapshots/ (without its zero pages, gzip level 1
+    by default);
  5. write plots.json (Bokeh templates from build_scripts/plots.py);
  6. write the third-party licence notices into licenses/;
  7. write manifest.json (versions, wheel path, snapshot and its key, sha256 of every file);
@@ -34,6 +35,7 @@ import hashlib
 import json
 import os
 import shutil
+import struct
 import subprocess
 import sys
 import tempfile
@@ -105,8 +107,10 @@ def normalise_wheel(source: Path, target: Path, epoch: int) -> None:
     """Rewrite a wheel so its bytes depend on the file contents only.
 
     Entries in sorted order (the .dist-info folder last, RECORD as the very last entry, as the
-    wheel format recommends), every time stamp set to ``epoch``, every file mode 0644, one
-    compression level. The contents (and so RECORD's hashes) are not touched.
+    wheel format recommends), every time stamp set to ``epoch``, every file mode 0644, stored
+    without compression: the worker copies the files out of it while Pyodide loads (about
+    0.4 MB; inflating some forty entries there competed with the runtime for the worker's
+    thread). The contents (and so RECORD's hashes) are not touched.
     """
     stamp = time.gmtime(epoch)[:6]
     with zipfile.ZipFile(source) as zin:
@@ -122,8 +126,8 @@ def normalise_wheel(source: Path, target: Path, epoch: int) -> None:
             info = zipfile.ZipInfo(name, date_time=stamp)
             info.external_attr = 0o100644 << 16
             info.create_system = 3  # Unix, so the mode above is read back the same everywhere
-            info.compress_type = zipfile.ZIP_DEFLATED
-            zout.writestr(info, contents[name], compresslevel=9)
+            info.compress_type = zipfile.ZIP_STORED
+            zout.writestr(info, contents[name])
 
 
 def build_wheel(out: Path) -> Path:
@@ -192,12 +196,64 @@ def snapshot_key(pyodide_version: str, wheel: Path) -> str:
     return json.dumps({"pyodide": pyodide_version, "wheel_sha256": sha256_of(wheel)}, sort_keys=True)
 
 
+# The heap is stored without its all-zero pages (about half of them): half the bytes to
+# download and to inflate. Layout (little-endian u32): "ASNP", version 1, page size, heap size,
+# number of runs, then per run (first page, page count), then the pages of every run in order.
+# site/snapshot-image.js expands it in the worker.
+IMAGE_MAGIC = b"ASNP"
+IMAGE_PAGE = 4096
+
+
+def pack_image(heap: bytes) -> bytes:
+    """The heap without its all-zero pages (layout above)."""
+    zero = bytes(IMAGE_PAGE)
+    pages = (len(heap) + IMAGE_PAGE - 1) // IMAGE_PAGE
+
+    def empty(i: int) -> bool:
+        chunk = heap[i * IMAGE_PAGE:(i + 1) * IMAGE_PAGE]
+        return chunk == zero[: len(chunk)]
+
+    runs, i = [], 0
+    while i < pages:
+        if empty(i):
+            i += 1
+            continue
+        first = i
+        while i < pages and not empty(i):
+            i += 1
+        runs.append((first, i - first))
+    header = IMAGE_MAGIC + struct.pack("<4I", 1, IMAGE_PAGE, len(heap), len(runs))
+    header += b"".join(struct.pack("<2I", first, count) for first, count in runs)
+    body = b"".join(heap[first * IMAGE_PAGE:(first + count) * IMAGE_PAGE] for first, count in runs)
+    return header + body
+
+
+def unpack_image(image: bytes) -> bytes:
+    """The heap back from ``pack_image`` (for checks; the worker does this in JavaScript)."""
+    if image[:4] != IMAGE_MAGIC:
+        raise ValueError("not a packed snapshot image")
+    version, page, size, nruns = struct.unpack_from("<4I", image, 4)
+    if version != 1:
+        raise ValueError(f"packed snapshot image version {version}")
+    heap = bytearray(size)
+    at = 20 + 8 * nruns
+    for r in range(nruns):
+        first, count = struct.unpack_from("<2I", image, 20 + 8 * r)
+        start, end = first * page, min(size, (first + count) * page)
+        heap[start:end] = image[at:at + end - start]
+        at += end - start
+    if at != len(image):
+        raise ValueError("packed snapshot image has trailing bytes")
+    return bytes(heap)
+
+
 def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -> dict:
     """Boot the pinned Pyodide in Node, import the whole core, load its data, save the heap.
 
-    The file is written as snapshots/acidscape-<sha256[:12]>.bin (raw) or .bin.gz (gzip level 1,
-    no name or time in the header, inflated in the worker with DecompressionStream). Returns the
-    manifest's "snapshot" entry; the same ``key`` text is stored inside the snapshot, so the worker
+    The heap is packed without its zero pages (``pack_image``) and written as
+    snapshots/acidscape-<sha256[:12]>.img (identity) or .img.gz (gzip level 1, no name or time
+    in the header, inflated in the worker with DecompressionStream as it arrives). Returns the
+    manifest's "snapshot" entry; the same ``key`` text is stored inside the heap, so the worker
     can tell after booting whether the image belongs to this manifest.
     """
     node = shutil.which("node")
@@ -216,11 +272,12 @@ def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -
             lines = [line for line in (done.stdout + done.stderr).splitlines() if len(line) < 400]
             raise BuildError("making the memory snapshot failed:\n" + "\n".join(lines[-60:]))
         report = json.loads(done.stdout.strip().splitlines()[-1])
-        data = raw.read_bytes()
+        heap = raw.read_bytes()
+    image = pack_image(heap)
     if encoding == "gzip":
-        data_out, suffix = gzip.compress(data, compresslevel=1, mtime=0), ".bin.gz"
+        data_out, suffix = gzip.compress(image, compresslevel=1, mtime=0), ".img.gz"
     else:
-        data_out, suffix = data, ".bin"
+        data_out, suffix = image, ".img"
     folder = out / "snapshots"
     folder.mkdir()
     target = folder / f"acidscape-{hashlib.sha256(data_out).hexdigest()[:12]}{suffix}"
@@ -228,7 +285,8 @@ def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -
     return {
         "file": target.relative_to(out).as_posix(),
         "encoding": encoding,
-        "bytes": len(data),
+        "bytes": len(heap),
+        "image_bytes": len(image),
         "key": key,
         "modules": len(report["modules"]),
         "skipped_modules": report["skipped"],

@@ -15,8 +15,9 @@
 // zero-argument cached loader (functools.cache) of the core is called so the data files sit in
 // memory, and handle("version" | "systems" | "chemicals") is answered once.
 // Files of the Emscripten file system do not survive a snapshot boot (imported modules do), so
-// the worker unpacks the wheel again after booting, for anything imported or read lazily, and
-// then calls __main__._acidscape_after_restore() (defined here, kept in the image).
+// the worker writes the wheel's files into site-packages again before Python starts (fsInit),
+// for anything imported or read lazily, and after the boot calls
+// __main__._acidscape_after_restore() (defined here, kept in the image).
 //
 // Prints one JSON line: {python, modules, skipped, loaders, seconds, bytes}; "skipped" lists core
 // modules that need a package Pyodide lacks (they are not imported, and not part of the page).
@@ -51,19 +52,26 @@ const py = await loadPyodide({
   stdout: () => {},
   stderr: (line) => console.error("[python]", line),
 });
+// Not through fsInit as the worker does: Pyodide then notes the wheel among its loaded packages
+// in a JavaScript object that a snapshot cannot hold.
 const sitePackages = py.runPython("import site; site.getsitepackages()[0]");
 py.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir: sitePackages });
 
 py.globals.set("_snapshot_key_json", keyJson);
 const report = py.runPython(`
 def _after_restore():
-    """Run by the worker once after booting from this snapshot, after unpacking the wheel again.
+    """Run by the worker once after booting from this snapshot.
 
-    The file system is new (directory listings cached in the image are stale), and every
-    browser restores the same random state, so draw a fresh seed if the random module is loaded.
+    The file system is new, so the directory listings cached for folders on it are stale
+    (only these: importlib.invalidate_caches() would also re-read the standard library zip's
+    directory, which takes seconds here); and every browser restores the same random state, so
+    draw a fresh seed if the random module is loaded.
     """
-    import importlib, sys
-    importlib.invalidate_caches()
+    import sys
+    from importlib.machinery import FileFinder
+    for finder in list(sys.path_importer_cache.values()):
+        if isinstance(finder, FileFinder):
+            finder.invalidate_caches()
     if "random" in sys.modules:
         sys.modules["random"].seed()
 

@@ -1,5 +1,6 @@
-// Boot the core under Node.js from a built site's memory snapshot the way site/worker.js does,
-// and report what works before and after the wheel is unpacked again. Prints one JSON object.
+// Boot the core under Node.js from a built site's memory snapshot the way site/worker.js does
+// (with the same decoders, site/snapshot-image.js and site/wheel.js), and report what works
+// without and with the wheel's files. Prints one JSON object.
 //
 //   node build_scripts/snapshot_check.mjs DIST < requests.json
 //
@@ -7,16 +8,20 @@
 // wheel). requests.json: [{"method": "...", "params": {...}}, ...], answered with
 // acidscape.boundary.api.handle after the boot. Reported:
 //   key_matches      the key stored in the image equals the manifest's
-//   before_unpack    {lazy_import, loaders}: an import of a core module that was not imported
-//                    when the snapshot was made (acidscape.__main__), and the manifest's cached
-//                    loaders called again with their caches cleared (they read the CSV files);
-//                    each "ok" or the error's type, before the wheel is unpacked again
-//   after_unpack     the same after unpacking the wheel and _acidscape_after_restore()
-//   answers          the replies to the requests
+//   without_files    {lazy_import, loaders} after a boot from the snapshot alone: an import of a
+//                    core module that was not imported when the snapshot was made
+//                    (acidscape.__main__), and the manifest's cached loaders called again with
+//                    their caches cleared (they read the CSV files); each "ok" or the error type
+//   with_files       the same after a boot that writes the wheel's files into site-packages
+//                    first (Pyodide's fsInit hook) and runs _acidscape_after_restore(), as the
+//                    worker does
+//   answers          the replies to the requests, from the second boot
 import { readFileSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { gunzipSync } from "node:zlib";
+import { expandImage } from "../site/snapshot-image.js";
+import { wheelFiles, writeFiles } from "../site/wheel.js";
 
 const here = dirname(fileURLToPath(import.meta.url));
 const { loadPyodide, version } = await import(join(here, "node_modules", "pyodide", "pyodide.mjs"));
@@ -33,11 +38,12 @@ if (!entry) {
   console.error("snapshot_check.mjs: the manifest names no snapshot");
   process.exit(1);
 }
-let bytes = readFileSync(join(dist, entry.file));
-if (entry.encoding === "gzip") bytes = gunzipSync(bytes);
+let image = readFileSync(join(dist, entry.file));
+if (entry.encoding === "gzip") image = gunzipSync(image);
+const heap = () => expandImage(new Uint8Array(image.buffer, image.byteOffset, image.byteLength));
+const files = await wheelFiles(new Uint8Array(readFileSync(join(dist, manifest.wheel))));
 
-const py = await loadPyodide({ _loadSnapshot: new Uint8Array(bytes), stdout: () => {} });
-const probe = py.runPython(`
+const PROBE = `
 def _probe(loader_names):
     import importlib, json
     out = {}
@@ -59,18 +65,26 @@ def _probe(loader_names):
     out["loaders"] = results
     return json.dumps(out)
 _probe
-`);
-const loaders = py.toPy(entry.loaders);
+`;
+
+async function boot(withFiles) {
+  const py = await loadPyodide({
+    _loadSnapshot: heap(),
+    stdout: () => {},
+    fsInit: withFiles ? async (FS, { sitePackages }) => writeFiles(FS, sitePackages, files) : undefined,
+  });
+  py.globals.get("_acidscape_after_restore")();
+  return py;
+}
+
+const bare = await boot(false);
 const result = {
   pyodide: version,
-  key_matches: py.globals.get("_acidscape_snapshot") === entry.key,
-  before_unpack: JSON.parse(probe(loaders)),
+  key_matches: bare.globals.get("_acidscape_snapshot") === entry.key,
+  without_files: JSON.parse(bare.runPython(PROBE)(bare.toPy(entry.loaders))),
 };
-const sitePackages = py.runPython("import site; site.getsitepackages()[0]");
-py.unpackArchive(new Uint8Array(readFileSync(join(dist, manifest.wheel))), "wheel", { extractDir: sitePackages });
-py.globals.get("_acidscape_after_restore")();
-py.runPython("import sys; sys.modules.pop('acidscape.__main__', None)");
-result.after_unpack = JSON.parse(probe(loaders));
+const py = await boot(true);
+result.with_files = JSON.parse(py.runPython(PROBE)(py.toPy(entry.loaders)));
 const handle = py.pyimport("acidscape.boundary.api").handle;
 result.answers = requests.map((r) => JSON.parse(handle(r.method, JSON.stringify(r.params))));
 process.stdout.write(JSON.stringify(result));

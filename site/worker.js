@@ -8,12 +8,14 @@
 // The snapshot is used only if it was made by this Pyodide version, Pyodide accepts it (it
 // checks its own build id), and the key stored inside it equals the manifest's (Pyodide
 // version + sha256 of the wheel). Otherwise, or if it fails to load, the worker boots Pyodide
-// the ordinary way and installs the wheel. Files of Pyodide's file system do not survive a
-// snapshot, so the wheel is unpacked again after a snapshot boot: a module imported lazily or
-// a data file read later is found as usual.
+// the ordinary way. Either way the wheel's files are written into site-packages before Python
+// starts (files of Pyodide's file system do not survive in a snapshot), so a module imported
+// lazily or a data file read later is found as usual.
 
 import { loadPyodide, version as pyodideVersion } from "./vendor/pyodide/pyodide.mjs";
 import { PROTOCOL_VERSION } from "./py.js";
+import { expandImage } from "./snapshot-image.js";
+import { wheelFiles, writeFiles } from "./wheel.js";
 
 // loadPyodide hangs rather than rejects when the wasm cannot be instantiated: always time out.
 const BOOT_TIMEOUT_MS = 90000;
@@ -48,7 +50,7 @@ async function readExactly(stream, size, what) {
   return out;
 }
 
-/** The snapshot's bytes (inflated as they arrive when the build gzipped them). */
+/** The snapshot's heap: the file inflated as it arrives (when the build gzipped it), expanded. */
 async function fetchSnapshot(entry) {
   const response = await fetchOk(new URL(entry.file, import.meta.url), "the Python snapshot");
   let body = response.body;
@@ -70,9 +72,12 @@ async function fetchSnapshot(entry) {
     });
     if (gzip) body = body.pipeThrough(new DecompressionStream("gzip"));
   }
-  const bytes = await readExactly(body, entry.bytes, "the Python snapshot");
+  const image = await readExactly(body, entry.image_bytes, "the Python snapshot");
   mark("snapshot_fetched");
-  return bytes;
+  const heap = expandImage(image);
+  if (heap.length !== entry.bytes) throw new Error(`the snapshot holds ${heap.length} bytes, the manifest says ${entry.bytes}`);
+  mark("snapshot_expanded");
+  return heap;
 }
 
 const pyodideOptions = {
@@ -84,12 +89,12 @@ const pyodideOptions = {
 class NoSnapshot extends Error {}
 
 /**
- * A Pyodide restored from the build's snapshot, or null (after a console warning) when there
+ * A Pyodide restored from the build's snapshot, or null (after a console message) when there
  * is none, it belongs to another Pyodide or another core, or it fails to load. Pyodide's own
  * files (runtime module, wasm, standard library) start loading at once, beside the manifest
  * and the snapshot.
  */
-async function bootFromSnapshot(manifestPromise) {
+async function bootFromSnapshot(manifestPromise, options) {
   const snapshot = manifestPromise.then((manifest) => {
     const entry = manifest.snapshot;
     if (!entry) throw new NoSnapshot("this build has none");
@@ -99,7 +104,9 @@ async function bootFromSnapshot(manifestPromise) {
     return fetchSnapshot(entry);
   });
   try {
-    const pyodide = await loadPyodide({ ...pyodideOptions, _loadSnapshot: snapshot });
+    const pyodide = await loadPyodide({ ...options, _loadSnapshot: snapshot });
+    // Pyodide keeps its options; drop the image (tens of MB) now that it sits in the heap.
+    if (pyodide._api?.config) pyodide._api.config._loadSnapshot = null;
     const stored = pyodide.globals.get("_acidscape_snapshot");
     if (stored !== (await manifestPromise).snapshot.key) {
       throw new NoSnapshot("it was made from another build of the core");
@@ -122,32 +129,43 @@ async function boot() {
       if (!manifest.wheel) throw new Error("manifest.json names no wheel");
       return manifest;
     });
-  const wheel = manifestPromise
+  // The core's files, read from the wheel while the runtime loads, go into site-packages
+  // before Python starts (Pyodide's fsInit hook), for either kind of boot.
+  const files = manifestPromise
     .then((manifest) => fetchOk(new URL(manifest.wheel, import.meta.url), "the acidscape package"))
-    .then((response) => response.arrayBuffer());
-  wheel.catch(() => {}); // its failure is reported where it is awaited
+    .then((response) => response.arrayBuffer())
+    .then(wheelFiles)
+    .then((list) => {
+      mark("wheel_read");
+      return list;
+    });
+  files.catch(() => {}); // its failure is reported where it is awaited
+  const options = {
+    ...pyodideOptions,
+    fsInit: async (FS, { sitePackages }) => {
+      try {
+        writeFiles(FS, sitePackages, await files);
+      } catch {
+        // reported by the await of `files` below
+      }
+    },
+  };
 
-  let pyodide = await bootFromSnapshot(manifestPromise);
+  let pyodide = await bootFromSnapshot(manifestPromise, options);
   const manifest = await manifestPromise; // a failed manifest fails the boot here
   const fromSnapshot = Boolean(pyodide);
   if (!pyodide) {
     progress("runtime", 0.5, "Starting Python…");
-    pyodide = await loadPyodide(pyodideOptions);
+    pyodide = await loadPyodide(options);
   }
+  await files; // a wheel that could not be read fails the boot here
   mark("runtime");
-
-  progress("package", 0.85, "Installing the Acidscape core…");
-  const wheelBytes = await wheel;
-  mark("wheel_fetched");
-  const sitePackages = pyodide.runPython("import site; site.getsitepackages()[0]");
-  pyodide.unpackArchive(wheelBytes, "wheel", { extractDir: sitePackages });
-  // Defined in the image by build_scripts/snapshot.mjs: fresh directory listings and random seed.
   if (fromSnapshot) {
+    // Defined in the image by build_scripts/snapshot.mjs: fresh directory listings, random seed.
     const afterRestore = pyodide.globals.get("_acidscape_after_restore");
     afterRestore();
     afterRestore.destroy();
   }
-  mark("package");
 
   progress("import", 0.95, "Importing the Acidscape core…");
   const api = pyodide.pyimport("acidscape.boundary.api");

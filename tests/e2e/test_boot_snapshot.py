@@ -80,10 +80,15 @@ def test_missing_snapshot_file_boots_the_ordinary_way(browser, broken_copy):
 
 
 def test_a_snapshot_pyodide_rejects_boots_the_ordinary_way(browser, broken_copy):
-    # Same size, no valid header: Pyodide refuses it after the runtime is instantiated, and the
-    # worker starts a second, ordinary Pyodide.
+    # A well-formed image of a heap of the right size, all zeros (no Pyodide header): Pyodide
+    # refuses it after the runtime is instantiated, and the worker starts an ordinary Pyodide.
+    import build
+
     copy, manifest, url = broken_copy
-    (copy / manifest["snapshot"]["file"]).write_bytes(gzip.compress(bytes(manifest["snapshot"]["bytes"]), 1))
+    image = build.pack_image(bytes(manifest["snapshot"]["bytes"]))
+    manifest["snapshot"]["image_bytes"] = len(image)
+    write_manifest(copy, manifest)
+    (copy / manifest["snapshot"]["file"]).write_bytes(gzip.compress(image, 1))
     boot, _, warnings = boot_ordinary(browser, url)
     assert boot["snapshot"] is False
     assert any("snapshot could not be loaded" in w for w in warnings), warnings

@@ -11,6 +11,7 @@ import gzip
 import hashlib
 import json
 import re
+import shutil
 import subprocess
 import sys
 import zipfile
@@ -102,13 +103,35 @@ def test_snapshot_belongs_to_this_wheel_and_pyodide(dist):
         "pyodide": lock["packages"]["node_modules/pyodide"]["version"],
         "wheel_sha256": wheel_sha,
     }
-    assert entry["encoding"] == "gzip" and entry["file"].endswith(".bin.gz")
-    heap = gzip.decompress((dist / entry["file"]).read_bytes())
+    assert entry["encoding"] == "gzip" and entry["file"].endswith(".img.gz")
+    image = gzip.decompress((dist / entry["file"]).read_bytes())
+    assert len(image) == entry["image_bytes"] < entry["bytes"]
+    sys.path.insert(0, str(REPO / "build_scripts"))
+    import build
+
+    heap = build.unpack_image(image)
     assert len(heap) == entry["bytes"]
+    assert heap[:4] != b"ASNP"  # Pyodide's own header comes first
     # The key is a Python string inside the saved heap (__main__._acidscape_snapshot), and the
     # core's cached loaders were run before the heap was saved.
     assert entry["key"].encode() in heap
     assert any(name.endswith("library._systems") for name in entry["loaders"])
+
+
+def test_packed_snapshot_image_round_trips():
+    # Zero pages at the start, between runs and at the end, and a last page cut short.
+    sys.path.insert(0, str(REPO / "build_scripts"))
+    import build
+
+    page = build.IMAGE_PAGE
+    heap = bytearray(11 * page + 100)
+    heap[page + 5] = 1
+    heap[3 * page:5 * page] = bytes(range(256)) * (2 * page // 256)
+    heap[-1] = 7
+    image = build.pack_image(bytes(heap))
+    assert len(image) == 20 + 8 * 3 + (1 + 2) * page + 100
+    assert build.unpack_image(image) == bytes(heap)
+    assert build.unpack_image(build.pack_image(bytes(page))) == bytes(page)
 
 
 def test_wheel_entries_are_sorted_with_fixed_times_and_modes(dist):
@@ -123,12 +146,19 @@ def test_wheel_entries_are_sorted_with_fixed_times_and_modes(dist):
 
 
 def test_two_builds_of_the_same_tree_are_byte_identical(tmp_path):
-    # Two fresh builds (not the session's dist/, which may predate an edit): every file,
-    # the wheel, the snapshot and sw.js (so the cache names) included.
+    # Two fresh builds of one copy of the tree (the working tree may change meanwhile): every
+    # file, the wheel, the snapshot and sw.js (so the cache names) included.
+    tree = tmp_path / "tree"
+    ignore = shutil.ignore_patterns("node_modules", "__pycache__", "*.egg-info", "build")
+    for name in ("pycore", "site", "build_scripts"):
+        shutil.copytree(REPO / name, tree / name, ignore=ignore)
+    for name in ("pyproject.toml", "LICENSE", "README.md"):
+        shutil.copy2(REPO / name, tree / name)
+    (tree / "build_scripts" / "node_modules").symlink_to(REPO / "build_scripts" / "node_modules")
     outs = [tmp_path / "one", tmp_path / "two"]
     for out in outs:
-        done = subprocess.run([sys.executable, str(BUILD), "--out", str(out)], capture_output=True, text=True,
-                              timeout=900)
+        done = subprocess.run([sys.executable, str(tree / "build_scripts" / "build.py"), "--out", str(out)],
+                              capture_output=True, text=True, timeout=900)
         assert done.returncode == 0, done.stdout + done.stderr
     files = [walk(out) for out in outs]
     assert files[0] == files[1]
