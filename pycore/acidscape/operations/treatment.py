@@ -93,10 +93,13 @@ marked +)::
      "product": {"strength_pct", "density_kg_per_L", "product_mg_per_L", "feed_kg_per_d",
                  "feed_L_per_h", "feed_gal_per_d"} | null (without strength_pct),
      "reached": {"pH", "LSI", "CCPP_mg_per_L_as_CaCO3"}   (the dosed water with its solids),
-     "precipitation": {"allowed", "basis", "formed": [{"id", "name", "formula", "mol_per_L",
-                       "mg_per_L", "kg_per_d"}], "total_mg_per_L", "total_kg_per_d",
-                       "dose_without_precipitation_mmol_per_L", "note"},
-     "search": {"evaluations", "monotone", "direction", "bracket_mmol_per_L", "hump"},
+     "precipitation": {"allowed", "basis" ("step" | "scenario" | "default" | "softening"),
+                       "formed": [{"id", "name", "formula", "mol_per_L", "mg_per_L", "kg_per_d"}],
+                       "total_mg_per_L", "total_kg_per_d",
+                       "dose_without_precipitation_mmol_per_L" (single doses to a target where
+                       solids formed; null otherwise), "note"},
+     "search": {"evaluations", "monotone", "direction" ("raises" | "lowers"), "bracket_mmol_per_L",
+                "hump": {"dose_mmol_per_L", "value"} | null}   (nulls for a given dose),
      "water_after": <water summary>, "warnings": [str],
      + "water_before", "scenario_after", "precipitated" (= precipitation.formed), "initial_pH",
      + "flow", "cautions"}
@@ -113,7 +116,8 @@ last step: ``acidscape.solve`` of it describes that water in full.
 
 An unreachable target becomes, at the boundary, ``{"type": "UnreachableError", "message",
 "field", "detail": {"direction": "above" | "below", "best_value", "best_dose_mmol_per_L",
-"searched_to_mmol_per_L", "chemical"}}``.
+"searched_to_mmol_per_L", "chemical"}}`` (``direction`` "none" when the chemical does not
+move the value at all).
 
 Functions and classes
 ---------------------
