@@ -206,7 +206,14 @@ def _alkalinity(wm, sol, measured, r, guess):
 
 
 def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None):
-    """Iterate (carbonate total, balancing charge, I) at a fixed pH.
+    """Iterate (carbonate total, balancing charge, I) jointly at a fixed pH.
+
+    Each step solves the water once at the measured pH (warm-started) and updates both
+    unknowns from that one answer: the carbonate total by a safeguarded Newton step on the
+    alkalinity (monotone in the total: its slope is the acceptor count per mole), and the
+    balancing charge by the charge left over (at fixed ionic strength the charge moves one for
+    one with it). The two settle together in a few steps; the ionic strength follows from the
+    composition in every solve.
 
     Returns (carbonate total or None, balancing charge q [eq/L], I [mol/L]).
     """
@@ -217,53 +224,47 @@ def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None)
     field_alk = "measured.alkalinity.value"
     q = 0.0
     C = 0.0
+    lo, hi = 0.0, math.inf
     state = None
     state_e = None
-    for _ in range(100):
+    c_done = measured is None
+    for _ in range(200):
         totals[jp], totals[jm] = max(q, 0.0), max(-q, 0.0)
-        if measured is not None:
-            # Newton on C at this balancing charge (monotone: the slope is the acceptor count)
-            lo, hi = 0.0, math.inf
-            for _ in range(100):
-                totals[jc] = C
-                sol = resolve(wm, pH=pH, totals=totals, guess=state)
-                state = sol.state
-                a, slope, state_e = _alkalinity(wm, sol, measured, r, state_e)
-                f = a - measured.alkalinity_eq_per_L
-                if not slope > 0.0:
-                    raise InputError(
-                        f"measured pH {pH:g} is at or below the alkalinity end point pH {measured.end_point_pH:g}: "
-                        "carbonate cannot be inferred from an alkalinity there", field="measured.pH")
-                if f > 0.0:
-                    if C == 0.0:
-                        raise InputError(
-                            f"measured alkalinity {measured.alkalinity_eq_per_L * 1e3:.4g} meq/L is less than "
-                            f"pH {pH:g} and the other systems give without any carbonate ({a * 1e3:.4g} meq/L): "
-                            "the measurements are inconsistent", field=field_alk)
-                    hi = C
-                else:
-                    lo = C
-                step = f / slope
-                Cn = C - step
-                if not lo <= Cn <= hi:
-                    Cn = 0.5 * (lo + hi) if math.isfinite(hi) else 2.0 * max(C, 1e-12)
-                if abs(Cn - C) <= CLOSE_RTOL * max(Cn, 1e-15) or abs(f) <= CLOSE_RTOL * max(
-                        measured.alkalinity_eq_per_L, 1e-15):
-                    C = Cn
-                    break
-                C = Cn
-            else:
-                raise ConvergenceError("the carbonate total did not settle at the measured pH", field=None)
+        if jc is not None:
             totals[jc] = C
         sol = resolve(wm, pH=pH, totals=totals, guess=state)
         state = sol.state
-        # at fixed pH and I the charge moves one for one with the balancing charge
         q_new = q - sol.charge_residual
         scale = sum(abs(sp.charge) * c for sp, c in zip(wm.tab.species, sol.conc))
-        if abs(q_new - q) <= CLOSE_RTOL * max(scale, 1e-300):
+        q_settled = abs(q_new - q) <= CLOSE_RTOL * max(scale, 1e-300)
+        if not q_settled:
+            lo, hi = 0.0, math.inf  # a bracket holds only for the balancing charge it was found at
+        if measured is not None:
+            a, slope, state_e = _alkalinity(wm, sol, measured, r, state_e)
+            f = a - measured.alkalinity_eq_per_L
+            if not slope > 0.0:
+                raise InputError(
+                    f"measured pH {pH:g} is at or below the alkalinity end point pH {measured.end_point_pH:g}: "
+                    "carbonate cannot be inferred from an alkalinity there", field="measured.pH")
+            if f > 0.0:
+                if C == 0.0:
+                    raise InputError(
+                        f"measured alkalinity {measured.alkalinity_eq_per_L * 1e3:.4g} meq/L is less than "
+                        f"pH {pH:g} and the other systems give without any carbonate ({a * 1e3:.4g} meq/L): "
+                        "the measurements are inconsistent", field=field_alk)
+                hi = C
+            else:
+                lo = C
+            Cn = C - f / slope
+            if not lo <= Cn <= hi:
+                Cn = 0.5 * (lo + hi) if math.isfinite(hi) else 2.0 * max(C, 1e-12)
+            c_done = abs(Cn - C) <= CLOSE_RTOL * max(Cn, 1e-15) or abs(f) <= CLOSE_RTOL * max(
+                measured.alkalinity_eq_per_L, 1e-15)
+            C = Cn
+        if c_done and q_settled:
             return (C if measured is not None else None), q_new, sol.I
         q = q_new
-    raise ConvergenceError("ionic strength did not settle while closing the water at its pH", field=None)
+    raise ConvergenceError("the carbonate total and the balancing ion did not settle at the measured pH", field=None)
 
 
 def _balance_entry(q: float) -> dict | None:
