@@ -910,7 +910,8 @@ def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> di
         chem, target, direction = plan.dose
         mg, mmol = f"dose_{chem}_mg_per_L", f"dose_{chem}_mmol_per_L"
         pH_now = out["pH"]
-        if (direction > 0 and pH_now >= target) or (direction < 0 and pH_now <= target):
+        # met within a millionth of a pH unit (a measured pH is solved back to about 1e-12)
+        if (direction > 0 and pH_now >= target - 1e-6) or (direction < 0 and pH_now <= target + 1e-6):
             values.update({mg: 0.0, mmol: 0.0, "pH_after_dose": pH_now, "dose_status": "no dose needed",
                            "dose_cautions": ""})
         else:
