@@ -30,6 +30,7 @@ from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 90_000
@@ -143,7 +144,7 @@ def test_a_link_with_bad_values_keeps_every_valid_part_names_what_it_dropped_and
                                           "ions": [{"id": "calcium", "total": 1, "unit": "mmol/L"}]}}}
     before = int(page.get_attribute("body", "data-opened"))
     page.evaluate("(h) => { location.hash = h; }", "#" + link(far))
-    page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before)
+    page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before, timeout=60_000)
     settled(page)
     expect(message).to_contain_text("temperature_C: the number 10000000000000000 is too large")
     scenario = page_scenario(page)
@@ -267,7 +268,7 @@ def test_one_alkalinity_one_free_co2_strong_ions_in_mass_units_and_plain_feeds(p
     expect(page.locator("#dose-before-after tr[data-key='CO2_mg_per_L'] th")).to_contain_text("mg/L as CO₂")
 
     # Strong ions have mass concentrations: c x the library's molar mass (no dash).
-    ions = {i["id"]: i for i in json.loads(api.handle("systems", "{}"))["result"]["ions"]}
+    ions = {i["id"]: i for i in json.loads(dispatch.handle("systems", "{}"))["result"]["ions"]}
     for ion in result["ions"]:
         if ion["id"] not in ions:
             continue  # the balancing ion has no molar mass

@@ -142,7 +142,7 @@ def test_hostile_and_broken_links_are_refused_with_a_message_and_run_nothing(pag
         if i:
             before = opened(page)
             page.evaluate("(h) => { location.hash = h; }", fragment)
-            page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before)
+            page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before, timeout=60_000)
         settled(page)
         message = page.locator("#share-message")
         expect(message).to_be_visible()
@@ -153,7 +153,9 @@ def test_hostile_and_broken_links_are_refused_with_a_message_and_run_nothing(pag
         assert page.locator("img[src='x'], main script").count() == 0
     assert dialogs == []
     # The page still computes after all that: a good link opens and its numbers are the core's.
+    before = opened(page)
     page.evaluate("(h) => { location.hash = h; }", GOOD)
+    page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before, timeout=60_000)
     expect(page.locator("#share-message")).to_have_text("Opened the scenario from the link.")
     want = api.distribution({"pKa": [4.2], "charge_most_protonated": 0, "total_M": 0.002, "pH": 5})
     page.wait_for_function("() => document.getElementById('pka-input').value === '4.2'")
@@ -190,7 +192,10 @@ def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     # The water section writes an empty list where the example leaves a key out.
     assert as_words({k: v for k, v in state["water"]["scenario"].items() if v != []}) == PRESETS[1]["state"]["water"]["scenario"]
     page.fill("#ph-input", "3.3")
+    before = opened(page)
     page.set_input_files("#load-json", str(saved))
+    # Opening a file applies it and computes every section before it says so: wait for that.
+    page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before, timeout=60_000)
     expect(page.locator("#share-message")).to_contain_text('Opened the scenario from the file "scenario.json"')
     page.wait_for_function("(v) => document.getElementById('ph-input').value === v", arg=str(state["distribution"]["pH"]))
     bad = tmp_path / "bad.json"
