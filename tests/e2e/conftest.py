@@ -10,6 +10,7 @@
   origins are recorded; ``watch.assert_clean()`` checks them.
 - ``settled(page)``: wait until the page has no computation scheduled or running
   (body[data-pending] = "0"), a condition rather than a timeout.
+- ``core_handle(method, params_json)``: the core's JSON entry point, as the worker calls it.
 - ``core_scenario(scenario)``: a page scenario with each ion id as the core's library has it
   (word ids, or the formula ids of a core that has not moved to words yet).
 - ``AXE``: axe-core's axe.min.js (build_scripts/node_modules, a dev dependency) for the
@@ -40,11 +41,19 @@ ION_WORDS = {
 }
 
 
+def core_handle(method: str, params_json: str) -> str:
+    """The core's JSON entry point (``acidscape.boundary.dispatch.handle``; ``api.handle`` in a
+    core from before that module)."""
+    try:
+        from acidscape.boundary.dispatch import handle
+    except ImportError:
+        from acidscape.boundary.api import handle
+    return handle(method, params_json)
+
+
 def core_scenario(scenario: dict) -> dict:
     """``scenario`` with each ion id spelled as the core's library has it (see module doc)."""
-    from acidscape.boundary import api
-
-    known = {i["id"] for i in json.loads(api.handle("systems", "{}"))["result"]["ions"]}
+    known = {i["id"] for i in json.loads(core_handle("systems", "{}"))["result"]["ions"]}
     back = {w: f for f, w in ION_WORDS.items()}
     ions = [dict(e, id=back.get(e["id"], ION_WORDS.get(e["id"], e["id"])))
             if isinstance(e, dict) and "id" in e and e["id"] not in known else e

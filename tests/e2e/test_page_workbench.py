@@ -25,12 +25,11 @@ import re
 from pathlib import Path
 
 import pytest
-from conftest import AXE, core_scenario, settled
+from conftest import AXE, core_handle, core_scenario, settled
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
 
-from acidscape.boundary import dispatch
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 90_000
@@ -268,7 +267,7 @@ def test_one_alkalinity_one_free_co2_strong_ions_in_mass_units_and_plain_feeds(p
     expect(page.locator("#dose-before-after tr[data-key='CO2_mg_per_L'] th")).to_contain_text("mg/L as CO₂")
 
     # Strong ions have mass concentrations: c x the library's molar mass (no dash).
-    ions = {i["id"]: i for i in json.loads(dispatch.handle("systems", "{}"))["result"]["ions"]}
+    ions = {i["id"]: i for i in json.loads(core_handle("systems", "{}"))["result"]["ions"]}
     for ion in result["ions"]:
         if ion["id"] not in ions:
             continue  # the balancing ion has no molar mass
