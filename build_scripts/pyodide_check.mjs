@@ -1,6 +1,6 @@
 // Run the core inside Pyodide (CPython 3.14, the browser's interpreter) under Node.js:
 // install the built wheel, run every module's doctests, and evaluate the scenarios given on
-// stdin with acidscape.boundary.api.handle. Prints one JSON object on stdout.
+// stdin with acidscape.boundary.dispatch.handle. Prints one JSON object on stdout.
 //
 //   node build_scripts/pyodide_check.mjs dist/wheels/acidscape-*.whl < requests.json
 //
@@ -26,7 +26,7 @@ py.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir:
 
 const checker = py.runPython(`
 import doctest, importlib, json, pkgutil, sys
-import acidscape, acidscape.boundary.api
+import acidscape, acidscape.boundary.dispatch
 
 def check(requests_json):
     failures, attempted, modules = 0, 0, []
@@ -39,7 +39,7 @@ def check(requests_json):
         failures += res.failed
         attempted += res.attempted
         modules.append(name)
-    answers = [json.loads(acidscape.boundary.api.handle(r["method"], json.dumps(r["params"])))
+    answers = [json.loads(acidscape.boundary.dispatch.handle(r["method"], json.dumps(r["params"])))
                for r in json.loads(requests_json)]
     return json.dumps({"python": sys.version.split()[0], "modules": modules,
                        "doctests_attempted": attempted, "doctests_failed": failures,

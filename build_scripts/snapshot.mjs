@@ -110,7 +110,7 @@ def _prepare(key_json):
                 obj()
                 loaders.append(f"{name}.{attr}")
 
-    from acidscape.boundary.api import handle
+    from acidscape.boundary.dispatch import handle
     for method in ("version", "systems", "chemicals"):
         reply = json.loads(handle(method, "{}"))
         if not reply.get("ok"):

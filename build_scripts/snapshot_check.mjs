@@ -6,7 +6,7 @@
 //
 // DIST is a folder written by build_scripts/build.py (manifest.json names the snapshot and the
 // wheel). requests.json: [{"method": "...", "params": {...}}, ...], answered with
-// acidscape.boundary.api.handle after the boot. Reported:
+// acidscape.boundary.dispatch.handle after the boot. Reported:
 //   key_matches      the key stored in the image equals the manifest's
 //   without_files    {lazy_import, loaders} after a boot from the snapshot alone: an import of a
 //                    core module that was not imported when the snapshot was made
@@ -85,6 +85,6 @@ const result = {
 };
 const py = await boot(true);
 result.with_files = JSON.parse(py.runPython(PROBE)(py.toPy(entry.loaders)));
-const handle = py.pyimport("acidscape.boundary.api").handle;
+const handle = py.pyimport("acidscape.boundary.dispatch").handle;
 result.answers = requests.map((r) => JSON.parse(handle(r.method, JSON.stringify(r.params))));
 process.stdout.write(JSON.stringify(result));

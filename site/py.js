@@ -86,7 +86,7 @@ export function startPython({ onProgress = () => {}, bootTimeoutMs = 120000 } = 
   });
 
   /**
-   * Call one method of acidscape.boundary.api.handle in the worker.
+   * Call one method of acidscape.boundary.dispatch.handle in the worker.
    *
    * @param {string} method  e.g. "distribution", "systems", "version"
    * @param {object} [params]  plain JSON-able object

@@ -1,5 +1,5 @@
 // Module worker: boots Pyodide from ./vendor/pyodide/ and answers requests with
-// acidscape.boundary.api.handle (JSON strings in and out, so no Python proxies cross over).
+// acidscape.boundary.dispatch.handle (JSON strings in and out, so no Python proxies cross over).
 // Protocol: see py.js (the one place its version is written).
 //
 // Boot. manifest.json names the core wheel and, when the build made one, a memory snapshot:
@@ -168,8 +168,8 @@ async function boot() {
   }
 
   progress("import", 0.95, "Importing the Acidscape core…");
-  const api = pyodide.pyimport("acidscape.boundary.api");
-  const handle = api.handle; // kept for the worker's lifetime, like the module proxy
+  const dispatch = pyodide.pyimport("acidscape.boundary.dispatch");
+  const handle = dispatch.handle; // kept for the worker's lifetime, like the module proxy
   const version = JSON.parse(handle("version", "{}"));
   mark("ready");
   return {

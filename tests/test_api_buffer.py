@@ -24,6 +24,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from acidscape.boundary import api
+from acidscape.boundary import dispatch
 from acidscape.boundary.api import buffer as buffer_curve_of_water
 from reference import alphas_ref
 
@@ -109,7 +110,7 @@ def test_monoprotic_maximum_is_0576_C():
 
 
 def test_through_handle_and_bad_input():
-    ok = json.loads(api.handle("buffer", json.dumps({"scenario": WATERS[0], "points": 5})))
+    ok = json.loads(dispatch.handle("buffer", json.dumps({"scenario": WATERS[0], "points": 5})))
     assert ok["ok"] and len(ok["result"]["pH"]) == 5
     for params, field in [
         ({"points": 5}, "scenario"),
@@ -119,7 +120,7 @@ def test_through_handle_and_bad_input():
         ({"scenario": WATERS[0], "capacity": {"from_pH": "x", "to_pH": 6}}, "capacity.from_pH"),
         ({"scenario": WATERS[0], "capacity": [4, 5]}, "capacity"),
     ]:
-        err = json.loads(api.handle("buffer", json.dumps(params)))
+        err = json.loads(dispatch.handle("buffer", json.dumps(params)))
         assert not err["ok"], params
         assert err["error"]["field"] == field, err
         assert err["error"]["message"], err

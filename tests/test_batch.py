@@ -21,6 +21,7 @@ from pathlib import Path
 import pytest
 
 from acidscape.boundary import api
+from acidscape.boundary import dispatch
 from acidscape.boundary.batch import (
     DOSE_CAUTION, DOSE_CAUTIONS, batch_chunk, batch_csv, compute_records, detect_dialect, guess_mapping,
     read_header, result_columns, run_rows, species_column, template_csv,
@@ -513,7 +514,7 @@ def test_bad_mapping_is_an_input_error_naming_the_field(text, mapping, field, wo
 
 
 def test_api_handle_reports_errors_as_json():
-    reply = json.loads(api.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "mapping": {"pH": "nope"}})))
+    reply = json.loads(dispatch.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "mapping": {"pH": "nope"}})))
     assert reply["ok"] is False and reply["error"]["field"] == "mapping.pH"
-    ok = json.loads(api.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "header_only": True})))
+    ok = json.loads(dispatch.handle("batch_chunk", json.dumps({"csv": "pH\n7\n", "header_only": True})))
     assert ok["result"]["columns"] == ["pH"]

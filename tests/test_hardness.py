@@ -30,6 +30,7 @@ import sys
 import pytest
 
 from acidscape.boundary import api
+from acidscape.boundary import dispatch
 from acidscape.errors import InputError
 
 #: Printed EDTA constants at 25 °C, I = 0.1 mol/L: pKa1..pKa6 (pKa1 at I = 1.0) and log Kf of
@@ -204,7 +205,7 @@ def test_errors_and_defaults():
     out = titrate({"ions": [{"id": "calcium", "total": 1e-3}]}, points=101)
     assert out["fixed_pH"] == 10.0 and out["titrant_M"] == 0.01 and out["sample_mL"] == 50.0
     assert any("pH 10 assumed" in w for w in out["warnings"])
-    reply = json.loads(api.handle("conditional_constants", json.dumps({"metals": ["strontium"]})))
+    reply = json.loads(dispatch.handle("conditional_constants", json.dumps({"metals": ["strontium"]})))
     assert reply["ok"] is False and reply["error"]["field"] == "metals"
-    reply = json.loads(api.handle("conditional_constants", json.dumps({"metals": ["copper"], "points": 3})))
+    reply = json.loads(dispatch.handle("conditional_constants", json.dumps({"metals": ["copper"], "points": 3})))
     assert reply["ok"] and reply["result"]["metals"][0]["complex"] == "CuEDTA-2"

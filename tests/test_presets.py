@@ -20,6 +20,7 @@ import pytest
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 SITE = Path(__file__).resolve().parents[1] / "site"
 PRESETS = json.loads((SITE / "presets.json").read_text(encoding="utf-8"))["presets"]
 IDS = [p["id"] for p in PRESETS]
@@ -35,7 +36,7 @@ ION_WORDS = {
 def core_scenario(scenario: dict) -> dict:
     """The scenario with each ion id as the core's library knows it: the word, or (for a core
     that still keys ions by formula) the formula the page's alias table maps it from."""
-    known = {i["id"] for i in json.loads(api.handle("systems", "{}"))["result"]["ions"]}
+    known = {i["id"] for i in json.loads(dispatch.handle("systems", "{}"))["result"]["ions"]}
     back = {w: f for f, w in ION_WORDS.items()}
     ions = [dict(e, id=back.get(e["id"], e["id"])) if "id" in e and e["id"] not in known else e
             for e in scenario.get("ions", [])]

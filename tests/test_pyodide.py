@@ -20,6 +20,7 @@ import pytest
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 ROOT = Path(__file__).resolve().parents[1]
 SCRIPT = ROOT / "build_scripts" / "pyodide_check.mjs"
 PYODIDE = ROOT / "build_scripts" / "node_modules" / "pyodide" / "pyodide.asm.wasm"
@@ -85,7 +86,7 @@ def test_doctests_pass_in_pyodide(pyodide_run):
 @pytest.mark.parametrize("index", range(len(REQUESTS)))
 def test_same_answers_as_host_cpython(pyodide_run, index):
     req = REQUESTS[index]
-    host = json.loads(api.handle(req["method"], json.dumps(req["params"])))
+    host = json.loads(dispatch.handle(req["method"], json.dumps(req["params"])))
     _close(pyodide_run["answers"][index], host)
 
 
@@ -150,5 +151,5 @@ def test_files_are_gone_after_a_snapshot_boot_unless_written_before_python_start
 def test_snapshot_boot_gives_the_same_answers_as_host_cpython(snapshot_run, index):
     _, run = snapshot_run
     req = REQUESTS[index]
-    host = json.loads(api.handle(req["method"], json.dumps(req["params"])))
+    host = json.loads(dispatch.handle(req["method"], json.dumps(req["params"])))
     _close(run["answers"][index], host)

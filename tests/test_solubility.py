@@ -30,6 +30,7 @@ from scipy.optimize import minimize, root
 import reference_model as rm
 
 from acidscape.boundary import api, cli
+from acidscape.boundary import dispatch
 from acidscape.boundary.scenario import read_scenario
 from acidscape.errors import InputError, UnknownIdError
 from acidscape.operations import solubility as S
@@ -294,7 +295,7 @@ def test_errors_name_the_field():
     with pytest.raises(InputError) as e:
         curve(sc, axis="DIC", unit="mg/L as N", **{"from": 1, "to": 2})
     assert e.value.field == "unit"
-    reply = json.loads(api.handle("solubility", json.dumps({"scenario": sc, "metal": "lead", "points": 0})))
+    reply = json.loads(dispatch.handle("solubility", json.dumps({"scenario": sc, "metal": "lead", "points": 0})))
     assert reply["ok"] is False and reply["error"]["field"] == "points"
 
 

@@ -30,7 +30,8 @@ import sys
 import pytest
 
 import reference_model
-from acidscape.boundary.api import handle, solve
+from acidscape.boundary.api import solve
+from acidscape.boundary.dispatch import handle
 from acidscape.operations.softening import stoichiometric_softening
 
 MM = "mmol/L"

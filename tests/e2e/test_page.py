@@ -16,6 +16,7 @@ from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 60_000
@@ -33,7 +34,7 @@ READ_SOURCE = """(name) => {
 
 
 def core(method: str, params: dict) -> dict:
-    reply = json.loads(api.handle(method, json.dumps(params)))
+    reply = json.loads(dispatch.handle(method, json.dumps(params)))
     assert reply["ok"], reply
     return reply["result"]
 

@@ -18,6 +18,7 @@ from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 60_000
@@ -39,7 +40,7 @@ READ_WATER_SOURCE = """(name) => {
 
 
 def solve(scenario: dict) -> dict:
-    reply = json.loads(api.handle("solve", json.dumps(core_scenario(scenario))))
+    reply = json.loads(dispatch.handle("solve", json.dumps(core_scenario(scenario))))
     assert reply["ok"], reply
     return reply["result"]
 
@@ -164,7 +165,7 @@ def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Pa
 
     # Log-concentration plot: one line per curve of the core (every species it draws, H+ and OH-).
     logc = page.evaluate(READ_WATER_SOURCE, "logc_src")
-    curves = json.loads(api.handle("water", json.dumps({**core_scenario(scenario), "curve": {"points": 5}})))
+    curves = json.loads(dispatch.handle("water", json.dumps({**core_scenario(scenario), "curve": {"points": 5}})))
     assert len(logc["labels"]) == len(curves["result"]["curves"]["log_concentration"])
     # Fraction plot: the chosen system's species (ammonium: two lines).
     before = water_drawn(page)

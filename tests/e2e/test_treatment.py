@@ -15,6 +15,7 @@ from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
 
+from acidscape.boundary import dispatch
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 60_000
@@ -35,13 +36,13 @@ READ_TITRATION = """() => {
 
 
 def core(method: str, params: dict) -> dict:
-    reply = json.loads(api.handle(method, json.dumps(params)))
+    reply = json.loads(dispatch.handle(method, json.dumps(params)))
     assert reply["ok"], reply
     return reply["result"]
 
 
 def core_error(method: str, params: dict) -> dict:
-    reply = json.loads(api.handle(method, json.dumps(params)))
+    reply = json.loads(dispatch.handle(method, json.dumps(params)))
     assert not reply["ok"], reply
     return reply["error"]
 

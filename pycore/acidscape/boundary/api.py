@@ -1,22 +1,20 @@
-"""The boundary: plain dicts in, plain dicts out. The only module the browser calls.
+"""The JSON methods: plain dicts in, plain dicts out (the page reaches them through
+:func:`acidscape.boundary.dispatch.handle`).
 
 Functions
 ---------
-handle(method, params_json) -> str     JSON dispatcher used by the page's worker
-distribution(params) -> dict           alpha-fraction curves and a table at one pH
-version_info() -> dict                 package version
+solve(scenario) -> dict                 a water's equilibrium, indices and every table
+water(params), titrate(params), dose(params), buffer(params), treat(params), blend(params),
+soften(params), solubility(params), conditional_constants(params), distribution(params)
+version_info() -> dict                  package version
 
-Every function validates its input and raises :mod:`acidscape.errors` classes;
-:func:`handle` turns them into ``{"ok": false, "error": {"type", "message", "field"}}``
-so that no traceback crosses into JavaScript.
+Every function validates its input and raises :mod:`acidscape.errors` classes, which
+:func:`acidscape.boundary.dispatch.handle` turns into ``{"ok": false, "error": {...}}``.
 """
 
 from __future__ import annotations
 
-import functools
-import json
 import math
-from collections.abc import Callable
 
 from .._version import __version__
 from ..checks import number, whole
@@ -720,79 +718,3 @@ def buffer(params: dict) -> dict:
         "basis": result["buffer_intensity_basis"],
         "capacity": capacity,
     }
-
-
-@functools.cache
-def _methods() -> dict[str, Callable[[dict], dict]]:
-    """The methods :func:`handle` dispatches to, built once on the first request."""
-    from ..data import library
-    from .batch import batch_chunk
-    from ..operations.dosing import chemicals
-
-    return {
-        "version": lambda params: version_info(),
-        "distribution": distribution,
-        "solve": solve,
-        "water": water,
-        "titrate": titrate,
-        "dose": dose,
-        # treatment jobs: chemicals in sequence, blends, lime softening (operations/treatment, blend, softening)
-        "treat": treat,
-        "blend": blend,
-        "soften": soften,
-        # lead and copper solubility; conditional metal-EDTA constants (operations/solubility, hardness)
-        "solubility": solubility,
-        "conditional_constants": conditional_constants,
-        # many samples from a CSV, streamed in chunks by the page (site/batch.js)
-        "batch_chunk": batch_chunk,
-        # buffer-intensity curve of a water for the page's treatment section
-        "buffer": buffer,
-        "chemicals": lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]},
-        "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()},
-    }
-
-
-def handle(method: str, params_json: str) -> str:
-    """Dispatch one request from the page; always returns a JSON string.
-
-    Parameters
-    ----------
-    method : str
-        Name of the call (``"distribution"``, ``"solve"``, ``"systems"``, ``"version"``...)
-    params_json : str
-        Its parameters as a JSON object
-
-    Returns
-    -------
-    str
-        ``{"ok": true, "result": ...}`` or ``{"ok": false, "error": {"type", "message", "field"}}``
-
-    Examples
-    --------
-    >>> json.loads(handle("distribution", '{"pKa": []}'))["error"]["field"]
-    'pKa'
-    >>> json.loads(handle("nope", "{}"))["error"]["type"]
-    'UnknownIdError'
-    """
-    try:
-        try:
-            params = json.loads(params_json) if params_json else {}
-        except (TypeError, ValueError) as exc:
-            raise InputError(f"request parameters are not valid JSON: {exc}", field=None) from None
-        if not isinstance(params, dict):
-            raise InputError("request parameters must be a JSON object", field=None)
-        methods = _methods()
-        fn = methods.get(method)
-        if fn is None:
-            raise UnknownIdError(
-                f"unknown method {method!r}; known: {', '.join(sorted(methods))}", field=None
-            )
-        result = fn(params)
-        return json.dumps({"ok": True, "result": result}, allow_nan=False)
-    except AcidscapeError as exc:
-        return json.dumps({"ok": False, "error": exc.to_dict()})
-    except (ValueError, OverflowError, ZeroDivisionError, TypeError, KeyError) as exc:
-        # A bug or an unforeseen input: report it plainly rather than crash the worker.
-        return json.dumps(
-            {"ok": False, "error": {"type": type(exc).__name__, "message": str(exc), "field": None}}
-        )
