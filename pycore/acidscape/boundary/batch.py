@@ -144,6 +144,7 @@ import time
 
 from ..constants import ATOMIC_WEIGHT
 from ..errors import AcidscapeError, InputError
+from ..operations.dosing import CAUTION_LINE, CAUTIONS
 
 #: Largest CSV text accepted in one request [characters].
 MAX_TEXT = 20_000_000
@@ -166,17 +167,9 @@ TDS_UNITS = {"mg/L": 1.0}
 MAPPING_KEYS = ("id", "pH", "temperature", "alkalinity", "systems", "ions", "conductivity", "tds", "mode",
                 "activity", "dose", "delimiter", "decimal")
 
-#: The cautions that travel with batch dose results (one short line per dosed row, in full here).
-DOSE_CAUTIONS = (
-    "These doses are estimates from a chemical model of each water as described, not measurements.",
-    "Caustics and acids burn skin and eyes: wear the protective equipment your site requires.",
-    "Confirm a dose with a jar or bench test on the water itself before changing a chemical feed; "
-    "change a feed in small steps.",
-    "Guard against overfeed: keep pH alarms and monitoring working and limit the feed pumps.",
-    "Local regulations, your permits and licensed operators decide what is dosed.",
-)
-DOSE_CAUTION = ("Estimate only: PPE for caustics and acids; confirm by jar or bench test; guard against "
-                "overfeed; local codes and licensed operators decide.")
+#: The cautions that travel with batch dose results: the dosing module's, in full and in one line.
+DOSE_CAUTIONS = CAUTIONS
+DOSE_CAUTION = CAUTION_LINE
 
 _FIXED = [  # (name, kind)
     ("row", "count"), ("sample", "text"), ("pH_measured", "pH"), ("temperature_C", "temperature"),

@@ -499,6 +499,53 @@ def _calcite_warning(wm, sol, allow) -> list[str]:
     return []
 
 
+def product_feed(mg_per_L: float, strength: float | None, density: float | None, flow_Ld: float | None,
+                 warnings: list[str]) -> dict | None:
+    """The commercial product behind a dose of pure chemical, and its feed at a plant flow.
+
+    Parameters
+    ----------
+    mg_per_L : float
+        Dose of the pure chemical [mg/L]
+    strength : float or None
+        Product strength [% w/w]; None: no product (returns None)
+    density : float or None
+        Product density [kg/L]
+    flow_Ld : float or None
+        Plant flow [L/d]
+    warnings : list of str
+        Appended to when a feed cannot be given (no flow, or no density for a volume)
+
+    Returns
+    -------
+    dict or None
+        ``{"strength_pct", "density_kg_per_L", "product_mg_per_L", "feed_kg_per_d",
+        "feed_L_per_h", "feed_gal_per_d"}`` (None where not known)
+
+    Examples
+    --------
+    10 mg/L NaOH as 50 % liquor (1.525 kg/L) at 1,000 m3/d: 20 kg/d of product.
+
+    >>> round(product_feed(10.0, 50.0, 1.525, 1e6, [])["feed_kg_per_d"], 6)
+    20.0
+    """
+    if strength is None:
+        return None
+    prod = {"strength_pct": strength, "density_kg_per_L": density, "product_mg_per_L": mg_per_L / (strength / 100.0),
+            "feed_kg_per_d": None, "feed_L_per_h": None, "feed_gal_per_d": None}
+    if flow_Ld is None:
+        warnings.append("give flow and flow_unit for the product feed in kg/d")
+        return prod
+    kg = prod["product_mg_per_L"] * flow_Ld * 1e-6
+    prod["feed_kg_per_d"] = kg
+    if density is not None:
+        prod["feed_L_per_h"] = kg / density / 24.0
+        prod["feed_gal_per_d"] = kg / density / L_PER_US_GALLON
+    else:
+        warnings.append("give density_kg_per_L for the product feed as a volume (L/h, gal/d)")
+    return prod
+
+
 def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg_per_L=None,
                flow=None, flow_unit=None, precipitate=None, describe=None) -> dict:
     """Dose of a chemical that brings a water to a target pH, with the plant feed and the water after.
@@ -596,18 +643,7 @@ def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg
         out["flow"] = {"value": float(flow), "unit": flow_unit, "L_per_d": flow_Ld, "m3_per_d": flow_Ld / 1e3}
         out["pure_chemical_kg_per_d"] = mg * flow_Ld * 1e-6
     if strength is not None:
-        prod = {"strength_pct": strength, "density_kg_per_L": density, "product_mg_per_L": mg / (strength / 100.0)}
-        if flow_Ld is not None:
-            kg = prod["product_mg_per_L"] * flow_Ld * 1e-6
-            prod["feed_kg_per_d"] = kg
-            if density is not None:
-                prod["feed_L_per_h"] = kg / density / 24.0
-                prod["feed_gal_per_d"] = kg / density / L_PER_US_GALLON
-            else:
-                warnings.append("give density_kg_per_L for the feed as a volume (L/h, gal/d)")
-        else:
-            warnings.append("give flow and flow_unit for the product feed in kg/d")
-        out["product"] = prod
+        out["product"] = product_feed(mg, strength, density, flow_Ld, warnings)
     b, a = _summary(closed.wm, closed.sol), _summary(res.mix.wm, res.sol)
     out["change"] = {k: {"before": b[k], "after": a[k], "change": a[k] - b[k]} for k in b}
     # solids formed by the dose (beyond what the water held before)

@@ -66,7 +66,7 @@ from __future__ import annotations
 import math
 
 from ..constants import LN10
-from ..science.model import equilibrium
+from ..science.model import Cholesky, equilibrium
 from ..science.tableau import WaterModel
 
 
@@ -152,59 +152,16 @@ def ionic_strength(sol) -> float:
 TRACE_M = 1e-200
 
 
-class _Cholesky:
-    """Jacobi-scaled Cholesky factor of a small symmetric positive definite matrix (factor once).
-
-    A diagonal matrix (components that share no species, as in an acid-base-only water) is
-    kept as its diagonal.
-    """
-
-    __slots__ = ("n", "d", "L", "diag")
-
-    def __init__(self, A: list[list[float]]):
-        n = self.n = len(A)
-        for i, row in enumerate(A):
-            if not row[i] > 0.0:
-                # a Gram matrix of present components is positive definite; guard anyway
-                raise ArithmeticError("singular Hessian in the linearisation of the water")
-        if all(not v for i, row in enumerate(A) for k, v in enumerate(row) if k != i):
-            self.diag = [row[i] for i, row in enumerate(A)]
-            return
-        self.diag = None
-        d = self.d = [math.sqrt(A[i][i]) for i in range(n)]
-        L = self.L = [[0.0] * n for _ in range(n)]
-        for i in range(n):
-            Ai, Li = A[i], L[i]
-            for k in range(i + 1):
-                Lk = L[k]
-                v = Ai[k] / (d[i] * d[k])
-                for p in range(k):
-                    v -= Li[p] * Lk[p]
-                if i == k:
-                    if not v > 1e-300:
-                        raise ArithmeticError("singular Hessian in the linearisation of the water")
-                    Li[i] = math.sqrt(v)
-                else:
-                    Li[k] = v / Lk[k]
-
-    def solve(self, b: list[float]) -> list[float]:
-        if self.diag is not None:
-            return [bi / di for bi, di in zip(b, self.diag)]
-        n, d, L = self.n, self.d, self.L
-        y = [0.0] * n
-        for i in range(n):
-            Li = L[i]
-            v = b[i] / d[i]
-            for p in range(i):
-                v -= Li[p] * y[p]
-            y[i] = v / Li[i]
-        x = [0.0] * n
-        for i in range(n - 1, -1, -1):
-            v = y[i]
-            for p in range(i + 1, n):
-                v -= L[p][i] * x[p]
-            x[i] = v / L[i][i]
-        return [x[i] / d[i] for i in range(n)]
+def _Cholesky(A: list[list[float]]):
+    """The model's Cholesky factor of a Hessian, strict: a singular one raises ArithmeticError."""
+    for i, row in enumerate(A):
+        if not row[i] > 0.0:
+            # a Gram matrix of present components is positive definite; guard anyway
+            raise ArithmeticError("singular Hessian in the linearisation of the water")
+    try:
+        return Cholesky(A, strict=True)
+    except ArithmeticError:
+        raise ArithmeticError("singular Hessian in the linearisation of the water") from None
 
 
 #: Per tableau (by identity): each species' proton coefficient and its other (component, coef) pairs.

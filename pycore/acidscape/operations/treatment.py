@@ -155,7 +155,7 @@ from ..errors import AcidscapeError, ConvergenceError, InputError, UnknownIdErro
 from ..science import purewater, temperature
 from ..science.tableau import IonInput, SystemInput, WaterModel
 from .dosing import CAUTIONS as GENERAL_CAUTIONS
-from .dosing import L_PER_US_GALLON, flow_L_per_d, get_chemical
+from .dosing import flow_L_per_d, get_chemical, product_feed
 from .indices import calcium_carbonate
 
 #: The largest dose searched [mol/L]: 100 mmol/L (4000 mg/L of NaOH), beyond any water treatment.
@@ -1009,23 +1009,6 @@ def _formed_rows(wm: WaterModel, sol, flow_Ld: float | None) -> list[dict]:
     return out
 
 
-def _product(mg: float, strength: float | None, density: float | None, flow_Ld: float | None,
-             warnings: list[str]) -> dict | None:
-    if strength is None:
-        return None
-    prod = {"strength_pct": strength, "density_kg_per_L": density, "product_mg_per_L": mg / (strength / 100.0),
-            "feed_kg_per_d": None, "feed_L_per_h": None, "feed_gal_per_d": None}
-    if flow_Ld is not None:
-        kg = prod["product_mg_per_L"] * flow_Ld * 1e-6
-        prod["feed_kg_per_d"] = kg
-        if density is not None:
-            prod["feed_L_per_h"] = kg / density / 24.0
-            prod["feed_gal_per_d"] = kg / density / L_PER_US_GALLON
-        else:
-            warnings.append("give density_kg_per_L for the product feed as a volume (L/h, gal/d)")
-    return prod
-
-
 def _unreachable(step: Step, found: _Found, allowed: tuple) -> TargetUnreachableError:
     chem = step.chemical
     label = _label(step.field)
@@ -1182,7 +1165,7 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
         "dose_mg_per_L": mg,
         "dose_meq_per_L": d * chem.alkalinity_eq_per_mol * 1e3,
         "pure_chemical_kg_per_d": mg * flow_Ld * 1e-6 if flow_Ld is not None else None,
-        "product": _product(mg, step.strength_pct, step.density_kg_per_L, flow_Ld, warnings),
+        "product": product_feed(mg, step.strength_pct, step.density_kg_per_L, flow_Ld, warnings),
         "reached": reached,
         "precipitation": {
             "allowed": list(allow),

@@ -161,40 +161,72 @@ class Solution:
 # small dense linear algebra (standard library only)
 
 
+class Cholesky:
+    """Jacobi-scaled Cholesky factor of a small symmetric positive (semi)definite matrix.
+
+    Factor once, then :meth:`solve` for as many right-hand sides as needed. A diagonal matrix
+    (components that share no species) is kept as its diagonal. A pivot that rounding has
+    made slightly negative is raised to a tiny positive value; a clearly negative one means
+    the matrix is not positive semidefinite: ``ok`` is False then (``strict`` raises
+    ArithmeticError instead).
+    """
+
+    __slots__ = ("n", "d", "L", "diag", "ok")
+
+    def __init__(self, A: list[list[float]], strict: bool = False):
+        n = self.n = len(A)
+        self.ok = True
+        self.diag = None
+        if all(not v for i, row in enumerate(A) for k, v in enumerate(row) if k != i):
+            if all(row[i] > 0.0 for i, row in enumerate(A)):
+                self.diag = [row[i] for i, row in enumerate(A)]
+                return
+        d = self.d = [math.sqrt(A[i][i]) if A[i][i] > 0 else 1.0 for i in range(n)]
+        L = self.L = [[0.0] * n for _ in range(n)]
+        for i in range(n):
+            Ai, Li = A[i], L[i]
+            for k in range(i + 1):
+                Lk = L[k]
+                s = Ai[k] / (d[i] * d[k])
+                for p in range(k):
+                    s -= Li[p] * Lk[p]
+                if i == k:
+                    if s <= 1e-14:
+                        if s < -1e-8 or strict:
+                            self.ok = False
+                            if strict:
+                                raise ArithmeticError("the matrix is not positive definite")
+                            return
+                        s = 1e-14
+                    Li[i] = math.sqrt(s)
+                else:
+                    Li[k] = s / Lk[k]
+
+    def solve(self, b: list[float]) -> list[float]:
+        """x with A x = b."""
+        if self.diag is not None:
+            return [bi / di for bi, di in zip(b, self.diag)]
+        n, d, L = self.n, self.d, self.L
+        y = [0.0] * n
+        for i in range(n):
+            s = b[i] / d[i]
+            Li = L[i]
+            for p in range(i):
+                s -= Li[p] * y[p]
+            y[i] = s / Li[i]
+        x = [0.0] * n
+        for i in range(n - 1, -1, -1):
+            s = y[i]
+            for p in range(i + 1, n):
+                s -= L[p][i] * x[p]
+            x[i] = s / L[i][i]
+        return [x[i] / d[i] for i in range(n)]
+
+
 def _cholesky_solve(H: list[list[float]], b: list[float]) -> list[float] | None:
-    """Solve H x = b for symmetric positive definite H (Jacobi-scaled Cholesky); None if singular."""
-    n = len(b)
-    d = [math.sqrt(H[i][i]) if H[i][i] > 0 else 1.0 for i in range(n)]
-    L = [[0.0] * n for _ in range(n)]
-    for i in range(n):
-        Hi = H[i]
-        for k in range(i + 1):
-            s = Hi[k] / (d[i] * d[k])
-            Li, Lk = L[i], L[k]
-            for p in range(k):
-                s -= Li[p] * Lk[p]
-            if i == k:
-                if s <= 1e-14:
-                    s = 1e-14 if s > -1e-8 else -1.0
-                    if s < 0:
-                        return None
-                Li[i] = math.sqrt(s)
-            else:
-                Li[k] = s / Lk[k]
-    y = [0.0] * n
-    for i in range(n):
-        s = b[i] / d[i]
-        Li = L[i]
-        for p in range(i):
-            s -= Li[p] * y[p]
-        y[i] = s / Li[i]
-    x = [0.0] * n
-    for i in range(n - 1, -1, -1):
-        s = y[i]
-        for p in range(i + 1, n):
-            s -= L[p][i] * x[p]
-        x[i] = s / L[i][i]
-    return [x[i] / d[i] for i in range(n)]
+    """Solve H x = b for symmetric positive definite H; None if H is not."""
+    f = Cholesky(H)
+    return f.solve(b) if f.ok else None
 
 
 def _lstsq(rows: list[list[float]], rhs: list[float], k: int) -> list[float]:
