@@ -63,6 +63,11 @@ export class WaterView {
     this.displayUnit = byId(doc, "water-display-unit");
     this.plotSystem = byId(doc, "water-plot-system");
     this.speciesTable = byId(doc, "water-species-table");
+    this.componentsTable = byId(doc, "water-components-table");
+    this.saturationTable = byId(doc, "water-saturation-table");
+    this.complexes = byId(doc, "water-complexes");
+    /** Solids the user lets form (ids), kept across redraws of the saturation table. */
+    this.precipitate = new Set();
     this.trailTable = byId(doc, "water-trail-table");
     this.systemOptions = [];
     this.ionOptions = [];
@@ -305,6 +310,8 @@ export class WaterView {
   readConditions() {
     const out = Object.fromEntries(Object.entries(this.inputs).map(([k, el]) => [k, el.value]));
     out.measured = this.measured.checked;
+    out.complexes = this.complexes.checked;
+    out.precipitate = [...this.precipitate];
     out.alkUnit = this.alkUnit.value;
     out.displayUnit = this.displayUnit.value;
     out.plotSystem = this.plotSystem.value;
@@ -315,6 +322,8 @@ export class WaterView {
   setConditions(values) {
     for (const [k, el] of Object.entries(this.inputs)) if (values[k] !== undefined) el.value = values[k];
     if (values.measured !== undefined) this.measured.checked = Boolean(values.measured);
+    if (values.complexes !== undefined) this.complexes.checked = Boolean(values.complexes);
+    if (values.precipitate !== undefined) this.precipitate = new Set(values.precipitate);
     if (values.alkUnit !== undefined) this.alkUnit.value = values.alkUnit;
     if (values.displayUnit !== undefined) this.displayUnit.value = values.displayUnit;
     this.syncConditionFields();
@@ -368,7 +377,7 @@ export class WaterView {
       else if (el === this.measured || el === this.inputs.iMode) {
         this.syncConditionFields();
         handler("mode", { id: el.id });
-      } else if (el.tagName === "SELECT") handler("value", { id: el.id });
+      } else if (el.tagName === "SELECT" || el === this.complexes) handler("value", { id: el.id });
     });
     this.form.addEventListener("input", (event) => {
       const el = event.target;
@@ -377,6 +386,13 @@ export class WaterView {
       handler(row && el.id.endsWith("-mass") ? "row-mass" : "value", row || { id: el.id });
     });
     this.displayUnit.addEventListener("change", () => handler("display-unit", {}));
+    this.saturationTable.addEventListener("change", (event) => {
+      const box = event.target.closest("input.water-precipitate");
+      if (!box) return;
+      if (box.checked) this.precipitate.add(box.dataset.solid);
+      else this.precipitate.delete(box.dataset.solid);
+      handler("value", { id: "water-precipitate" });
+    });
     this.plotSystem.addEventListener("change", () => {
       this.nameFractionPlot();
       handler("plot-system", {});
@@ -443,7 +459,77 @@ export class WaterView {
     );
 
     this.renderSpecies(display, palette);
+    this.renderComponents(result);
+    this.renderSaturation(result);
     this.renderTrail(result, names);
+  }
+
+  /** @param {object} result  the core's solve result (its ``components`` rows) */
+  renderComponents(result) {
+    const pct = (part, total) => (total > 0 ? (100 * part) / total : null);
+    const rows = (result.components || []).filter((c) => c.total_M > 0).map((c) => {
+      const tr = this.doc.createElement("tr");
+      tr.dataset.component = c.id;
+      tr.dataset.totalM = String(c.total_M);
+      tr.dataset.freeFraction = String(c.free_fraction ?? "");
+      const name = this.doc.createElement("th");
+      name.scope = "row";
+      name.textContent = c.name;
+      const free = pct(c.free_M, c.total_M);
+      const bound = pct(c.complexed_M, c.total_M);
+      const solid = pct(c.precipitated_M, c.total_M);
+      tr.append(
+        name,
+        this.cell(sciNumber(c.total_M * 1e3, 4), c.total_M, "total_M", "num", exportNumber(c.total_M * 1e3)),
+        this.cell(free === null ? "—" : fixed(free, 1), free, "free_percent", "num", exportNumber(free)),
+        this.cell(bound === null ? "—" : fixed(bound, 1), bound, "complexed_percent", "num", exportNumber(bound)),
+        this.cell(solid === null ? "—" : fixed(solid, 1), solid, "precipitated_percent", "num", exportNumber(solid)),
+      );
+      return tr;
+    });
+    this.componentsTable.tBodies[0].replaceChildren(...rows);
+  }
+
+  /** @param {object} result  the core's solve result (``saturation`` and ``precipitated``) */
+  renderSaturation(result) {
+    const formed = new Map((result.precipitated || []).map((p) => [p.id, p]));
+    const rows = (result.saturation || []).map((s) => {
+      const tr = this.doc.createElement("tr");
+      tr.dataset.solid = s.id;
+      tr.dataset.si = String(s.SI);
+      const name = this.doc.createElement("th");
+      name.scope = "row";
+      name.append(`${s.name} `);
+      const f = this.doc.createElement("span");
+      f.className = "unit";
+      f.textContent = prettyFormula(s.formula);
+      name.append(f);
+      const state = formed.has(s.id) ? "present, saturated" : s.SI > 0.05 ? "oversaturated" : s.SI < -0.05 ? "undersaturated" : "near saturation";
+      const box = this.doc.createElement("input");
+      box.type = "checkbox";
+      box.className = "water-precipitate";
+      box.dataset.solid = s.id;
+      box.checked = this.precipitate.has(s.id);
+      box.setAttribute("aria-label", `Let ${s.name} form or dissolve to saturation`);
+      const boxCell = this.doc.createElement("td");
+      boxCell.append(box);
+      tr.append(
+        name,
+        this.cell(fixed(s.SI, 2), s.SI, "SI", "num", exportNumber(s.SI)),
+        this.cell(fixed(s.log_IAP, 2), s.log_IAP, "log_IAP", "num", exportNumber(s.log_IAP)),
+        this.cell(fixed(s.log_Ksp, 2), s.log_Ksp, "log_Ksp", "num", exportNumber(s.log_Ksp)),
+        this.cell(state, null, "state", ""),
+        boxCell,
+      );
+      return tr;
+    });
+    this.saturationTable.tBodies[0].replaceChildren(...rows);
+    const note = byId(this.doc, "water-precipitated");
+    const list = [...formed.values()];
+    note.hidden = list.length === 0;
+    note.textContent = list.length
+      ? "Formed at equilibrium: " + list.map((p) => `${p.id} ${sciNumber(p.mg_per_L, 4)} mg/L`).join(", ") + "."
+      : "";
   }
 
   renderSpecies({ unit, activityUnit, rows }, palette) {

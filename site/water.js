@@ -264,6 +264,8 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
     if (fixedPH !== null) scenario.pH = fixedPH;
     const pco2 = take("water-pco2", parseNumber(c.pco2, "a partial pressure in atm, or leave it empty", { optional: true }));
     if (pco2 !== null) scenario.gas = { CO2_partial_pressure_atm: pco2 };
+    if (!c.complexes) scenario.complexes = false;
+    if (c.precipitate.length) scenario.precipitate = c.precipitate;
     if (c.measured) {
       scenario.measured = {
         pH: take("water-measured-ph", parseNumber(c.measuredPH, "the measured pH, e.g. 7.8")),
@@ -595,6 +597,8 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
       fixedPH: text(sc.pH),
       pco2: text(sc.gas?.CO2_partial_pressure_atm),
       measured: Boolean(m),
+      complexes: sc.complexes !== false,
+      precipitate: Array.isArray(sc.precipitate) ? sc.precipitate.filter((p) => typeof p === "string").slice(0, 20) : [],
       measuredPH: m ? text(m.pH) : undefined,
       alkValue: m ? text(m.alkalinity?.value) : undefined,
       alkUnit: m ? (["mg/L as CaCO3", "meq/L"].includes(alkUnit) ? alkUnit : "mg/L as CaCO3") : undefined,
