@@ -21,6 +21,34 @@ import { wheelFiles, writeFiles } from "./wheel.js";
 const BOOT_TIMEOUT_MS = 90000;
 const INDEX_URL = new URL("./vendor/pyodide/", import.meta.url).href;
 
+// The runtime's wasm (9.6 MB) compiles while the snapshot downloads: Pyodide itself would start
+// compiling only once the snapshot is in (it sizes the memory from it). Pyodide's own fetch of
+// the file gets an empty stand-in, so the file is downloaded once, and its instantiateStreaming
+// call gets the module compiled here (or, should that compile fail, compiles the file anew).
+const WASM_URL = new URL("./vendor/pyodide/pyodide.asm.wasm", import.meta.url).href;
+const wasmModule = WebAssembly.compileStreaming(fetch(WASM_URL));
+wasmModule.catch(() => {}); // a failure falls back below
+const standIns = new WeakSet();
+const fetchFile = self.fetch.bind(self);
+self.fetch = (input, init) => {
+  if (String(input) !== WASM_URL) return fetchFile(input, init);
+  const standIn = new Response(null, { headers: { "Content-Type": "application/wasm" } });
+  standIns.add(standIn);
+  return Promise.resolve(standIn);
+};
+const instantiateStreaming = WebAssembly.instantiateStreaming.bind(WebAssembly);
+WebAssembly.instantiateStreaming = async (source, imports) => {
+  const response = await source;
+  if (!standIns.has(response)) return instantiateStreaming(response, imports);
+  let module;
+  try {
+    module = await wasmModule;
+  } catch {
+    return instantiateStreaming(fetchFile(WASM_URL), imports);
+  }
+  return { module, instance: await WebAssembly.instantiate(module, imports) };
+};
+
 const post = (message) => self.postMessage({ v: PROTOCOL_VERSION, ...message });
 const progress = (stage, fraction, text) => post({ type: "progress", stage, fraction, text });
 const timings = {}; // ms since the worker started, per boot step (reported with "ready")
