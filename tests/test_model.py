@@ -157,3 +157,40 @@ def test_never_fails_over_a_wide_range():
             _balances_hold(tab, sol, rtol=1e-10)
         if allow:
             assert sol.SI[0] <= 1e-9
+
+
+@pytest.mark.parametrize("pH", [10.0, 6.0])
+def test_free_calcium_in_a_CaY_solution_by_the_conditional_constant(pH):
+    # Harris, Quantitative Chemical Analysis, EDTA chapter (from memory): the free Ca2+ of a
+    # CaY2- solution follows from the conditional constant K'f = alpha_Y4- Kf, with
+    # x^2 / (C - x) = 1/K'f. Computed here with the printed NIST SRD 46 constants at I = 0.1 M
+    # (EDTA pKa 0.0, 1.5, 2.00, 2.69, 6.13, 10.37; log Kf(CaY2-) 10.65; from memory) and [H+] from
+    # the meter pH through the Davies gamma of H+ at I = 0.1 (the concentration constants'
+    # scale). The model holds the same water at I = 0.1 M; its only extra species is CaOH+
+    # (log *K -12.78, Nordstrom et al. 1990), which moves free Ca by under 0.1 % at pH 10.
+    import math as _m
+
+    from acidscape import solve
+    from acidscape.science.activity import debye_huckel_A
+
+    C = 0.010
+    I = 0.1
+    s = _m.sqrt(I)
+    lg_H = -debye_huckel_A(T25) * (s / (1 + s) - 0.3 * I)  # Davies, z = 1
+    h = 10 ** (-pH - lg_H)
+    pKa = [0.0, 1.5, 2.00, 2.69, 6.13, 10.37]
+    terms = [h ** (6 - i) * 10 ** (-sum(pKa[:i])) for i in range(7)]
+    alpha_Y = terms[6] / sum(terms)
+    Kf_cond = alpha_Y * 10 ** 10.65
+    # x^2 / (C - x) = 1/K'f  ->  x = (-b + sqrt(b^2 + 4 b C)) / 2 with b = 1/K'f
+    b = 1.0 / Kf_cond
+    x = (-b + _m.sqrt(b * b + 4 * b * C)) / 2
+    out = solve({"activity": "davies", "ionic_strength_M": I, "pH": pH,
+                 "systems": [{"id": "edta", "total": C}], "ions": [{"id": "calcium", "total": C}]})
+    free_ca = next(r["concentration_M"] for r in out["species"] if r["kind"] == "free ion" and "Ca" in r["name"])
+    assert _m.log10(free_ca) == pytest.approx(_m.log10(x), abs=0.002)
+    # the EDTA lab's point: at pH 6 far more calcium is free than at pH 10
+    if pH == 6.0:
+        assert free_ca > 1e-4
+    else:
+        assert free_ca < 1e-5
