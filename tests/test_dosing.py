@@ -82,8 +82,11 @@ def test_water_after_and_alkalinity_change(chem, target):
     eqs = {"NaOH": 1, "HCl": -1, "H2SO4": -2, "Ca(OH)2": 2, "Na2CO3": 2, "NaHCO3": 1, "CO2": 0}
     out = dose_to_pH(WATER, chem, target)
     assert out["water_after"]["pH"] == pytest.approx(target, abs=1e-7)
-    ch = out["change"]["total_alkalinity_meq_per_L"]["change"]
+    ch = out["change"]["equivalence_alkalinity_meq_per_L"]["change"]
     assert ch == pytest.approx(eqs[chem] * out["dose_mmol_per_L"], abs=1e-9)
+    # the total alkalinity shown is the one a lab titrates to pH 4.5, as in every solve result
+    after = out["change"]["total_alkalinity_mg_per_L_as_CaCO3"]["after"]
+    assert after == pytest.approx(out["water_after"]["alkalinity"]["total_mg_per_L_as_CaCO3"], rel=1e-6)
     dic = out["change"]["DIC_mmol_per_L"]["change"]
     adds_c = chem in ("Na2CO3", "NaHCO3", "CO2")
     assert dic == pytest.approx(out["dose_mmol_per_L"] if adds_c else 0.0, abs=1e-12)

@@ -61,7 +61,8 @@ from ..errors import InputError, UnknownIdError, UnreachableError
 from ..science import temperature
 from ..science.activity import VALIDITY_I_M
 from ..science.tableau import SystemInput
-from .alkalinity import MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, equivalence_alkalinity, reference_index, reference_levels
+from .alkalinity import (MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, end_point_alkalinity, equivalence_alkalinity,
+                         reference_index, reference_levels)
 from .closure import Closed
 from .mixture import MAX_AMOUNT_M, PH_RANGE, Mixture, limit_pH_trace
 from .probe import aqueous_totals, ionic_strength
@@ -470,15 +471,20 @@ def _lib_ion(iid):
 
 
 def _summary(wm, sol) -> dict:
-    """pH, total alkalinity, DIC, CO2 and ionic strength of a solved water (dissolved part)."""
+    """pH, total alkalinity (to pH 4.5), DIC, CO2 and ionic strength of a solved water (dissolved part)."""
     T = aqueous_totals(sol)
     jc = wm.comp_index.get("carbonate")
-    alk = equivalence_alkalinity(sol, reference_levels(wm, TOTAL_END_POINT_PH))
+    # total alkalinity as everywhere in the results: strong acid to the fixed end point pH 4.5;
+    # the equivalence-point value beside it is the conservative one (it changes by exactly the
+    # equivalents dosed)
+    alk, _ = end_point_alkalinity(wm, sol, TOTAL_END_POINT_PH)
+    eqp = equivalence_alkalinity(sol, reference_levels(wm, TOTAL_END_POINT_PH))
     h2co3 = sol.conc[wm.system_species["carbonate"][0]] if jc is not None else 0.0
     return {
         "pH": sol.pH,
         "total_alkalinity_meq_per_L": alk * 1e3,
         "total_alkalinity_mg_per_L_as_CaCO3": alk * 1e3 * MG_CACO3_PER_MEQ,
+        "equivalence_alkalinity_meq_per_L": eqp * 1e3,
         "DIC_mmol_per_L": T[jc] * 1e3 if jc is not None else 0.0,
         "CO2_mg_per_L": h2co3 * (ATOMIC_WEIGHT["C"] + 2 * ATOMIC_WEIGHT["O"]) * 1e3,
         "ionic_strength_M": sol.I if wm.I_fixed is not None else ionic_strength(sol),
