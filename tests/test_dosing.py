@@ -112,7 +112,7 @@ def test_dose_inverts_an_independent_charge_balance(carb, nh4, po4, boric, na, c
     c = get_chemical(chem)
     systems = {"carbonate": carb * 1e-3, "ammonium": nh4 * 1e-3, "phosphate": po4 * 1e-3, "boric": boric * 1e-3}
     ions = [(1, na * 1e-3, 4.5), (2, ca * 1e-3, 6.0), (-1, cl * 1e-3, 3.0)]
-    sizes = {"Na+": 4.5, "Cl-": 3.0, "Ca+2": 6.0}
+    sizes = {"sodium": 4.5, "chloride": 3.0, "calcium": 6.0}  # Kielland (1937), as in ions.csv
     for iid, n in c.ions:
         z = dict(zip([i for i, _ in c.ions], [z for z, _ in c.ion_charges]))[iid]
         ions.append((z, n * d, sizes[iid]))

@@ -176,7 +176,7 @@ def chemicals() -> dict:
         if abs(mm - molar_mass(r["id"])) > 0.01:
             raise library.LibraryDataError(f"{where}: molar mass {mm} disagrees with the formula "
                                            f"({molar_mass(r['id']):.3f})")
-        ions = _pairs(r["strong_ions"], where)
+        ions = tuple((library.get_ion(i).id, n) for i, n in _pairs(r["strong_ions"], where))  # word ids
         charges = tuple((library.get_ion(i).charge, n) for i, n in ions)
         systems = _pairs(r["systems"], where)
         for key, _ in systems:
