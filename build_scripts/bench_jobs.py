@@ -3,7 +3,7 @@
     .venv/bin/python build_scripts/bench_jobs.py [--repeat N] [--pyodide]
 
 Cases (invented waters, not checks of chemistry), each through
-``acidscape.boundary.api.handle`` as the page's worker calls it (JSON in and out):
+``acidscape.boundary.dispatch.handle`` as the page's worker calls it (JSON in and out):
 
 - ``lead_curve_200``: dissolved lead against pH 6.5-10.5, 200 points, in a hard water with
   carbonate, orthophosphate, sulfate and chloride (target: under 200 ms in the page);
@@ -37,7 +37,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "pycore"))
 
-from acidscape.boundary.api import handle  # noqa: E402
+from acidscape.boundary.dispatch import handle  # noqa: E402
 
 HARD = {
     "temperature_C": 15,
@@ -84,7 +84,7 @@ const site = py.runPython("import site; site.getsitepackages()[0]");
 py.unpackArchive(new Uint8Array(readFileSync(wheel)), "wheel", { extractDir: site });
 const call = py.runPython(`
 import json
-from acidscape.boundary.api import handle
+from acidscape.boundary.dispatch import handle
 def call(method, text):
     reply = json.loads(handle(method, text))
     if not reply["ok"]:
