@@ -48,7 +48,8 @@ from ..checks import number
 from ..data import library
 from ..errors import InputError, UnknownIdError
 from ..science import purewater, temperature
-from .treatment import (Water, _dissolved, _flow, _flow_json, _formed_rows, _indexed_state, _named_state, _summary,
+from .probe import aqueous_totals
+from .treatment import (Water, _flow, _flow_json, _formed_rows, _indexed_state, _named_state, _summary,
                         read_solids, summarize, water_from_closed, water_scenario)
 
 #: The fractions must sum to 1 within this.
@@ -267,7 +268,7 @@ def blend(closed_waters: list, fractions, *, precipitate=None, flow=None, flow_u
     sol = wm.solve(allow_solids=present, guess=guess)
     formed = _formed_rows(wm, sol, flow_Ld)
     if sol.solids:
-        dis = _dissolved(wm, sol)
+        dis = aqueous_totals(sol)
         after = wm.solve(totals=dis, guess=sol.state)
         mixed.totals = {c: max(dis[j], 0.0) for j, c in enumerate(wm.tab.components) if j}
     else:

@@ -76,6 +76,7 @@ from ..data import library
 from ..errors import AcidscapeError, ConvergenceError, UnknownIdError
 from ..science import purewater, temperature
 from ..science.tableau import IonInput, WaterModel
+from .probe import aqueous_totals
 
 #: The solid the indices compare with (the Langelier index is a calcite saturation index).
 CALCITE = "calcite"
@@ -246,15 +247,6 @@ def _at_pH(rec: _Recipe, pH: float, guess: dict | None) -> tuple[_Recipe, WaterM
 # the numbers of one solved (closed, neutral) water
 
 
-def _dissolved(wm: WaterModel, sol) -> list[float]:
-    """Dissolved total of each component [mol/L]: the total less what sits in solids."""
-    out = list(sol.totals)
-    for s, n in sol.solids.items():
-        for j, b in wm.tab.solids[s].stoich:
-            out[j] -= b * n
-    return out
-
-
 def _pK2_pKs(wm: WaterModel) -> tuple[float, float]:
     iHCO3 = wm.system_species[CARBONATE][-2]
     solid = wm.tab.solids[wm.solid_index[CALCITE]]
@@ -300,7 +292,7 @@ def _classic(wm: WaterModel, sol, alk: float) -> dict | None:
     idx = wm.system_species[CARBONATE]
     iHCO3, iCO3 = idx[-2], idx[-1]
     pK2, pKs = _pK2_pKs(wm)
-    Ca = _dissolved(wm, sol)[wm.comp_index[CALCIUM]]
+    Ca = aqueous_totals(sol)[wm.comp_index[CALCIUM]]
     g = {k: lg(tab.species[i].charge, tab.species[i].ion_size_A, I)
          for k, i in (("Ca", iCa), ("HCO3", iHCO3), ("CO3", iCO3), ("H", 0), ("OH", 1))}
     H = 10.0 ** (-pH - g["H"])
@@ -319,7 +311,7 @@ def _ccpp(rec: _Recipe, wm: WaterModel, sol, open_pCO2: float | None = None) -> 
     allow = tuple(dict.fromkeys(rec.allow + (CALCITE,)))
     jCa, jC = wm.comp_index[CALCIUM], wm.comp_index[CARBONATE]
     s_cal = wm.solid_index[CALCITE]
-    before = _dissolved(wm, sol)[jCa]
+    before = aqueous_totals(sol)[jCa]
     first_reservoir = max(1e-4, 0.5 * sol.totals[jCa], 0.5 * sol.totals[jC])
     if open_pCO2 is not None:
         wm = rec.build(open_H2CO3_M=10.0 ** temperature.log10_KH_CO2(rec.T) * open_pCO2)
@@ -334,7 +326,7 @@ def _ccpp(rec: _Recipe, wm: WaterModel, sol, open_pCO2: float | None = None) -> 
         totals[jC] += reservoir
         after = wm.solve(totals=totals, allow_solids=allow, guess=guess)
         if s_cal in after.solids or (reservoir == 0.0 and open_pCO2 is None):
-            return before - _dissolved(wm, after)[jCa], after.pH
+            return before - aqueous_totals(after)[jCa], after.pH
         # undersaturated: calcite must be able to dissolve; start again with a reservoir, larger each time
         reservoir = first_reservoir if reservoir == 0.0 else 8.0 * reservoir
     raise ValueError("calcite did not reach equilibrium: the water dissolves more than 8 mol/L of it")
@@ -367,7 +359,7 @@ def _evaluate(rec: _Recipe, wm: WaterModel, sol, open_pCO2: float | None, *, cla
             out.setdefault("errors", []).append(f"CCPP{suffix.replace('_', ' ')} not computed: {exc}")
     out["tendency"] = _tendency(out["LSI"])
     if classic:
-        out["classic"] = _classic(wm, sol, _total_alkalinity(wm, _dissolved(wm, sol)))
+        out["classic"] = _classic(wm, sol, _total_alkalinity(wm, aqueous_totals(sol)))
     return out
 
 
@@ -390,7 +382,7 @@ def _carbonate_alkalinity(wm: WaterModel, sol) -> float:
 def _perturbations(rec: _Recipe, wm: WaterModel, sol) -> list[tuple[str, str, list[_Recipe], list[float]]]:
     """(input, description, [recipe at -, at +], [pH at -, at +]) for each perturbed input."""
     pH = sol.pH
-    dis = _dissolved(wm, sol)
+    dis = aqueous_totals(sol)
     out = [("pH", f"pH +-{UNCERTAINTY_PH:g}", [rec, rec], [pH - UNCERTAINTY_PH, pH + UNCERTAINTY_PH])]
     C = rec.total(CARBONATE)
     alk = _total_alkalinity(wm, dis)

@@ -100,7 +100,8 @@ from ..constants import ATOMIC_WEIGHT, M_CaCO3
 from ..data import library
 from ..errors import InputError
 from .dosing import get_chemical
-from .treatment import (DEFAULT_SOLIDS, MAX_DOSE_M, TOLERANCE, TargetUnreachableError, _dissolved, _Dosed, _flow,
+from .probe import aqueous_totals
+from .treatment import (DEFAULT_SOLIDS, MAX_DOSE_M, TOLERANCE, TargetUnreachableError, _Dosed, _flow,
                         _flow_json, _indexed_state, _Point, _run_step, _search, add_chemical, cautions_for, make_step,
                         summarize, water_from_closed, water_scenario)
 
@@ -385,7 +386,7 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
                     {"direction": "above", "best_value": best.value, "best_dose_mmol_per_L": best.d * 1e3,
                      "searched_to_mmol_per_L": MAX_DOSE_M * 1e3, "chemical": lime.id})
             p = found.point
-        dis = _dissolved(dosed.wm, p.sol)
+        dis = aqueous_totals(p.sol)
         H = sum(dis[dosed.wm.comp_index[k]] for k in ("calcium", "magnesium") if k in dosed.wm.comp_index)
         water.guess = {"x": {dosed.wm.tab.components[j]: v for j, v in p.sol.state.get("x", {}).items()},
                        "I": p.sol.state.get("I"), "active": []}

@@ -157,6 +157,7 @@ from ..science.tableau import IonInput, SystemInput, WaterModel
 from .dosing import CAUTIONS as GENERAL_CAUTIONS
 from .dosing import flow_L_per_d, get_chemical, product_feed
 from .indices import calcium_carbonate
+from .probe import aqueous_totals
 
 #: The largest dose searched [mol/L]: 100 mmol/L (4000 mg/L of NaOH), beyond any water treatment.
 MAX_DOSE_M = 0.1
@@ -323,15 +324,6 @@ class Water:
                           I_fixed=self.I_fixed)
 
 
-def _dissolved(wm: WaterModel, sol) -> list[float]:
-    """Dissolved total of each component [mol/L]: the total less what sits in solids."""
-    out = list(sol.totals)
-    for s, n in sol.solids.items():
-        for j, b in wm.tab.solids[s].stoich:
-            out[j] -= b * n
-    return out
-
-
 def _named_state(wm: WaterModel, sol) -> dict:
     """A solve's warm start keyed by component name and solid id (survives a new tableau)."""
     st = sol.state
@@ -356,7 +348,7 @@ def water_from_closed(closed) -> Water:
     if isinstance(closed, Water):
         return dataclasses.replace(closed, totals=dict(closed.totals))
     wm, sol = closed.wm, closed.sol
-    dis = _dissolved(wm, sol)
+    dis = aqueous_totals(sol)
     totals = {c: max(dis[j], 0.0) for j, c in enumerate(wm.tab.components) if j}
     notes = list(getattr(closed, "notes", []) or [])
     if sol.solids:
@@ -470,7 +462,7 @@ def total_alkalinity(wm: WaterModel, dissolved: list[float]) -> float:
 
 def _summary(wm: WaterModel, sol, *, indices: bool = True) -> dict:
     """The water summary (see the module notes) of a solved water without solids."""
-    dis = _dissolved(wm, sol)
+    dis = aqueous_totals(sol)
 
     def tot(key):
         j = wm.comp_index.get(key)
@@ -1119,7 +1111,7 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
     mg = d * chem.molar_mass_g_per_mol * 1e3
     formed = _formed(dosed, p.sol, flow_Ld)
     # the dissolved water after: solids separated; chemical components left at zero dropped
-    dis = _dissolved(dosed.wm, p.sol)
+    dis = aqueous_totals(p.sol)
     comps = dosed.wm.tab.components
     totals = {c: max(dis[j], 0.0) for j, c in enumerate(comps) if j}
     drop = {k for k in dosed.new_keys if totals.get(k, 0.0) == 0.0}
