@@ -149,32 +149,35 @@ def distribution(params: dict) -> dict:
     }
 
 
-def read_water(scenario: dict):
-    """A scenario read and, when it gives a measured pH and alkalinity, closed first.
-
-    Returns ``(parsed, inferred)``: the parsed ordinary water and what was inferred from the
-    measurements (None for an ordinary scenario).
-    """
+def _ordinary(scenario: dict):
+    """``(scenario, parsed, inferred)``: a measured pH and alkalinity closed into an ordinary
+    scenario first (``inferred`` what the measurements gave; None for an ordinary scenario)."""
     from ..operations.closure import read_measured, resolve_measured
-    from .scenario import read_scenario
-
-    if isinstance(scenario, dict) and scenario.get("measured") is not None:
-        base, measured = read_measured(scenario)
-        ordinary, inferred = resolve_measured(base, read_scenario(base), measured)
-        return read_scenario(ordinary), inferred
-    return read_scenario(scenario), None
-
-
-def _closed_water(scenario: dict):
-    """The closed, electroneutral water of a scenario (for titration and dosing)."""
-    from ..operations.closure import close_scenario, read_measured, resolve_measured
     from .scenario import read_scenario
 
     inferred = None
     if isinstance(scenario, dict) and scenario.get("measured") is not None:
         base, measured = read_measured(scenario)
         scenario, inferred = resolve_measured(base, read_scenario(base), measured)
-    closed = close_scenario(scenario, read_scenario(scenario))
+    return scenario, read_scenario(scenario), inferred
+
+
+def read_water(scenario: dict):
+    """A scenario read and, when it gives a measured pH and alkalinity, closed first.
+
+    Returns ``(parsed, inferred)``: the parsed ordinary water and what was inferred from the
+    measurements (None for an ordinary scenario).
+    """
+    _, parsed, inferred = _ordinary(scenario)
+    return parsed, inferred
+
+
+def _closed_water(scenario: dict):
+    """The closed, electroneutral water of a scenario (for titration and dosing)."""
+    from ..operations.closure import close_scenario
+
+    scenario, parsed, inferred = _ordinary(scenario)
+    closed = close_scenario(scenario, parsed)
     if inferred is not None:
         closed.inferred = inferred
     return closed
