@@ -37,6 +37,8 @@ protonation ladder contrast in hue and lightness.
 
 from __future__ import annotations
 
+import importlib
+
 from bokeh.embed import json_item
 from bokeh.models import (
     ColumnDataSource,
@@ -226,9 +228,15 @@ def buffer_plot() -> figure:
     return p
 
 
+#: Modules beside this one holding the plots of one job each (scale and corrosion, softening, lead
+#: and copper, hardness titration...). Each has ``TEMPLATES``: template name -> function returning
+#: a figure; it may reuse the helpers above (``_base_figure``, ``_empty_source``, ``PALETTE``).
+JOB_PLOT_MODULES: tuple[str, ...] = ()
+
+
 def templates() -> dict:
     """Every plot as a ``json_item`` dict, keyed by the name plot.js looks up."""
-    return {
+    out = {
         "distribution": json_item(distribution_plot()),
         "log_concentration": json_item(log_concentration_plot()),
         "titration": json_item(titration_plot()),
@@ -236,6 +244,13 @@ def templates() -> dict:
         "palette": list(PALETTE),
         "layout": {"base_height_px": BASE_HEIGHT_PX, "legend_row_px": LEGEND_ROW_PX},
     }
+    for module_name in JOB_PLOT_MODULES:
+        module = importlib.import_module(module_name)
+        for key, make in module.TEMPLATES.items():
+            if key in out:
+                raise ValueError(f"plot template {key!r} of {module_name} is defined twice")
+            out[key] = json_item(make())
+    return out
 
 
 if __name__ == "__main__":  # quick look: python build_scripts/plots.py > plots.json

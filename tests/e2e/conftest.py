@@ -26,10 +26,12 @@ import threading
 from pathlib import Path
 from urllib.parse import urlsplit
 
+import os
+
 import pytest
 
 REPO = Path(__file__).resolve().parents[2]
-DIST = REPO / "dist"
+DIST = Path(os.environ["ACIDSCAPE_DIST"]).resolve() if os.environ.get("ACIDSCAPE_DIST") else REPO / "dist"
 CHROMIUM = Path("/usr/bin/chromium")
 AXE = REPO / "build_scripts" / "node_modules" / "axe-core" / "axe.min.js"
 
@@ -103,7 +105,7 @@ def site_dir() -> Path:
     reason = _stale_reason()
     if reason:
         done = subprocess.run(
-            [sys.executable, str(REPO / "build_scripts" / "build.py")], capture_output=True, text=True
+            [sys.executable, str(REPO / "build_scripts" / "build.py"), "--out", str(DIST)], capture_output=True, text=True
         )
         if done.returncode != 0:
             pytest.fail(
