@@ -379,3 +379,36 @@ def test_random_waters_wide_sweep(params, request):
     if "sweep" not in expr or "not sweep" in expr:
         pytest.skip("part of the wide sweep: run with -m sweep")
     _check_random(params)
+
+
+def test_orthophosphate_dose_equals_a_water_holding_the_dosed_total():
+    """A dose through the page's entry = the same water with its phosphate total raised (mass
+    balance: P 30.973762 g/mol, IUPAC 2021 standard atomic weight), checked against the
+    independent reference solve; the result carries the dosing and orthophosphate cautions."""
+    sc = copy.deepcopy(WATER)
+    sc["activity"] = "ideal"
+    base_P = sc["systems"][1]
+    assert base_P["id"] == "phosphate"
+    reply = json.loads(dispatch.handle("solubility", json.dumps(
+        {"scenario": sc, "metal": "lead", "axis": "pH", "from": 7.5, "to": 7.5, "points": 1,
+         "orthophosphate_dose": 0.5, "solids": ["cerussite", "hydrocerussite", "hydroxypyromorphite"]})))
+    assert reply["ok"], reply
+    out = reply["result"]
+    w = read_scenario(sc)
+    own = next(c.total_M for c in w.components if c.key == "phosphate")
+    p = out["points"][0]
+    assert p["orthophosphate_M"] == pytest.approx(own + 0.5e-3 / 30.973762, rel=1e-5)
+    ref_water = copy.deepcopy(sc)
+    ref_water["systems"][1] = {"id": "phosphate", "total": p["orthophosphate_M"], "unit": "mol/L"}
+    ref, solid, _ = reference_solubility(ref_water, "lead", 7.5, out["candidate_solids"])
+    assert p["controlling_solid"] == solid and p["dissolved_M"] == pytest.approx(ref, rel=1e-7)
+    assert any("jar" in c for c in out["cautions"]) and any("Orthophosphate overfeed" in c for c in out["cautions"])
+    # a water without phosphate gains the dose as its whole orthophosphate
+    bare = {k: v for k, v in sc.items() if k != "systems"}
+    bare["systems"] = [sc["systems"][0]]
+    out = json.loads(dispatch.handle("solubility", json.dumps(
+        {"scenario": bare, "metal": "lead", "from": 8, "to": 8, "points": 1, "orthophosphate_dose": 1.0,
+         "orthophosphate_dose_unit": "mg/L"})))["result"]
+    assert out["points"][0]["orthophosphate_M"] == pytest.approx(1e-3 / 94.971, rel=1e-4)  # PO4 94.971 g/mol
+    bad = json.loads(dispatch.handle("solubility", json.dumps({"scenario": sc, "orthophosphate_dose": -1})))
+    assert not bad["ok"] and bad["error"]["field"] == "orthophosphate_dose"

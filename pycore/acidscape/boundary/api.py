@@ -14,6 +14,7 @@ Every function validates its input and raises :mod:`acidscape.errors` classes, w
 
 from __future__ import annotations
 
+import functools
 import math
 
 from .._version import __version__
@@ -394,13 +395,99 @@ def titrate(params: dict) -> dict:
     if titrant.strip().upper() == "EDTA" or params.get("fixed_pH") is not None:
         return _edta_titration(params, titrant)
     to_pH = params.get("to_pH")
-    return titration_curve(
+    out = titration_curve(
         _closed_water(_scenario_param(params)), titrant,
         titrant_M=_number(params, "titrant_M", 0.1, lo=1e-9, hi=20.0),
         sample_mL=_number(params, "sample_mL", 100.0, lo=1e-6, hi=1e6),
         to_pH=None if to_pH is None else _number(params, "to_pH", lo=0.0, hi=14.5),
         points=_integer(params, "points", DEFAULT_POINTS, lo=3, hi=MAX_POINTS),
     )
+    _end_point_alkalinity(out)
+    return out
+
+
+def _end_point_alkalinity(out: dict) -> None:
+    """Add to each end point of a titration what it measures, in mg/L as CaCO3.
+
+    Standard Methods 2320 B: alkalinity [mg/L as CaCO3] = A x N x 50 000 / mL of sample,
+    i.e. the equivalents of acid added per litre of sample times 50.04 mg CaCO3/meq. Titrated
+    with an acid that is the alkalinity to that pH; with a base it is the acidity. Each point
+    gets ``measures`` ("alkalinity" or "acidity") and ``as_CaCO3_mg_per_L``; nothing is added
+    for a titrant that brings no equivalents (``alkalinity_eq_per_mol`` = 0).
+
+    Examples
+    --------
+    >>> out = {"titrant": {"alkalinity_eq_per_mol": -1.0}, "fixed_end_points": [{"dose_mmol_per_L": 1.0}],
+    ...        "equivalence_points": [], "half_equivalence_points": []}
+    >>> _end_point_alkalinity(out); round(out["fixed_end_points"][0]["as_CaCO3_mg_per_L"], 2)
+    50.04
+    """
+    from ..operations.alkalinity import meq_to_mg_as_CaCO3
+
+    eq_per_mol = out.get("titrant", {}).get("alkalinity_eq_per_mol") or 0.0
+    if not eq_per_mol:
+        return
+    measures = "alkalinity" if eq_per_mol < 0 else "acidity"
+    for key in ("fixed_end_points", "equivalence_points", "half_equivalence_points"):
+        for point in out.get(key, []):
+            point["measures"] = measures
+            point["as_CaCO3_mg_per_L"] = meq_to_mg_as_CaCO3(abs(point["dose_mmol_per_L"] * eq_per_mol))
+
+
+#: Product presets (data/products.csv): the columns every row has.
+_PRODUCT_COLUMNS = ("id", "chemical", "name", "strength_pct", "density_kg_per_L", "temperature_C", "source",
+                    "provenance")
+
+
+def products(params: dict | None = None) -> dict:
+    """Commercial products of the dosing chemicals, for presets of strength and density.
+
+    Read from ``data/products.csv``; each row names its chemical (``chemicals.csv``) and its
+    source (``sources.csv``), whose full reference is returned with it.
+
+    Returns
+    -------
+    dict
+        ``{"products": [{"id", "chemical", "name", "strength_pct" [% w/w],
+        "density_kg_per_L" [kg/L], "temperature_C" [°C], "source" (full reference),
+        "source_key", "provenance", "note"}]}``
+
+    Examples
+    --------
+    >>> p = {r["id"]: r for r in products()["products"]}
+    >>> p["naoh-50"]["chemical"], p["naoh-50"]["strength_pct"], p["naoh-50"]["density_kg_per_L"]
+    ('NaOH', 50.0, 1.525)
+    """
+    return {"products": [dict(r) for r in _product_rows()]}
+
+
+@functools.cache
+def _product_rows() -> tuple:
+    """The rows of data/products.csv, checked (chemical and source ids resolve), parsed once."""
+    from importlib.resources import files
+
+    from ..data import library
+    from ..operations.dosing import chemicals
+
+    name, rows = library._rows(files("acidscape") / "data" / "products.csv", _PRODUCT_COLUMNS)
+    known, refs = chemicals(), library.sources()
+    out = []
+    for lineno, r in rows:
+        where = f"{name} line {lineno}"
+        if r["chemical"] not in known:
+            raise library.LibraryDataError(f"{where}: chemical {r['chemical']!r} is not in chemicals.csv")
+        if r["source"] not in refs:
+            raise library.LibraryDataError(f"{where}: source {r['source']!r} is not in sources.csv")
+        try:
+            strength, density, temp = (float(r[k]) for k in ("strength_pct", "density_kg_per_L", "temperature_C"))
+        except ValueError:
+            raise library.LibraryDataError(f"{where}: strength, density and temperature must be numbers") from None
+        if not (0 < strength <= 100 and 0.8 < density < 2.5):
+            raise library.LibraryDataError(f"{where}: strength {strength} % or density {density} kg/L is impossible")
+        out.append({"id": r["id"], "chemical": r["chemical"], "name": r["name"], "strength_pct": strength,
+                    "density_kg_per_L": density, "temperature_C": temp, "source": refs[r["source"]].text,
+                    "source_key": r["source"], "provenance": r["provenance"], "note": r.get("note", "")})
+    return tuple(out)
 
 
 def dose(params: dict) -> dict:
@@ -584,8 +671,10 @@ def solubility(params: dict) -> dict:
     ``params``: ``scenario``, ``metal`` ("lead" | "copper"), ``axis`` ("pH" | "DIC" |
     "orthophosphate"), ``from``, ``to`` (pH, or in ``unit``: default "mg/L as C" for DIC and
     "mg/L" (as PO4) for orthophosphate), ``points`` (default 81), ``fixed_pH`` (DIC and
-    orthophosphate axes; default the water's pH), ``solids`` (candidate solid ids).
-    Each point gains ``x``, the axis value in the axis unit.
+    orthophosphate axes; default the water's pH), ``solids`` (candidate solid ids),
+    ``orthophosphate_dose`` (added to the water's phosphate; ``orthophosphate_dose_unit``,
+    default "mg/L as P"). Each point gains ``x``, the axis value in the axis unit; the result
+    gains ``cautions`` (dosing, pH adjustment and orthophosphate).
 
     Examples
     --------
@@ -596,6 +685,8 @@ def solubility(params: dict) -> dict:
     """
     from ..data import library
     from ..operations import solubility as sol
+    from ..operations.dosing import CAUTIONS as DOSE_CAUTIONS
+    from ..operations.treatment import PHOSPHATE_CAUTION
     from ..data.units import from_molar, to_molar
 
     if not isinstance(params, dict):
@@ -620,13 +711,25 @@ def solubility(params: dict) -> dict:
         system = library.get_system(sol.AXIS_COMPONENT[axis])
         start, stop = to_molar(start, unit, system, field="from"), to_molar(stop, unit, system, field="to")
     fixed = params.get("fixed_pH")
+    water = _parsed_water(params)
+    dose_notes: list[str] = []
+    dose = params.get("orthophosphate_dose")
+    if dose is not None:
+        # an orthophosphate dose added to the water's own phosphate (default unit mg/L as P)
+        dose_value = _number(params, "orthophosphate_dose", lo=0.0, hi=1e4)
+        dose_M = to_molar(dose_value, params.get("orthophosphate_dose_unit", "mg/L as P"),
+                          library.get_system("phosphate"), field="orthophosphate_dose")
+        water, dose_notes = sol.with_orthophosphate(water, dose_M)
     out = sol.solubility_curve(
-        _parsed_water(params), metal, axis, start, stop,
+        water, metal, axis, start, stop,
         _integer(params, "points", 81, lo=1, hi=sol.MAX_POINTS),
         fixed_pH=None if fixed is None else _number(params, "fixed_pH", lo=0.0, hi=14.0),
         solids=solids,
     )
     out["axis_unit"] = unit if unit is not None else "pH"
+    out["warnings"].extend(dose_notes)
+    # a curve is read to choose a pH and an orthophosphate dose: the dosing cautions travel with it
+    out["cautions"] = list(DOSE_CAUTIONS) + [PHOSPHATE_CAUTION]
     for p in out["points"]:
         p["x"] = p["pH"] if system is None else from_molar(p["axis_M"], unit, system)
     return out

@@ -80,6 +80,7 @@ Functions and classes
 ---------------------
 FixedPHSolver(wm, metal)            the water at a fixed pH, optionally saturated with a metal solid
 solubility_curve(parsed, ...)       dissolved metal along a pH, DIC or orthophosphate grid (dict)
+with_orthophosphate(parsed, dose_M) the water with an orthophosphate dose added
 metal_water(parsed, metal, need)    the water's tableau with the metal (and axis ligands) as components
 candidate_solids(wm, metal)         ids of the database solids that hold the metal
 constants_report(wm, metal, ...)    the metal's solids and complexes with constants and sources
@@ -847,6 +848,54 @@ def _water_pH(parsed) -> float:
     wm = WaterModel(list(parsed.components), list(parsed.ions), T=parsed.T, pKw=parsed.pKw, model=parsed.model,
                     complexes=getattr(parsed, "complexes", True), I_fixed=parsed.I_fixed)
     return wm.solve().pH
+
+
+def with_orthophosphate(parsed, dose_M: float):
+    """A copy of a parsed water with ``dose_M`` of orthophosphate added to its phosphate total.
+
+    Parameters
+    ----------
+    parsed : object
+        The boundary's parsed scenario (read by attribute; ``components``, ``T``)
+    dose_M : float
+        Orthophosphate added [mol/L] (as total phosphate, whatever chemical carries it)
+
+    Returns
+    -------
+    (object, list of str)
+        The water (a shallow copy; ``parsed`` is unchanged) and notes: what the water held
+        before and what the curve uses
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> water = NS(components=[], T=298.15)
+    >>> dosed, notes = with_orthophosphate(water, 3.2e-5)
+    >>> [(c.key, c.total_M) for c in dosed.components], water.components
+    ([('phosphate', 3.2e-05)], [])
+    """
+    import copy
+
+    if not (dose_M >= 0.0 and math.isfinite(dose_M)):
+        raise InputError(f"the orthophosphate dose must be 0 or more, got {dose_M!r}", field="orthophosphate_dose")
+    out = copy.copy(parsed)
+    comps = list(parsed.components)
+    notes: list[str] = []
+    for k, c in enumerate(comps):
+        if c.key == "phosphate":
+            if c.fixed_first_M is not None:
+                raise InputError("the water's phosphate is held by a fixed species; an orthophosphate dose cannot be "
+                                 "added to it", field="orthophosphate_dose")
+            comps[k] = dataclasses.replace(c, total_M=c.total_M + dose_M)
+            notes.append(f"orthophosphate: the water's {c.total_M * 1e3:.4g} mmol/L plus a dose of "
+                         f"{dose_M * 1e3:.4g} mmol/L")
+            break
+    else:
+        comps.append(_system_input("phosphate", dose_M, parsed.T, notes))
+        if dose_M > 0:
+            notes.append(f"orthophosphate: a dose of {dose_M * 1e3:.4g} mmol/L (the water held none)")
+    out.components = comps
+    return out, notes
 
 
 # --------------------------------------------------------------------------------------
