@@ -45,6 +45,7 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         # buffer-intensity curve of a water for the page's treatment section
         "buffer": api.buffer,
         "chemicals": lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]},
+        "products": api.products,  # product presets of strength and density (data/products.csv)
         "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json()},
         "solids": lambda params: {"solids": library.solids_as_json()},
     }
