@@ -231,7 +231,7 @@ def buffer_plot() -> figure:
 #: Modules beside this one holding the plots of one job each (scale and corrosion, softening, lead
 #: and copper, hardness titration...). Each has ``TEMPLATES``: template name -> function returning
 #: a figure; it may reuse the helpers above (``_base_figure``, ``_empty_source``, ``PALETTE``).
-JOB_PLOT_MODULES: tuple[str, ...] = ()
+JOB_PLOT_MODULES: tuple[str, ...] = ("plot_lead",)
 
 
 def templates() -> dict:
