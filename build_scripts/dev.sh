@@ -5,6 +5,9 @@
 #   bash build_scripts/dev.sh setup-test [ARGS]    set up (+ Debian chromium if missing), build,
 #                                                  then pytest from the repo root (extra ARGS go to pytest)
 #   bash build_scripts/dev.sh build                build dist/ with the existing setup
+#   bash build_scripts/dev.sh fast [ARGS]          the fast layers only: Python unit tests, doctests and
+#                                                  the Node tests of the page's pure modules (no build,
+#                                                  no browser; about a minute)
 #
 # "Set up" = a .venv with the project installed editable with its dev extra, and the pinned
 # Pyodide from npm ci --prefix build_scripts. Both steps are skipped when their inputs
@@ -98,6 +101,11 @@ case "$cmd" in
     ;;
   build)
     build
+    ;;
+  fast)
+    setup_python
+    say "pytest, fast layers (not e2e)"
+    exec "$PY" -m pytest -q -m "not e2e" "$@"
     ;;
   *)
     sed -n '2,12p' "$0" | sed 's/^# \{0,1\}//'

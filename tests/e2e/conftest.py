@@ -184,3 +184,11 @@ def watch(context, page, base_url):
     w = PageWatch(context, page, base_url)
     yield w
     w.assert_clean()
+
+
+def pytest_collection_modifyitems(config, items):
+    """Every test in this folder is an e2e test (``-m "not e2e"`` leaves them all out)."""
+    here = Path(__file__).resolve().parent
+    for item in items:
+        if here in Path(str(item.fspath)).resolve().parents:
+            item.add_marker(pytest.mark.e2e)
