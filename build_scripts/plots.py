@@ -42,10 +42,13 @@ import importlib
 from bokeh.embed import json_item
 from bokeh.models import (
     ColumnDataSource,
+    Grid,
     HoverTool,
     Legend,
     LegendItem,
     LinearColorMapper,
+    LogAxis,
+    LogScale,
     Range1d,
     Span,
 )
@@ -120,7 +123,8 @@ def _base_figure(name: str, y_label: str, y_range: Range1d) -> figure:
     return p
 
 
-def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: str, legend_name: str) -> None:
+def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: str, legend_name: str,
+                   y_unit: str = "") -> None:
     mapper = LinearColorMapper(palette=list(PALETTE), low=-0.5, high=len(PALETTE) - 0.5)
     lines = p.multi_line(
         xs="xs",
@@ -155,7 +159,9 @@ def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: s
         HoverTool(
             renderers=[lines],
             line_policy="interp",
-            tooltips=[("species", "@label"), ("pH", "$snap_x{0.00}"), (y_name, "$snap_y{" + y_format + "}")],
+            # one line with units, e.g. "pH 7.21, α = 0.500" or "pH 7.00, log c = -3.20 (mol/L)"
+            tooltips=[("species", "@label"),
+                      ("at", "pH $snap_x{0.00}, " + y_name + " = $snap_y{" + y_format + "}" + y_unit)],
         )
     )
 
@@ -175,7 +181,7 @@ def distribution_plot() -> figure:
     """Alpha fraction [-] of each species against pH, with the table's pH marked."""
     p = _base_figure("fraction_fig", "fraction of total", Range1d(-0.02, 1.02, bounds=(-0.05, 1.05)))
     p.yaxis.ticker.desired_num_ticks = 6
-    _species_lines(p, _empty_source("fraction_src"), "0.0000", "fraction", "fraction_legend")
+    _species_lines(p, _empty_source("fraction_src"), "0.000", "α", "fraction_legend", " (fraction of total)")
     p.add_layout(_marker("fraction_marker"))
     return p
 
@@ -183,7 +189,7 @@ def distribution_plot() -> figure:
 def log_concentration_plot() -> figure:
     """log10 of each species' concentration [log10(mol/L)] against pH."""
     p = _base_figure("logc_fig", "log₁₀ concentration (mol/L)", Range1d(-12, 0, name="logc_y"))
-    _species_lines(p, _empty_source("logc_src"), "0.00", "log₁₀ c", "logc_legend")
+    _species_lines(p, _empty_source("logc_src"), "0.00", "log c", "logc_legend", " (mol/L)")
     p.add_layout(_marker("logc_marker"))
     return p
 
@@ -191,8 +197,9 @@ def log_concentration_plot() -> figure:
 def titration_plot() -> figure:
     """pH [-] against titrant amount (mL or mg/L): one curve, equivalence points marked.
 
-    Named models: ``titr_fig``, ``titr_src`` (columns ``x``, ``pH``), ``titr_eq_src``
-    (columns ``x``, ``pH``, ``label``: equivalence and half-equivalence points),
+    Named models: ``titr_fig``, ``titr_src`` (columns ``x``, ``pH``, ``unit``: the unit of x, e.g.
+    "mL", repeated per point for the tooltip), ``titr_eq_src``
+    (columns ``x``, ``pH``, ``label``, ``unit``: equivalence and half-equivalence points),
     ``titr_xaxis`` (its ``axis_label`` names the amount and unit), ``titr_x`` (Range1d).
     """
     p = _base_figure("titr_fig", "pH", Range1d(0, 14, bounds=(-2, 16)))
@@ -202,28 +209,51 @@ def titration_plot() -> figure:
     p.xaxis.ticker.desired_num_ticks = 10
     p.yaxis.ticker.desired_num_ticks = 8
     p.tools = [t for t in p.tools if type(t).__name__ not in ("PanTool", "WheelZoomTool")]
-    curve_src = ColumnDataSource(data={"x": [], "pH": []}, name="titr_src")
-    points_src = ColumnDataSource(data={"x": [], "pH": [], "label": []}, name="titr_eq_src")
+    curve_src = ColumnDataSource(data={"x": [], "pH": [], "unit": []}, name="titr_src")
+    points_src = ColumnDataSource(data={"x": [], "pH": [], "label": [], "unit": []}, name="titr_eq_src")
     curve = p.line("x", "pH", source=curve_src, line_width=2.6, line_color=PALETTE[0])
     marks = p.scatter("x", "pH", source=points_src, size=11, marker="diamond", fill_color=PALETTE[1],
                       line_color=_INK, line_width=1.0)
+    # "12.30 mL, pH 8.30"
     p.add_tools(HoverTool(renderers=[curve], mode="vline",
-                          tooltips=[("added", "@x{0.000}"), ("pH", "@pH{0.00}")]))
-    p.add_tools(HoverTool(renderers=[marks], tooltips=[("point", "@label"), ("added", "@x{0.000}"),
-                                                        ("pH", "@pH{0.00}")]))
+                          tooltips=[("added", "@x{0.00} @unit, pH @pH{0.00}")]))
+    p.add_tools(HoverTool(renderers=[marks], tooltips=[("point", "@label"),
+                                                        ("added", "@x{0.00} @unit, pH @pH{0.00}")]))
     return p
 
 
 def buffer_plot() -> figure:
     """Buffer intensity beta [mmol/(L pH)] against pH, with the water's pH marked.
 
+    The beta axis is linear or logarithmic: the figure carries both, and the page shows one pair
+    (line + axis + grid) at a time by their ``visible`` flags.
+
     Named models: ``buffer_fig``, ``buffer_src`` (columns ``pH``, ``beta``),
-    ``buffer_marker`` (Span), ``buffer_y`` (Range1d).
+    ``buffer_marker`` (Span), ``buffer_y`` (Range1d, linear), ``buffer_line``, ``buffer_yaxis``,
+    ``buffer_ygrid`` (the linear set); ``buffer_log_y`` (Range1d of the log scale, positive),
+    ``buffer_log_line``, ``buffer_log_yaxis``, ``buffer_log_ygrid`` (the log set, hidden at first).
     """
     p = _base_figure("buffer_fig", "buffer intensity β (mmol/L per pH)", Range1d(0, 1, name="buffer_y"))
+    p.yaxis.name = "buffer_yaxis"
+    p.ygrid.name = "buffer_ygrid"
+    p.extra_y_ranges = {"log": Range1d(1e-3, 10, name="buffer_log_y")}
+    p.extra_y_scales = {"log": LogScale()}
+    log_axis = LogAxis(y_range_name="log", name="buffer_log_yaxis", axis_label="buffer intensity β (mmol/L per pH, log scale)",
+                       visible=False)
+    for attr in ("axis_label_text_font", "axis_label_text_font_style", "axis_label_text_font_size",
+                 "axis_label_text_color", "major_label_text_font", "major_label_text_font_size",
+                 "major_label_text_color", "axis_line_color", "major_tick_line_color"):
+        setattr(log_axis, attr, getattr(p.yaxis[0], attr))
+    p.add_layout(log_axis, "left")
+    p.add_layout(Grid(dimension=1, ticker=log_axis.ticker, y_range_name="log", name="buffer_log_ygrid",
+                      grid_line_color=_GRID, visible=False))
     src = ColumnDataSource(data={"pH": [], "beta": []}, name="buffer_src")
-    line = p.line("pH", "beta", source=src, line_width=2.6, line_color=PALETTE[5])
-    p.add_tools(HoverTool(renderers=[line], mode="vline", tooltips=[("pH", "@pH{0.00}"), ("β", "@beta{0.0000}")]))
+    line = p.line("pH", "beta", source=src, line_width=2.6, line_color=PALETTE[5], name="buffer_line")
+    log_line = p.line("pH", "beta", source=src, line_width=2.6, line_color=PALETTE[5], y_range_name="log",
+                      name="buffer_log_line", visible=False)
+    # "pH 7.00, β = 0.520 mmol/(L·pH)"
+    p.add_tools(HoverTool(renderers=[line, log_line], mode="vline",
+                          tooltips=[("at", "pH @pH{0.00}, β = @beta{0.000} mmol/(L·pH)")]))
     p.add_layout(_marker("buffer_marker"))
     return p
 
@@ -231,7 +261,7 @@ def buffer_plot() -> figure:
 #: Modules beside this one holding the plots of one job each (scale and corrosion, softening, lead
 #: and copper, hardness titration...). Each has ``TEMPLATES``: template name -> function returning
 #: a figure; it may reuse the helpers above (``_base_figure``, ``_empty_source``, ``PALETTE``).
-JOB_PLOT_MODULES: tuple[str, ...] = ("plot_lead",)
+JOB_PLOT_MODULES: tuple[str, ...] = ("plot_lead", "plot_scale")
 
 
 def templates() -> dict:

@@ -5,7 +5,7 @@ Functions
 ---------
 solve(scenario) -> dict                 a water's equilibrium, indices and every table
 water(params), titrate(params), dose(params), buffer(params), treat(params), blend(params),
-soften(params), solubility(params), conditional_constants(params), distribution(params)
+soften(params), solubility(params), conditional_constants(params), distribution(params), scale_curves(params)
 version_info() -> dict                  package version
 
 Every function validates its input and raises :mod:`acidscape.errors` classes, which
@@ -18,7 +18,7 @@ import functools
 import math
 
 from .._version import __version__
-from ..checks import number, whole
+from ..checks import MAX_SAMPLE_ML, MAX_TOTAL_M, PH_RANGE, choice, fmt, missing, number, range_words, shown, whole
 from ..errors import AcidscapeError, InputError, UnknownIdError
 from ..science import temperature
 from ..science.speciation import MAX_STEPS, _check_pKa, alpha_curve, alpha_fractions, generic_species_names
@@ -37,7 +37,7 @@ def _number(params: dict, key: str, default=None, *, lo=None, hi=None, field=Non
     field = field or key
     value = params.get(key, default)
     if value is None:
-        raise InputError(f"{field} is required", field=field)
+        raise missing(field, range_words(lo, hi) if lo is not None or hi is not None else "")
     return number(value, field, lo=lo, hi=hi, allow_text=True)
 
 
@@ -52,7 +52,7 @@ def _acid_from_params(params: dict) -> tuple[str, list[str], list[int], tuple[fl
 
         system_id = params["system"]
         if not isinstance(system_id, str):
-            raise InputError(f"system must be a library id (text), got {system_id!r}", field="system")
+            raise InputError("Choose the acid from the list.", field="system")
         try:
             system = get_system(system_id)
         except UnknownIdError as exc:
@@ -63,20 +63,20 @@ def _acid_from_params(params: dict) -> tuple[str, list[str], list[int], tuple[fl
         return system.name, names, charges, tuple(system.pKa_25C)
     pKa = params.get("pKa")
     if pKa is None:
-        raise InputError("pKa is required: give a list of 1 to %d numbers" % MAX_STEPS, field="pKa")
+        raise InputError(f"Enter 1 to {MAX_STEPS} pKa values, such as 4.76 or 2.15; 7.20; 12.35.", field="pKa")
     if not isinstance(pKa, (list, tuple)):
-        raise InputError(f"pKa must be a list of numbers, got {pKa!r}", field="pKa")
+        raise InputError("The pKa values must be numbers, such as 4.76 or 2.15; 7.20; 12.35.", field="pKa")
     pKa = _check_pKa(pKa)
     if any(b < a for a, b in zip(pKa, pKa[1:])):
         raise InputError(
-            "pKa values must be listed in increasing order (step 1 first), got "
-            + ", ".join(f"{v:g}" for v in pKa),
+            "The pKa values must rise from step to step (list the first step first); you entered "
+            + "; ".join(fmt(v) for v in pKa) + ".",
             field="pKa",
         )
     z0 = _integer(params, "charge_most_protonated", 0, lo=-10, hi=10)
     name = params.get("name") or "custom acid"
     if not isinstance(name, str):
-        raise InputError(f"name must be text, got {name!r}", field="name")
+        raise InputError("Enter the name of the acid as text.", field="name")
     names = generic_species_names(len(pKa), z0)
     charges = [z0 - i for i in range(len(pKa) + 1)]
     return name[:80], names, charges, pKa
@@ -114,14 +114,16 @@ def distribution(params: dict) -> dict:
     0.5
     """
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     name, names, charges, pKa = _acid_from_params(params)
-    total = _number(params, "total_M", 1e-3, lo=0.0, hi=20.0)
-    pH = _number(params, "pH", 7.0, lo=-2.0, hi=16.0)
-    pH_min = _number(params, "pH_min", 0.0, lo=-2.0, hi=16.0)
-    pH_max = _number(params, "pH_max", 14.0, lo=-2.0, hi=16.0)
+    total = _number(params, "total_M", 1e-3, lo=0.0, hi=MAX_TOTAL_M)
+    pH = _number(params, "pH", 7.0, lo=PH_RANGE[0], hi=PH_RANGE[1])
+    pH_min = _number(params, "pH_min", 0.0, lo=PH_RANGE[0], hi=PH_RANGE[1])
+    pH_max = _number(params, "pH_max", 14.0, lo=PH_RANGE[0], hi=PH_RANGE[1])
     if pH_max <= pH_min:
-        raise InputError(f"pH_max ({pH_max:g}) must be above pH_min ({pH_min:g})", field="pH_max")
+        raise InputError(f"The highest pH of the plot ({pH_max:g}) must be above the lowest ({pH_min:g}).",
+                         field="pH_max")
     points = _integer(params, "points", 561, lo=2, hi=MAX_POINTS)
     step = (pH_max - pH_min) / (points - 1)
     grid = [pH_min + k * step for k in range(points)]
@@ -348,14 +350,16 @@ def water(params: dict) -> dict:
     from ..operations.curves import pH_grid, water_curves
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     curve = params.get("curve") or {}
     if not isinstance(curve, dict):
-        raise InputError("curve must be an object {pH_min, pH_max, points}", field="curve")
+        raise InputError("The curve settings must give the lowest and highest pH and the number of points.",
+                         field="curve")
     scenario = {k: v for k, v in params.items() if k != "curve"}
     grid = pH_grid(
-        _number(curve, "pH_min", 0.0, lo=-1.0, hi=15.0, field="curve.pH_min"),
-        _number(curve, "pH_max", 14.0, lo=-1.0, hi=15.0, field="curve.pH_max"),
+        _number(curve, "pH_min", 0.0, lo=PH_RANGE[0], hi=PH_RANGE[1], field="curve.pH_min"),
+        _number(curve, "pH_max", 14.0, lo=PH_RANGE[0], hi=PH_RANGE[1], field="curve.pH_max"),
         _integer(curve, "points", 281, lo=2, hi=MAX_POINTS),
     )
     state: dict = {}
@@ -366,7 +370,8 @@ def water(params: dict) -> dict:
 def _scenario_param(params: dict) -> dict:
     sc = params.get("scenario")
     if not isinstance(sc, dict):
-        raise InputError("scenario must be a JSON object describing the water", field="scenario")
+        raise InputError("The water could not be read: it must be a group of named values (a JSON object).",
+                         field="scenario")
     return sc
 
 
@@ -388,18 +393,19 @@ def titrate(params: dict) -> dict:
     from ..operations.titration import DEFAULT_POINTS, titration_curve
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     titrant = params.get("titrant")
     if not isinstance(titrant, str):
-        raise InputError(f"titrant must be a chemical id such as 'NaOH', got {titrant!r}", field="titrant")
+        raise InputError("Choose the titrant from the list (such as NaOH or HCl).", field="titrant")
     if titrant.strip().upper() == "EDTA" or params.get("fixed_pH") is not None:
         return _edta_titration(params, titrant)
     to_pH = params.get("to_pH")
     out = titration_curve(
         _closed_water(_scenario_param(params)), titrant,
-        titrant_M=_number(params, "titrant_M", 0.1, lo=1e-9, hi=20.0),
-        sample_mL=_number(params, "sample_mL", 100.0, lo=1e-6, hi=1e6),
-        to_pH=None if to_pH is None else _number(params, "to_pH", lo=0.0, hi=14.5),
+        titrant_M=_number(params, "titrant_M", 0.1, lo=1e-9, hi=MAX_TOTAL_M),
+        sample_mL=_number(params, "sample_mL", 100.0, lo=1e-6, hi=MAX_SAMPLE_ML),
+        to_pH=None if to_pH is None else _number(params, "to_pH", lo=PH_RANGE[0], hi=PH_RANGE[1]),
         points=_integer(params, "points", DEFAULT_POINTS, lo=3, hi=MAX_POINTS),
     )
     _end_point_alkalinity(out)
@@ -502,15 +508,16 @@ def dose(params: dict) -> dict:
     from ..operations.dosing import dose_to_pH
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     chem = params.get("chemical")
     if not isinstance(chem, str):
-        raise InputError(f"chemical must be an id such as 'NaOH', got {chem!r}", field="chemical")
+        raise InputError("Choose the chemical from the list (such as NaOH).", field="chemical")
     opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
            ("strength_pct", "density_kg_per_L", "flow")}
     targets = [k for k in ("target_pH", "target_LSI", "target_CCPP") if params.get(k) is not None]
     if len(targets) > 1:
-        raise InputError(f"give one target: {' or '.join(targets)}", field=targets[1])
+        raise InputError("Give one target: a pH, an LSI or a CCPP, not several.", field=targets[1])
     if targets and targets[0] != "target_pH":
         from ..operations.treatment import dose_to_target
 
@@ -535,7 +542,8 @@ def treat(params: dict) -> dict:
     from ..operations import treatment
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     steps = treatment.read_steps(params.get("steps"))
     flow = None if params.get("flow") is None else _number(params, "flow")
     return treatment.treat(_closed_water(_scenario_param(params)), steps, flow=flow,
@@ -552,10 +560,11 @@ def blend(params: dict) -> dict:
     from ..operations import blend as blending
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     waters = params.get("waters")
     if not isinstance(waters, list) or len(waters) < 2:
-        raise InputError("waters must be a list of two or more scenarios", field="waters")
+        raise InputError("Give two or more waters to blend.", field="waters")
     blending.check_fractions(params.get("fractions"), len(waters))
     closed = []
     for k, sc in enumerate(waters):
@@ -567,7 +576,7 @@ def blend(params: dict) -> dict:
     names = params.get("names")
     if names is not None and (not isinstance(names, list) or len(names) != len(waters)
                               or not all(isinstance(n, str) for n in names)):
-        raise InputError("names must be a list of one text per water", field="names")
+        raise InputError("Give one name per water.", field="names")
     flow = None if params.get("flow") is None else _number(params, "flow")
     return blending.blend(closed, params.get("fractions"), precipitate=params.get("precipitate"), flow=flow,
                           flow_unit=params.get("flow_unit"), names=names)
@@ -586,7 +595,8 @@ def soften(params: dict) -> dict:
     from ..operations import softening
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     opt = {k: (None if params.get(k) is None else _number(params, k)) for k in
            ("softening_pH", "lime_mg_per_L", "soda_ash_mg_per_L", "target_hardness_mg_per_L_as_CaCO3",
             "excess_lime_meq_per_L", "flow")}
@@ -617,16 +627,16 @@ def _edta_titration(params: dict, titrant: str) -> dict:
     from ..operations import hardness
 
     if titrant.strip().upper() != "EDTA":
-        raise InputError(f"a titration at a fixed pH is an EDTA (complexometric) titration; titrant must be "
-                         f"'EDTA', got {titrant!r}", field="titrant")
+        raise InputError(f"A titration at a buffered pH is an EDTA titration: choose EDTA as the titrant "
+                         f"(not {titrant.strip()[:40]}), or clear the buffered pH.", field="titrant")
     to_mL = params.get("to_mL")
     out = hardness.edta_titration(
         _parsed_water(params),
-        titrant_M=_number(params, "titrant_M", 0.01, lo=1e-9, hi=20.0),
-        sample_mL=_number(params, "sample_mL", 50.0, lo=1e-6, hi=1e6),
-        fixed_pH=_number(params, "fixed_pH", hardness.STANDARD_PH, lo=0.0, hi=14.0),
+        titrant_M=_number(params, "titrant_M", 0.01, lo=1e-9, hi=MAX_TOTAL_M),
+        sample_mL=_number(params, "sample_mL", 50.0, lo=1e-6, hi=MAX_SAMPLE_ML),
+        fixed_pH=_number(params, "fixed_pH", hardness.STANDARD_PH, lo=PH_RANGE[0], hi=PH_RANGE[1]),
         points=_integer(params, "points", hardness.DEFAULT_POINTS, lo=3, hi=MAX_POINTS),
-        to_mL=None if to_mL is None else _number(params, "to_mL", lo=1e-9, hi=1e6),
+        to_mL=None if to_mL is None else _number(params, "to_mL", lo=1e-9, hi=MAX_SAMPLE_ML),
     )
     if params.get("fixed_pH") is None:
         out["warnings"].append(f"pH {hardness.STANDARD_PH:g} assumed: the standard method's buffer (common practice)")
@@ -645,16 +655,17 @@ def conditional_constants(params: dict) -> dict:
     from ..operations import hardness
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     if params.get("scenario") is None:
         params = dict(params, scenario={"ionic_strength_M": 0.1})
     metals = params.get("metals", list(hardness.HARDNESS_METALS))
     if not isinstance(metals, list) or not metals or not all(isinstance(m, str) for m in metals):
-        raise InputError("metals must be a list of ion ids such as [\"calcium\", \"magnesium\"]", field="metals")
+        raise InputError("Choose the metals from the list (such as calcium and magnesium).", field="metals")
     return hardness.conditional_constants(
         _parsed_water(params), metals,
-        pH_from=_number(params, "pH_from", 6.0, lo=0.0, hi=14.0),
-        pH_to=_number(params, "pH_to", 13.0, lo=0.0, hi=14.0),
+        pH_from=_number(params, "pH_from", 6.0, lo=PH_RANGE[0], hi=PH_RANGE[1]),
+        pH_to=_number(params, "pH_to", 13.0, lo=PH_RANGE[0], hi=PH_RANGE[1]),
         points=_integer(params, "points", 71, lo=1, hi=MAX_POINTS),
     )
 
@@ -690,20 +701,21 @@ def solubility(params: dict) -> dict:
     from ..data.units import from_molar, to_molar
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     metal = params.get("metal", "lead")
     if not isinstance(metal, str) or metal not in sol.METALS:
-        raise InputError(f"metal must be one of {', '.join(sol.METALS)}, got {metal!r}", field="metal")
+        raise choice("metal", metal, sol.METALS)
     axis = params.get("axis", "pH")
     if axis not in SOLUBILITY_AXES:
-        raise InputError(f"axis must be one of {', '.join(SOLUBILITY_AXES)}, got {axis!r}", field="axis")
+        raise choice("axis", axis, SOLUBILITY_AXES)
     lo, hi, unit = SOLUBILITY_AXES[axis]
-    start = _number(params, "from", lo, lo=0.0, hi=14.0 if axis == "pH" else 1e6)
-    stop = _number(params, "to", hi, lo=0.0, hi=14.0 if axis == "pH" else 1e6)
+    start = _number(params, "from", lo, lo=0.0, hi=PH_RANGE[1] if axis == "pH" else 1e6)
+    stop = _number(params, "to", hi, lo=0.0, hi=PH_RANGE[1] if axis == "pH" else 1e6)
     solids = params.get("solids")
     if solids is not None:
         if not isinstance(solids, list) or not all(isinstance(x, str) for x in solids):
-            raise InputError("solids must be a list of solid ids such as [\"cerussite\"]", field="solids")
+            raise InputError("Choose the solids from the list (such as cerussite).", field="solids")
         solids = [library.get_solid(x).id for x in solids]
     system = None
     if unit is not None:
@@ -723,7 +735,7 @@ def solubility(params: dict) -> dict:
     out = sol.solubility_curve(
         water, metal, axis, start, stop,
         _integer(params, "points", 81, lo=1, hi=sol.MAX_POINTS),
-        fixed_pH=None if fixed is None else _number(params, "fixed_pH", lo=0.0, hi=14.0),
+        fixed_pH=None if fixed is None else _number(params, "fixed_pH", lo=PH_RANGE[0], hi=PH_RANGE[1]),
         solids=solids,
     )
     out["axis_unit"] = unit if unit is not None else "pH"
@@ -789,10 +801,11 @@ def buffer(params: dict) -> dict:
     from ..operations.curves import pH_grid
 
     if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
     grid = pH_grid(
-        _number(params, "pH_min", BUFFER_RANGE[0], lo=-1.0, hi=15.0),
-        _number(params, "pH_max", BUFFER_RANGE[1], lo=-1.0, hi=15.0),
+        _number(params, "pH_min", BUFFER_RANGE[0], lo=PH_RANGE[0], hi=PH_RANGE[1]),
+        _number(params, "pH_max", BUFFER_RANGE[1], lo=PH_RANGE[0], hi=PH_RANGE[1]),
         _integer(params, "points", BUFFER_POINTS, lo=2, hi=5001),
     )
     state: dict = {}
@@ -803,9 +816,9 @@ def buffer(params: dict) -> dict:
     cap = params.get("capacity")
     if cap is not None:
         if not isinstance(cap, dict):
-            raise InputError("capacity must be an object {from_pH, to_pH}", field="capacity")
-        p1 = _number(cap, "from_pH", lo=-1.0, hi=15.0, field="capacity.from_pH")
-        p2 = _number(cap, "to_pH", lo=-1.0, hi=15.0, field="capacity.to_pH")
+            raise InputError("Enter the start and end pH of the buffer capacity.", field="capacity")
+        p1 = _number(cap, "from_pH", lo=PH_RANGE[0], hi=PH_RANGE[1], field="capacity.from_pH")
+        p2 = _number(cap, "to_pH", lo=PH_RANGE[0], hi=PH_RANGE[1], field="capacity.to_pH")
         base = buffer_capacity(wm, sol, p1, p2)
         capacity = {
             "from_pH": p1,
@@ -823,4 +836,59 @@ def buffer(params: dict) -> dict:
         "ionic_strength_M": sol.I,
         "basis": result["buffer_intensity_basis"],
         "capacity": capacity,
+    }
+
+
+def scale_curves(params: dict) -> dict:
+    """The calcium carbonate curves of a water for the page's plots
+    (:mod:`acidscape.operations.scale_curves`): the saturation index against pH and the CCPP
+    against temperature, each with its uncertainty band.
+
+    ``params``: ``scenario``; optional ``pH`` ``{"from", "to", "points"}`` (default 6 to 10.5,
+    31 points), ``temperature`` ``{"from_C", "to_C", "points"}`` (default 5 to 100 °C, 20
+    points), ``band`` (default true). A water without calcium or carbonate is refused with a
+    message naming what is missing (field ``scenario``).
+
+    Examples
+    --------
+    >>> out = scale_curves({"scenario": {"systems": [{"id": "carbonate", "total": 4, "unit": "mmol/L"}],
+    ...                                  "ions": [{"id": "calcium", "total": 2, "unit": "mmol/L"}]},
+    ...                     "pH": {"from": 7, "to": 9, "points": 3}, "temperature": {"points": 2}, "band": False})
+    >>> [round(x, 1) for x in out["saturation_against_pH"]["pH"]], out["ccpp_against_temperature"]["temperature_C"]
+    ([7.0, 8.0, 9.0], [5.0, 100.0])
+    """
+    from ..operations import scale_curves as curves
+
+    if not isinstance(params, dict):
+        raise InputError("The request could not be read: its values must be a group of named values.",
+                         field=None)
+    ph = params.get("pH") or {}
+    tc = params.get("temperature") or {}
+    if not isinstance(ph, dict):
+        raise InputError("pH must be an object {from, to, points}", field="pH")
+    if not isinstance(tc, dict):
+        raise InputError("temperature must be an object {from_C, to_C, points}", field="temperature")
+    lo, hi, n = curves.DEFAULT_PH
+    pH_from = _number(ph, "from", lo, lo=0.0, hi=14.0, field="pH.from")
+    pH_to = _number(ph, "to", hi, lo=0.0, hi=14.0, field="pH.to")
+    pH_points = whole(ph.get("points", n), "pH.points", lo=2, hi=curves.MAX_POINTS)
+    lo, hi, n = curves.DEFAULT_TEMPERATURE_C
+    t_from = _number(tc, "from_C", lo, lo=0.0, hi=100.0, field="temperature.from_C")
+    t_to = _number(tc, "to_C", hi, lo=0.0, hi=100.0, field="temperature.to_C")
+    t_points = whole(tc.get("points", n), "temperature.points", lo=2, hi=curves.MAX_POINTS)
+    for a, b, field in ((pH_from, pH_to, "pH.to"), (t_from, t_to, "temperature.to_C")):
+        if b <= a:
+            raise InputError(f"{field} must be above the start of the range ({a:g})", field=field)
+    band = params.get("band", True)
+    if not isinstance(band, bool):
+        raise InputError(f"band must be true or false, got {band!r}", field="band")
+    parsed, _ = read_water(_scenario_param(params))
+    wm = water_model(parsed)
+    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
+    common = {"pH_given": parsed.pH, "allow_solids": parsed.precipitate, "band": band}
+    return {
+        "saturation_against_pH": curves.saturation_against_pH(wm, sol, pH_from=pH_from, pH_to=pH_to,
+                                                              points=pH_points, **common),
+        "ccpp_against_temperature": curves.ccpp_against_temperature(wm, sol, t_from_C=t_from, t_to_C=t_to,
+                                                                    points=t_points, **common),
     }

@@ -37,6 +37,8 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "treat": api.treat,
         "blend": api.blend,
         "soften": api.soften,
+        # saturation index against pH and CCPP against temperature, with bands (operations/scale_curves)
+        "scale_curves": api.scale_curves,
         # lead and copper solubility; conditional metal-EDTA constants (operations/solubility, hardness)
         "solubility": api.solubility,
         "conditional_constants": api.conditional_constants,
