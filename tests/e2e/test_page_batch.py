@@ -127,7 +127,7 @@ def test_samples_stream_and_match_the_core(page: Page, watch, tmp_path):
     rows = [li.get_attribute("data-row") for li in page.locator("#batch-errors li").all()]
     assert rows == [str(i + 2) for i in sorted(BAD)]
     expect(page.locator("#batch-errors li").first).to_contain_text("Row 19 (W0017): pH is missing")
-    expect(page.locator("#batch-errors li").last).to_contain_text("Row 252 (W0250; east): alkalinity is missing")
+    expect(page.locator("#batch-errors li").last).to_contain_text("Row 252 (W0250; east): Alkalinity is missing")
     expect(page.locator("#batch-cautions")).to_be_visible()
     expect(page.locator("#batch-cautions")).to_contain_text("jar or bench test")
     statuses = [r["dose_status"] for r in csv.DictReader(io.StringIO(got))]

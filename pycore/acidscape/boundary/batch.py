@@ -45,15 +45,20 @@ Blank cells (a blank is an empty cell, a cell of spaces, or a line shorter than 
 column                       a blank cell means
 ===========================  ===============================================================
 pH (mode "measured")         the row is an error: "pH is missing"
-alkalinity (when mapped)     the row is an error: "alkalinity is missing" -- never a zero
+alkalinity (when mapped)     the row is an error: "Alkalinity is missing: ..." -- never a zero
 temperature                  ``temperature.default_C`` when the mapping gives it, otherwise
-                             the row is an error: "temperature is missing"; with no
+                             the row is an error: "Temperature is missing"; with no
                              temperature column every row is at ``default_C`` (default 25)
 system or ion total          not measured: left out of that row's water (``"blank": "omit"``,
                              the default); ``"zero"`` reads it as 0 (say so only when a
                              blank truly means none); ``"error"`` makes the row an error
 conductivity, TDS            not measured: the ionic strength follows from the composition
 ===========================  ===============================================================
+
+A row with a blank alkalinity cell is not calculated without it: its pH alone does not say
+how much carbonate the water holds, and a water without carbonate (alkalinity 0) would give
+wrong species and doses. Map no alkalinity column at all to speciate every row at its pH
+with the totals given.
 
 A cell that is not a number (``<0.01``, ``n.d.``) is always that row's error. With both a
 conductivity and a TDS value in a row, the conductivity sets the ionic strength.
@@ -786,12 +791,12 @@ def _cell_number(cells, index: int | None, what: str, comma: bool) -> float | No
         if type(raw).__name__ == "NAType":  # a dataframe's missing value
             return None
         if isinstance(raw, bool) or not isinstance(raw, numbers.Real):
-            raise InputError(f"{what} {raw!r} is not a number")
+            raise InputError(f"{_said(what)} {raw!r} is not a number")
         value = float(raw)  # numpy integers and floats are numbers.Real too
         if value != value:  # NaN: a blank cell as a dataframe holds it
             return None
         if not math.isfinite(value):
-            raise InputError(f"{what} {raw!r} is not a finite number")
+            raise InputError(f"{_said(what)} {raw!r} is not a finite number")
         return value
     text = raw.strip()
     if not text:
@@ -813,16 +818,26 @@ def _cell_number(cells, index: int | None, what: str, comma: bool) -> float | No
                 hint = " (a decimal comma: set the mapping's decimal sign to ',')"
             elif "," in text and "." in text:
                 hint = " (thousands separators are not read)"
-            raise InputError(f"{what} {text!r} is not a number{hint}") from None
+            raise InputError(f"{_said(what)} {text!r} is not a number{hint}") from None
     if "_" in text or not math.isfinite(value):
-        raise InputError(f"{what} {text!r} is not a finite number")
+        raise InputError(f"{_said(what)} {text!r} is not a finite number")
     return value
+
+
+def _said(word: str) -> str:
+    """A word as a row's message starts with it (capitalised; ``pH`` keeps its case)."""
+    return word if word.startswith("pH") else word[:1].upper() + word[1:]
+
+
+#: What a row's message says for a blank cell that the row cannot do without.
+_MISSING = {"alkalinity": "Alkalinity is missing: without it the carbonate cannot be worked out "
+                          "(a blank cell is not read as 0)"}
 
 
 def _required(cells, index, what, comma) -> float:
     v = _cell_number(cells, index, what, comma)
     if v is None:
-        raise InputError(f"{what} is missing")
+        raise InputError(_MISSING.get(what, f"{_said(what)} is missing"))
     return v
 
 
@@ -835,7 +850,7 @@ def row_scenario(plan: _Plan, cells) -> tuple[dict, float | None]:
         t = _cell_number(cells, plan.temp, "temperature", comma)
         if t is None:
             if plan.temp_default is None:
-                raise InputError("temperature is missing (or give mapping.temperature.default_C for blank cells)")
+                raise InputError("Temperature is missing (or give mapping.temperature.default_C for blank cells)")
             t = plan.temp_default
         elif plan.temp_unit == "F":
             t = (t - 32.0) * 5.0 / 9.0
@@ -848,7 +863,7 @@ def row_scenario(plan: _Plan, cells) -> tuple[dict, float | None]:
                 if blank == "omit":
                     continue
                 if blank == "error":
-                    raise InputError(f"{label} is missing")
+                    raise InputError(f"{_said(label)} is missing")
                 v = 0.0
             out.append({"id": sid, "total": v * factor, "unit": "mol/L"})
         if out:
@@ -872,50 +887,80 @@ def row_scenario(plan: _Plan, cells) -> tuple[dict, float | None]:
     return sc, pH
 
 
-def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> dict:
-    from ..boundary.api import dose, solve
+def _row_water(sc: dict):
+    """The row's water, closed and solved: ``(ordinary scenario, parsed, inferred, model, solution)``.
 
-    out = solve(sc)
-    alk = out["alkalinity"]
-    split = alk.get("split_from_speciation", {})
-    dic = None
-    inferred = out.get("inferred_from_measurements")
+    The same steps as :func:`acidscape.boundary.api.solve` up to its solution (a measured pH and
+    alkalinity closed to a carbonate total and a balancing ion, the tableau, one solve), without
+    the rest of its description (indices, buffer intensity, saturation, trail, equivalence
+    points), which a batch row does not report.
+    """
+    from .api import _ordinary, water_model
+
+    scenario, parsed, inferred = _ordinary(sc)
+    wm = water_model(parsed)
+    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
+    return scenario, parsed, inferred, wm, sol
+
+
+def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> dict:
+    """One row's results: the figures :func:`acidscape.boundary.api.solve` (and ``dose``) give
+    for the row's scenario, computed by the same functions, and only those the row reports."""
+    from ..operations.alkalinity import (MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, _speciation_split,
+                                         end_point_alkalinity)
+
+    scenario, parsed, inferred, wm, sol = _row_water(sc)
+    # total alkalinity to the fixed end point pH 4.5, 0 at or below it (as alkalinity_report gives it)
+    a, _ = end_point_alkalinity(wm, sol, TOTAL_END_POINT_PH, guess=sol.state)
+    total = a if sol.pH > TOTAL_END_POINT_PH else 0.0
+    OH, CO3, HCO3 = _speciation_split(wm, sol)
+
+    def mg(eq_per_L):  # mg/L as CaCO3, in the order alkalinity_report multiplies
+        return eq_per_L * 1e3 * MG_CACO3_PER_MEQ
+
     if inferred:
         dic = inferred.get("DIC_mg_per_L_as_C")
     else:
-        for s in out["systems"]:
-            if s["id"] == "carbonate":
-                dic = s["total_M"] * ATOMIC_WEIGHT["C"] * 1e3  # IUPAC standard atomic weight of C, mg/mmol
+        jc = wm.comp_index.get("carbonate")
+        # IUPAC standard atomic weight of C, mg/mmol
+        dic = None if jc is None else sol.totals[jc] * ATOMIC_WEIGHT["C"] * 1e3
     values = {
-        "row": row, "sample": sample, "pH_measured": pH_measured, "temperature_C": out["temperature_C"],
-        "pH": out["pH"], "ionic_strength_M": out["ionic_strength_M"],
-        "alkalinity_mg_per_L_as_CaCO3": alk.get("total_mg_per_L_as_CaCO3"),
-        "hydroxide_alk_mg_per_L_as_CaCO3": split.get("hydroxide_mg_per_L_as_CaCO3"),
-        "carbonate_alk_mg_per_L_as_CaCO3": split.get("carbonate_mg_per_L_as_CaCO3"),
-        "bicarbonate_alk_mg_per_L_as_CaCO3": split.get("bicarbonate_mg_per_L_as_CaCO3"),
+        "row": row, "sample": sample, "pH_measured": pH_measured, "temperature_C": parsed.temperature_C,
+        "pH": sol.pH, "ionic_strength_M": sol.I,
+        "alkalinity_mg_per_L_as_CaCO3": mg(total),
+        "hydroxide_alk_mg_per_L_as_CaCO3": mg(OH),
+        "carbonate_alk_mg_per_L_as_CaCO3": mg(CO3),
+        "bicarbonate_alk_mg_per_L_as_CaCO3": mg(HCO3),
         "DIC_mg_per_L_as_C": dic, "error": "",
     }
     if plan.species_columns:
-        conc = {(s.get("system"), s["name"]): s["concentration_M"] for s in out["species"]}
+        conc = {}
+        for sid, idx in wm.system_species.items():
+            for i in idx:
+                conc[(sid, wm.tab.species[i].name)] = sol.conc[i]
         for sid, formula, name in plan.species_columns:
             values[name] = conc.get((sid, formula), 0.0)
     if plan.dose:
+        from ..operations.closure import close_scenario
+        from ..operations.dosing import dose_to_pH
+
         chem, target, direction = plan.dose
-        mg, mmol = f"dose_{chem}_mg_per_L", f"dose_{chem}_mmol_per_L"
-        pH_now = out["pH"]
+        mg_col, mmol_col = f"dose_{chem}_mg_per_L", f"dose_{chem}_mmol_per_L"
+        pH_now = sol.pH
         # met within a millionth of a pH unit (a measured pH is solved back to about 1e-12)
         if (direction > 0 and pH_now >= target - 1e-6) or (direction < 0 and pH_now <= target + 1e-6):
-            values.update({mg: 0.0, mmol: 0.0, "pH_after_dose": pH_now, "dose_status": "no dose needed",
+            values.update({mg_col: 0.0, mmol_col: 0.0, "pH_after_dose": pH_now, "dose_status": "no dose needed",
                            "dose_cautions": ""})
         else:
             try:
-                d = dose({"scenario": sc, "chemical": chem, "target_pH": target})
-                values.update({mg: d["dose_mg_per_L"], mmol: d["dose_mmol_per_L"],
+                # as api.dose: the closed water of the row's (already closed) scenario, no full descriptions
+                d = dose_to_pH(close_scenario(scenario, parsed), chem, target)
+                values.update({mg_col: d["dose_mg_per_L"], mmol_col: d["dose_mmol_per_L"],
                                "pH_after_dose": d["change"]["pH"]["after"], "dose_status": "dosed",
                                "dose_cautions": DOSE_CAUTION})
             except AcidscapeError as exc:
                 values["dose_status"] = "not reachable"
-                values["error"] = f"dose: {exc.message}"
+                values["error"] = f"Dose: {exc.message}"
     return values
 
 
@@ -1095,7 +1140,7 @@ def run_rows(text: str, mapping: dict, start: int = 0, stop: int | None = None, 
     >>> [r["row"] for r in out["rows"]]
     [2, 3, 4]
     >>> [(e["row"], e["message"]) for e in out["errors"]]
-    [(3, "pH 'x' is not a number"), (4, 'alkalinity is missing')]
+    [(3, "pH 'x' is not a number"), (4, 'Alkalinity is missing: without it the carbonate cannot be worked out (a blank cell is not read as 0)')]
     """
     d, dec = _dialect_of(text, mapping)
     header, records = _records(text, d)
