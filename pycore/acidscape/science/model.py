@@ -133,6 +133,17 @@ class Tableau:
         # derived once: protons per species, and the solve's structure per pattern of inputs
         object.__setattr__(self, "h_count", tuple(dict(sp.stoich).get(0, 0) for sp in self.species))
         object.__setattr__(self, "_structures", {})
+        object.__setattr__(self, "_constants", {})
+        object.__setattr__(self, "z2", tuple(sp.charge * sp.charge for sp in self.species))
+        object.__setattr__(self, "log10_K", tuple(sp.log10_K for sp in self.species))
+        object.__setattr__(self, "stoichs", tuple(sp.stoich for sp in self.species))
+        # activity coefficients are computed once per distinct (charge, ion size)
+        keys: dict = {}
+        comp_gkey = tuple(keys.setdefault((z, a), len(keys)) for z, a in zip(self.charges, self.ion_sizes))
+        species_gkey = tuple(keys.setdefault((sp.charge, sp.ion_size_A), len(keys)) for sp in self.species)
+        object.__setattr__(self, "gamma_keys", tuple(keys))
+        object.__setattr__(self, "comp_gkey", comp_gkey)
+        object.__setattr__(self, "species_gkey", species_gkey)
 
 
 @dataclass
@@ -237,13 +248,16 @@ def _lstsq(rows: list[list[float]], rhs: list[float], k: int) -> list[float]:
     return out if out is not None else [0.0] * k
 
 
-def _rref_nullspace(C: list[list[float]], d: list[float], n: int, prefer: list[int]):
-    """Parametrise {x : C x = d} as x = x0 + N y.
+def _rref_nullspace(C: list[list[float]], n: int, prefer: list[int]):
+    """Parametrise {x : C x = d} as x = P d + N y, for any right-hand side d.
 
-    ``prefer`` orders the columns tried as pivots. Returns (x0, N (n x r), free columns,
-    pivot columns) or None when the rows are linearly dependent.
+    ``prefer`` orders the columns tried as pivots. Returns (P rows as (pivot column,
+    coefficients over d), N (n x r), free columns, pivot columns) or None when the rows are
+    linearly dependent. The reduction runs on C beside an identity block, so the map from d
+    to the particular solution is found once per set of constraints.
     """
-    A = [list(r) + [v] for r, v in zip(C, d)]
+    k = len(C)
+    A = [list(r) + [1.0 if a == b else 0.0 for b in range(k)] for a, r in enumerate(C)]
     pivots = []
     row = 0
     for col in prefer:
@@ -264,63 +278,97 @@ def _rref_nullspace(C: list[list[float]], d: list[float], n: int, prefer: list[i
     if row < len(A):
         return None
     free = [c for c in range(n) if c not in pivots]
-    x0 = [0.0] * n
-    for r, pc in enumerate(pivots):
-        x0[pc] = A[r][n]
+    P = [(pc, A[r][n:]) for r, pc in enumerate(pivots)]
     N = [[0.0] * len(free) for _ in range(n)]
-    for k, fc in enumerate(free):
-        N[fc][k] = 1.0
+    for q, fc in enumerate(free):
+        N[fc][q] = 1.0
         for r, pc in enumerate(pivots):
-            N[pc][k] = -A[r][fc]
-    return x0, N, free, pivots
+            N[pc][q] = -A[r][fc]
+    return P, N, free, pivots
 
 
-# --------------------------------------------------------------------------------------
-# the problem at one ionic strength and one set of constraints
+class _Skeleton:
+    """What a set of affine constraints makes of the coupled problem, whatever their right-hand
+    sides: the null space N, the map from the right-hand sides to x0, and every coupled species'
+    coefficients over the free coordinates y (with its Hessian entries). Found once per
+    structure and constraint pattern; the ionic strength only changes the numbers."""
+
+    __slots__ = ("r", "N", "free", "nH", "P", "pivots", "N_cols", "N_rows", "cs_nz", "cs_abs", "cs_hess",
+                 "cs_x0", "nH_nz", "dependent")
+
+    def __init__(self, nc: int, C: list[list[float]], prefer: list[int], x_coeffs: list[list[float]]):
+        self.dependent = False
+        if C:
+            res = _rref_nullspace(C, nc, prefer)
+            if res is None:
+                self.dependent = True
+                return
+            P, N, free, pivots = res
+        else:
+            P, N, free, pivots = [], [[1.0 if a == b else 0.0 for b in range(nc)] for a in range(nc)], \
+                list(range(nc)), []
+        r = len(free)
+        self.r, self.N, self.free, self.P, self.pivots = r, N, free, P, pivots
+        self.nH = N[0]  # H+ is coupled index 0
+        self.nH_nz = [(q, v) for q, v in enumerate(N[0]) if v]
+        self.N_cols = [[(k, N[k][q]) for k in range(nc) if N[k][q]] for q in range(r)]
+        self.N_rows = [[(q, v) for q, v in enumerate(N[k]) if v] for k in range(nc)]
+        pset = set(pivots)
+        self.cs_nz, self.cs_abs, self.cs_hess, self.cs_x0 = [], [], [], []
+        for a in x_coeffs:
+            ay = [sum(a[k] * N[k][q] for k in range(nc) if a[k]) for q in range(r)]
+            nz = [(q, aq) for q, aq in enumerate(ay) if aq]
+            self.cs_nz.append(nz)
+            self.cs_abs.append([(q, abs(aq)) for q, aq in nz])
+            # lower-triangle Hessian entries of this species: (flat index q*r+s, a_q a_s), s <= q
+            self.cs_hess.append([(q * r + s, aq * as_) for q, aq in nz for s, as_ in nz if s <= q])
+            self.cs_x0.append([(k, a[k]) for k in range(nc) if a[k] and k in pset])
 
 
 class _Problem:
     """F on the affine set x = x0 + N y, with simple components eliminated."""
 
-    __slots__ = ("r", "x0", "N", "free", "nH", "cs_lnK", "cs_a", "cs_nz", "ladders", "Tr", "T_simple",
-                 "coupled", "cpl_species", "const")
+    __slots__ = ("r", "x0", "N", "free", "nH", "nH_nz", "cs_lnK", "cs_nz", "cs_abs", "cs_hess", "ladders", "Tr",
+                 "Tr_abs", "T_simple", "const", "sk")
 
-    def __init__(self, coupled, cpl_species, lnKp, x_coeffs, ladders, T_simple, T_cpl, C, d, prefer):
-        # coupled: component indices in the reduced x (0 = H+ first); x_coeffs[i]: dense coefficient
-        # vector over coupled for coupled species i; ladders: per simple component a list of (k, lnK')
-        nc = len(coupled)
-        res = _rref_nullspace(C, d, nc, prefer) if C else ([0.0] * nc, [[1.0 if a == b else 0.0 for b in range(nc)]
-                                                                          for a in range(nc)], list(range(nc)), [])
-        if res is None:
-            raise _Dependent()
-        x0, N, free, _ = res
-        r = len(free)
-        self.r, self.x0, self.N, self.free = r, x0, N, free
-        self.nH = N[0]  # H+ is coupled index 0
-        self.coupled, self.cpl_species = coupled, cpl_species
-        cs_lnK, cs_a = [], []
-        for i, a in zip(cpl_species, x_coeffs):
-            base = lnKp[i] + sum(ak * xk for ak, xk in zip(a, x0) if ak)
-            cs_lnK.append(base)
-            cs_a.append([sum(a[k] * N[k][q] for k in range(nc) if a[k]) for q in range(r)])
-        self.cs_lnK, self.cs_a = cs_lnK, cs_a
-        self.cs_nz = [[(q, aq) for q, aq in enumerate(a) if aq] for a in cs_a]
+    def __init__(self, sk: _Skeleton, lnK_cpl, ladders, T_simple, T_cpl, d):
+        # sk: the skeleton of the constraint pattern; lnK_cpl: ln K' of each coupled species;
+        # ladders: per simple component a list of (k, lnK'); d: right-hand sides of the constraints
+        nc = len(T_cpl)
+        x0 = [0.0] * nc
+        for pc, coefs in sk.P:
+            x0[pc] = sum(c * v for c, v in zip(coefs, d))
+        self.sk = sk
+        self.r, self.x0, self.N, self.free, self.nH, self.nH_nz = sk.r, x0, sk.N, sk.free, sk.nH, sk.nH_nz
+        if sk.P:
+            self.cs_lnK = [lnK + sum(a * x0[k] for k, a in ax) if ax else lnK
+                           for lnK, ax in zip(lnK_cpl, sk.cs_x0)]
+        else:
+            self.cs_lnK = lnK_cpl
+        self.cs_nz, self.cs_abs, self.cs_hess = sk.cs_nz, sk.cs_abs, sk.cs_hess
         self.ladders, self.T_simple = ladders, T_simple
-        self.Tr = [sum(T_cpl[k] * N[k][q] for k in range(nc)) for q in range(r)]
-        self.const = sum(T_cpl[k] * x0[k] for k in range(nc))
+        self.Tr = [sum(T_cpl[k] * v for k, v in col) for col in sk.N_cols]
+        self.Tr_abs = [abs(t) for t in self.Tr]
+        self.const = sum(T_cpl[pc] * x0[pc] for pc in sk.pivots)
 
     def xH(self, y):
-        return self.x0[0] + sum(a * b for a, b in zip(self.nH, y))
+        return self.x0[0] + sum(v * y[q] for q, v in self.nH_nz)
+
+    def x_of(self, y):
+        """The coupled x at the free coordinates y."""
+        return [a + sum(v * y[q] for q, v in row) for a, row in zip(self.x0, self.sk.N_rows)]
 
     def evaluate(self, y, want_hess=True):
         """F, gradient, Hessian (or None) and per-coordinate residual scale at y."""
         r = self.r
         exp = math.exp
-        F = -self.const - sum(t * v for t, v in zip(self.Tr, y))
+        F = -self.const
+        for t, v in zip(self.Tr, y):
+            F -= t * v
         g = [-t for t in self.Tr]
-        scale = [abs(t) for t in self.Tr]
-        H = [[0.0] * r for _ in range(r)] if want_hess else None
-        for lnK, nz in zip(self.cs_lnK, self.cs_nz):
+        scale = list(self.Tr_abs)
+        Hf = [0.0] * (r * r) if want_hess else None
+        for lnK, nz, nabs, hs in zip(self.cs_lnK, self.cs_nz, self.cs_abs, self.cs_hess):
             e = lnK
             for q, aq in nz:
                 e += aq * y[q]
@@ -329,14 +377,12 @@ class _Problem:
             c = exp(e)
             F += c
             for q, aq in nz:
-                v = aq * c
-                g[q] += v
-                scale[q] += abs(v)
-                if want_hess:
-                    Hq = H[q]
-                    for s, as_ in nz:
-                        if s <= q:
-                            Hq[s] += v * as_
+                g[q] += aq * c
+            for q, aq in nabs:
+                scale[q] += aq * c
+            if want_hess:
+                for k, p in hs:
+                    Hf[k] += p * c
         if self.ladders:
             xH = self.xH(y)
             m1 = m2 = Fs = sabs = 0.0
@@ -358,20 +404,20 @@ class _Problem:
                 m2 += T * max(var, 0.0)
                 sabs += T * abs(mean)
             F += Fs
-            for q in range(r):
-                nq = self.nH[q]
-                if nq:
-                    g[q] += m1 * nq
-                    scale[q] += sabs * abs(nq)
-                    if want_hess:
-                        Hq = H[q]
-                        for s in range(q + 1):
-                            if self.nH[s]:
-                                Hq[s] += m2 * nq * self.nH[s]
+            for q, nq in self.nH_nz:
+                g[q] += m1 * nq
+                scale[q] += sabs * abs(nq)
+                if want_hess:
+                    for s, ns in self.nH_nz:
+                        if s <= q:
+                            Hf[q * r + s] += m2 * nq * ns
+        H = None
         if want_hess:
+            H = [Hf[q * r:(q + 1) * r] for q in range(r)]
             for q in range(r):
+                Hq = H[q]
                 for s in range(q):
-                    H[s][q] = H[q][s]
+                    H[s][q] = Hq[s]
         return F, g, H, scale
 
 
@@ -539,7 +585,11 @@ def equilibrium(
         structure = _structure(tab, present, open_comp, allow_solids)
         if len(tab._structures) < 256:
             tab._structures[key] = structure
-    species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs, prefer = structure
+    species_on, solids_on, allowed, simple, coupled, cidx = (structure.species_on, structure.solids_on,
+                                                             structure.allowed, structure.simple,
+                                                             structure.coupled, structure.cidx)
+    ladder_of, cpl_species = structure.ladder_of, structure.cpl_species
+    fixed_key = tuple(fixed_species)
     # charge balance: T_H = -sum z_j T_j (open components contribute nothing, see module notes)
     if pH is None:
         totals[0] = -sum(tab.charges[j] * totals[j] for j in range(1, m) if j not in open_comp)
@@ -562,39 +612,26 @@ def equilibrium(
     def solve_at(I, rtol=MASS_RTOL):
         """Solve at ionic strength I with the active-set loop; returns internal state."""
         nonlocal total_iters, active
-        lgc = [gamma_of(tab.charges[j], tab.ion_sizes[j], I) for j in range(m)]
-        lgs = [gamma_of(sp.charge, sp.ion_size_A, I) for sp in tab.species]
-        lnKp = [LN10 * (sp.log10_K + sum(a * lgc[j] for j, a in sp.stoich) - lgs[i])
-                for i, sp in enumerate(tab.species)]
+        lgc, lgs, lnKp = _constants_at(tab, gamma_of, I)
         hc = tab.h_count
         ladders = [[(hc[i], lnKp[i]) for i in ladder_of[j]] for j in simple]
+        lnK_cpl = [lnKp[i] for i in cpl_species]
         seen = set()
         for _round in range(4 * len(tab.solids) + 8):
-            C, d = [], []
+            d = []
             if pH is not None:
-                row = [0.0] * len(coupled)
-                row[0] = 1.0
-                C.append(row)
                 d.append(LN10 * (-pH - lgc[0]))
             for i, conc in fixed_species.items():
-                row = [0.0] * len(coupled)
-                for j, a in tab.species[i].stoich:
-                    row[cidx[j]] = float(a)
-                C.append(row)
                 d.append(math.log(conc) - lnKp[i] if conc > 0 else -700.0)
             for s in active:
-                row = [0.0] * len(coupled)
-                for j, b in tab.solids[s].stoich:
-                    row[cidx[j]] = float(b)
-                C.append(row)
                 d.append(LN10 * (tab.solids[s].log10_Ksp - sum(b * lgc[j] for j, b in tab.solids[s].stoich)))
-            try:
-                prob = _Problem(coupled, cpl_species, lnKp, x_coeffs, ladders, T_simple, T_cpl, C, d, prefer)
-            except _Dependent:
+            sk = structure.skeleton(tab, pH is not None, fixed_key, tuple(active))
+            if sk.dependent:
                 dropped = active.pop()
                 warnings.append(f"{tab.solids[dropped].id} was left out: with the other solids present it "
                                 "would break the phase rule")
                 continue
+            prob = _Problem(sk, lnK_cpl, ladders, T_simple, T_cpl, d)
             y = _start(prob, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp)
             y, its, ok = _newton(prob, y, rtol=rtol)
             total_iters += its
@@ -602,8 +639,8 @@ def equilibrium(
                 y, ok = _coordinate_search(prob, y)
                 if not ok:
                     raise ConvergenceError("the equilibrium search did not converge", field=None)
-            x = [a + sum(n * v for n, v in zip(row, y)) for a, row in zip(prob.x0, prob.N)]
-            st = _assemble(tab, totals, coupled, x, simple, ladder_of, lnKp, lgc, lgs, species_on, open_comp, pH)
+            x = prob.x_of(y)
+            st = _assemble(tab, structure, totals, x, lnKp, open_comp, pH)
             x_state.update((j, v) for j, v in enumerate(st["ln_free"]) if v > -math.inf)
             # amounts of the active solids from the mass balances they close
             amounts = _amounts(tab, active, st["resid"], coupled, open_comp, pH, totals)
@@ -633,8 +670,10 @@ def equilibrium(
         st["lgc"], st["lgs"] = lgc, lgs
         return st
 
+    z2 = tab.z2
+
     def I_of(st):
-        return 0.5 * sum(sp.charge ** 2 * c for sp, c in zip(tab.species, st["conc"]))
+        return 0.5 * sum(a * c for a, c in zip(z2, st["conc"]))
 
     if I_fixed is None and not Imodel_ideal:
         # Substitution, accelerated by secant steps on h(I) = I_computed(I) - I once two points
@@ -742,7 +781,72 @@ def _structure(tab: Tableau, present, open_comp, allow_solids):
     # pivot preference: open components, then other non-H, H+ last
     prefer = [cidx[j] for j in coupled if j in open_comp] + \
              [cidx[j] for j in coupled if j not in open_comp and j != 0] + [0]
-    return species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs, prefer
+    return _Structure(species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs,
+                      prefer, tab)
+
+
+class _Structure:
+    """Which species and solids are on, the simple and coupled components, and the skeleton of
+    each pattern of constraints met so far (cached with the structure on the tableau)."""
+
+    __slots__ = ("species_on", "solids_on", "allowed", "simple", "coupled", "cidx", "ladder_of", "cpl_species",
+                 "x_coeffs", "prefer", "skeletons", "cpl_stoich", "on_stoich", "simple_set")
+
+    def __init__(self, species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs,
+                 prefer, tab):
+        self.species_on, self.solids_on, self.allowed = species_on, solids_on, allowed
+        self.simple, self.coupled, self.cidx, self.ladder_of = simple, coupled, cidx, ladder_of
+        self.cpl_species, self.x_coeffs, self.prefer = cpl_species, x_coeffs, prefer
+        self.simple_set = set(simple)
+        self.skeletons: dict = {}
+        self.cpl_stoich = [(i, tab.species[i].stoich) for i in cpl_species]
+        self.on_stoich = [(i, tab.species[i].stoich) for i, on in enumerate(species_on) if on]
+
+    def skeleton(self, tab, pH_given: bool, fixed: tuple, active: tuple) -> _Skeleton:
+        """The skeleton for this pattern: pH held or not, fixed species, active solids (in order)."""
+        key = (pH_given, fixed, active)
+        sk = self.skeletons.get(key)
+        if sk is None:
+            nc = len(self.coupled)
+            C = []
+            if pH_given:
+                row = [0.0] * nc
+                row[0] = 1.0
+                C.append(row)
+            for i in fixed:
+                row = [0.0] * nc
+                for j, a in tab.species[i].stoich:
+                    row[self.cidx[j]] = float(a)
+                C.append(row)
+            for s in active:
+                row = [0.0] * nc
+                for j, b in tab.solids[s].stoich:
+                    row[self.cidx[j]] = float(b)
+                C.append(row)
+            sk = _Skeleton(nc, C, self.prefer, self.x_coeffs)
+            if len(self.skeletons) < 256:
+                self.skeletons[key] = sk
+        return sk
+
+
+def _constants_at(tab: Tableau, gamma_of, I: float):
+    """log10 gamma of each component and species, and ln K' of each species, at ionic strength I.
+
+    One activity coefficient per distinct (charge, ion size); the last few ionic strengths of
+    each activity function are remembered on the tableau."""
+    cache = tab._constants
+    key = (gamma_of, I)
+    hit = cache.get(key)
+    if hit is not None:
+        return hit
+    lg = [gamma_of(z, a, I) for z, a in tab.gamma_keys]
+    lgc = [lg[k] for k in tab.comp_gkey]
+    lgs = [lg[k] for k in tab.species_gkey]
+    lnKp = [LN10 * (logK + sum(a * lgc[j] for j, a in st) - lgi) for logK, st, lgi in zip(tab.log10_K, tab.stoichs, lgs)]
+    if len(cache) > 16:
+        cache.clear()
+    out = cache[key] = (lgc, lgs, lnKp)
+    return out
 
 
 def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp) -> list[float]:
@@ -765,28 +869,33 @@ def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, l
     return [x_guess[k] for k in prob.free]
 
 
-def _assemble(tab, totals, coupled, x, simple, ladder_of, lnKp, lgc, lgs, species_on, open_comp, pH) -> dict:
+def _assemble(tab, structure, totals, x, lnKp, open_comp, pH) -> dict:
     """Concentrations of every species, free concentrations and balances at the answer."""
     m = len(tab.components)
+    exp = math.exp
     ln_free = [-math.inf] * m
-    for k, j in enumerate(coupled):
+    for k, j in enumerate(structure.coupled):
         ln_free[j] = x[k]
     xH = ln_free[0]
     conc = [0.0] * len(tab.species)
-    for i, sp in enumerate(tab.species):
-        if species_on[i] and all(j not in simple for j, _ in sp.stoich):
-            conc[i] = math.exp(lnKp[i] + sum(a * ln_free[j] for j, a in sp.stoich))
-    for j in simple:
-        idx = ladder_of[j]
-        es = [lnKp[i] + tab.h_count[i] * xH for i in idx]
+    for i, st in structure.cpl_stoich:
+        e = lnKp[i]
+        for j, a in st:
+            e += a * ln_free[j]
+        conc[i] = exp(e)
+    hc = tab.h_count
+    for j in structure.simple:
+        idx = structure.ladder_of[j]
+        es = [lnKp[i] + hc[i] * xH for i in idx]
         top = max(es)
-        lnS = top + math.log(sum(math.exp(e - top) for e in es))
+        lnS = top + math.log(sum(exp(e - top) for e in es))
         ln_free[j] = math.log(totals[j]) - lnS
         for i, e in zip(idx, es):
-            conc[i] = math.exp(math.log(totals[j]) + e - lnS)
+            conc[i] = exp(math.log(totals[j]) + e - lnS)
     held = [0.0] * m
-    for sp, c in zip(tab.species, conc):
-        for j, a in sp.stoich:
+    for i, st in structure.on_stoich:
+        c = conc[i]
+        for j, a in st:
             held[j] += a * c
     resid = list(totals)
     for j in range(m):
