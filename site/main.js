@@ -1,8 +1,11 @@
 // Composition root: start Python, embed the plots, mount the sections, open what the URL names,
 // go offline-capable. The only module that creates views (and so touches the document).
+// The page is a workbench (workbench.js): the water's inputs and headline stay in view, one job
+// at a time beside them. The water is mounted and drawn first; the other jobs after its first
+// result, so the first figures the user waits for come sooner.
 
 import { onBootProgress, sharedPython } from "./py.js";
-import { embedBufferPlot, embedPlots, embedTitrationPlot } from "./plot.js";
+import { embedBufferPlot, embedPlots, embedTitrationPlot, loadTemplates } from "./plot.js";
 import { AboutView, DistributionView, StatusView } from "./view.js";
 import { mountDistribution } from "./distribution.js";
 import { mountWater } from "./water.js";
@@ -16,11 +19,18 @@ import { applyState } from "./state.js";
 import { onPendingChange } from "./section.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
+import { HeadlineView, WaterInputsFold, WorkbenchView, labelTableCells, mirrorWaterState } from "./workbench-view.js";
 
 /** The sections a link, file or example may hold, in the order they are computed. */
 const SECTIONS = ["distribution", "water", "treatment"];
 
 const status = new StatusView(document);
+// The switcher works before Python has started: it only shows and hides sections.
+new WorkbenchView(document);
+new WaterInputsFold(document);
+mirrorWaterState(document);
+labelTableCells(document.querySelector("main"));
+const headline = new HeadlineView(document);
 const about = new AboutView(document);
 onPendingChange((count) => status.setPending(count));
 
@@ -32,11 +42,11 @@ manifest.then((m) => about.render(m?.versions));
 
 const py = sharedPython(); // already started by boot.js
 onBootProgress((step) => status.progress(step));
-const plots = embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });
+const templates = loadTemplates("./plots.json");
 const presetsLoading = loadPresets("./presets.json");
 
 try {
-  const [versions, plotHandles, presets] = await Promise.all([py.ready, plots, presetsLoading]);
+  const [versions, plotTemplates, presets] = await Promise.all([py.ready, templates, presetsLoading]);
   about.render(versions);
   const [waterLibrary, chemicalList] = await Promise.all([
     py.call("systems").catch(() => ({ systems: [], ions: [] })),
@@ -50,25 +60,28 @@ try {
   const opened = opening.state ?? {};
   const messages = [...(opening.notes ?? [])];
 
+  // The water first (its headline is the first thing on screen): mount it and draw what the URL
+  // opened before anything else is mounted.
+  const water = mountWater({
+    py,
+    view: new WaterView(document),
+    plots: await embedWaterPlots(),
+    palette: plotTemplates.palette,
+    systems: waterLibrary.systems,
+    ions: waterLibrary.ions,
+    co2MolarMass: chemicalList.find((c) => c.id === "CO2")?.molar_mass_g_per_mol ?? null,
+  });
+  water.onSolved((_scenario, result) => headline.render(result));
+  messages.push(...(await applyState(opened, ["water"])));
+
+  // Then the jobs on it. The one-acid explorer (distribution.js) is one job among them.
+  const plotHandles = await embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });
   mountDistribution({
     py,
     view: new DistributionView(document),
     plots: plotHandles,
     status,
     systems: library,
-  });
-  // Draw the first result before mounting the rest: it is what the user waits for.
-  messages.push(...(await applyState(opened, ["distribution"])));
-
-  // Section "Equilibrium of a whole water" (water.js); its handle feeds later sections.
-  const water = mountWater({
-    py,
-    view: new WaterView(document),
-    plots: await embedWaterPlots(),
-    palette: plotHandles.palette,
-    systems: waterLibrary.systems,
-    ions: waterLibrary.ions,
-    co2MolarMass: chemicalList.find((c) => c.id === "CO2")?.molar_mass_g_per_mol ?? null,
   });
   // Section "treatment" (treatment.js): titration, buffer intensity and dose, on that water.
   const [titrationPlot, bufferPlot] = await Promise.all([
@@ -83,7 +96,7 @@ try {
     chemicals: chemicalList,
     systems: library,
   });
-  messages.push(...(await applyState(opened, ["water", "treatment"])));
+  messages.push(...(await applyState(opened, ["distribution", "treatment"])));
 
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });
   // Keep and share: says what the URL opened (and what of it was dropped), keeps the link current.

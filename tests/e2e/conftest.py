@@ -10,6 +10,8 @@
   origins are recorded; ``watch.assert_clean()`` checks them.
 - ``settled(page)``: wait until the page has no computation scheduled or running
   (body[data-pending] = "0"), a condition rather than a timeout.
+- ``show_job(page, name)``: bring a job of the workbench into view (its switcher button); one
+  job is shown at a time, the water's inputs and headline always.
 - ``core_handle(method, params_json)``: the core's JSON entry point, as the worker calls it.
 - ``core_scenario(scenario)``: a page scenario with each ion id as the core's library has it
   (word ids, or the formula ids of a core that has not moved to words yet).
@@ -66,6 +68,14 @@ def core_scenario(scenario: dict) -> dict:
 def settled(page, timeout: int = 30_000) -> None:
     """Wait until no computation of the page is scheduled or with the core."""
     page.wait_for_function("() => document.body.dataset.pending === '0'", timeout=timeout)
+
+
+def show_job(page, name: str, timeout: int = 90_000) -> None:
+    """Bring the workbench's job ``name`` into view with its switcher button (site/workbench.js:
+    water, treat, titrate, scale, softening, lead, hardness, batch, explorer), as a user does;
+    inputs of a hidden job cannot be filled or clicked."""
+    page.locator(f"#job-tab-{name}").click(timeout=timeout)
+    page.wait_for_function("(n) => document.body.dataset.job === n", arg=name, timeout=timeout)
 
 sys.path.insert(0, str(REPO / "build_scripts"))
 from serve import make_server  # noqa: E402

@@ -20,6 +20,7 @@ import random
 from pathlib import Path
 
 import pytest
+from conftest import show_job
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary.batch import guess_mapping, run_rows, template_csv
@@ -86,6 +87,7 @@ def test_samples_stream_and_match_the_core(page: Page, watch, tmp_path):
     text = generated()
     page.goto("/")
     expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
+    show_job(page, "batch")
 
     # The template button downloads the accepted columns and an invented example row.
     with page.expect_download() as info:
@@ -113,8 +115,10 @@ def test_samples_stream_and_match_the_core(page: Page, watch, tmp_path):
 
     # While it runs the page answers: the species section still recomputes.
     before = int(page.get_attribute("body", "data-drawn"))
+    show_job(page, "explorer")
     page.fill("#ph-input", "8.8")
     page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=before, timeout=10_000)
+    show_job(page, "batch")
 
     expect(page.locator("#batch-progress")).to_have_attribute("data-state", "finished", timeout=300_000)
     with page.expect_download() as info:

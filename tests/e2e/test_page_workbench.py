@@ -25,7 +25,7 @@ import re
 from pathlib import Path
 
 import pytest
-from conftest import AXE, core_handle, core_scenario, settled
+from conftest import AXE, core_handle, core_scenario, settled, show_job
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -203,6 +203,7 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
     for block in ("titration", "buffer", "dose"):
         expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "stale")
     # a treatment input changed meanwhile: its new figures are still for the old water, so stale
+    show_job(page, "treat")
     page.select_option("#dose-chemical", "Ca(OH)2")
     page.fill("#dose-target-ph", "8,4")
     settled(page)
@@ -229,6 +230,7 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
     assert math.isclose(value(page, "#dose-result-mg"), want["dose_mg_per_L"], rel_tol=1e-9)
 
     # The species section: a bad pH marks its table and plots; "6,5" is read as 6.5.
+    show_job(page, "explorer")
     page.fill("#ph-input", "six")
     settled(page)
     expect(page.locator("#distribution-results")).to_have_attribute("data-state", "stale")
@@ -278,6 +280,7 @@ def test_one_alkalinity_one_free_co2_strong_ions_in_mass_units_and_plain_feeds(p
         assert cell.inner_text() != "—"
 
     # Plant quantities: plain grouped numbers (this example feeds lime at 18,000 m3/d).
+    show_job(page, "treat")
     page.fill("#dose-strength", "90")
     settled(page)
     feed = page.locator("#dose-feed-kg-per-d").inner_text()

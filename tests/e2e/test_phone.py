@@ -4,7 +4,7 @@ a label, and the scenario controls work from the keyboard."""
 from __future__ import annotations
 
 import pytest
-from conftest import settled
+from conftest import settled, show_job
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
@@ -17,6 +17,7 @@ def test_phone_width_has_no_horizontal_overflow_and_inputs_are_labelled(page: Pa
     page.goto("/#preset=orthophosphate-dose")
     expect(page.locator("body")).to_have_attribute("data-share-ready", "true", timeout=BOOT_MS)
     page.click(".share-exports summary")
+    show_job(page, "batch")
     page.fill("#batch-text", "Sample,pH,Temp C,Alk\nA,7.2,12,80\n")
     page.click("#batch-read")
     expect(page.locator("#batch-mapping")).to_be_visible()

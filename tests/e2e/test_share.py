@@ -13,7 +13,7 @@ import math
 from pathlib import Path
 
 import pytest
-from conftest import ION_WORDS, core_scenario, settled
+from conftest import ION_WORDS, core_scenario, settled, show_job
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -80,6 +80,7 @@ def test_each_example_opens_from_the_menu_and_as_a_link_and_matches_the_core(pag
 def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, watch):
     open_at(page, "preset=hatchery-tank")
     water_ph(page, api.solve(core_scenario(PRESETS[-1]["state"]["water"]["scenario"]))["pH"])
+    show_job(page, "explorer")
     page.fill("#ph-input", "6.85")
     page.wait_for_function("""() => {
         if (!location.hash.startsWith('#s=2.')) return false;
@@ -191,6 +192,7 @@ def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     state = json.loads(saved.read_text())
     # The water section writes an empty list where the example leaves a key out.
     assert as_words({k: v for k, v in state["water"]["scenario"].items() if v != []}) == PRESETS[1]["state"]["water"]["scenario"]
+    show_job(page, "explorer")
     page.fill("#ph-input", "3.3")
     before = opened(page)
     page.set_input_files("#load-json", str(saved))

@@ -27,6 +27,7 @@ import threading
 from pathlib import Path
 
 import pytest
+from conftest import show_job
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
@@ -118,6 +119,7 @@ def test_new_build_shows_notice_keeps_old_copy_and_reload_takes_it(page: Page, c
     expect(page).to_have_title("Acidscape")
     assert cache_keys(page) == set(old.values()) | set(new.values())
     drawn = int(page.get_attribute("body", "data-drawn"))
+    show_job(page, "explorer")
     page.fill("#ph-input", "8.3")
     page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=drawn)
     # The new worker fetched the changed page files only.
