@@ -66,6 +66,27 @@ class IonInput:
     ion_size_A: float | None = None
 
 
+#: reactant name -> (its library key, the key of the system whose base it is, or None); the
+#: library is read once and never changes, so each name is resolved once per process.
+_RESOLVED: dict[str, tuple] = {}
+
+
+def _resolved(ref: str) -> tuple:
+    """(key, alternative key) of a reactant name of complexes.csv / solids.csv (see
+    :func:`acidscape.data.library.resolve_ref`): the alternative is the acid-base system an ion
+    is the base of, used when the water holds that system rather than the ion."""
+    hit = _RESOLVED.get(ref)
+    if hit is None:
+        key = library.resolve_ref(ref)
+        alt = None
+        if key[0] == "ion":
+            ion = library.get_ion(key[1])
+            if getattr(ion, "system", None):
+                alt = ("system", ion.system, 0)
+        hit = _RESOLVED[ref] = (key, alt)
+    return hit
+
+
 def _cumulative(pKa: tuple[float, ...], p: int) -> float:
     """log10 K forming the species with p protons from the base: the sum of the last p pKa."""
     return sum(pKa[len(pKa) - p:]) if p else 0.0
@@ -178,14 +199,13 @@ class WaterModel:
         """
         acc: dict[int, int] = {}
         shift = 0.0
+        ref_logK = self._ref_logK
         for ref, coef in reactants:
-            key = library.resolve_ref(ref)
-            if key[0] == "ion" and key not in self._ref_logK:
+            key, alt = _resolved(ref)
+            found = ref_logK.get(key)
+            if found is None and alt is not None:
                 # an ion that is an acid-base system's base (sulfate) is that system's component
-                ion = library.get_ion(key[1])
-                if getattr(ion, "system", None):
-                    key = ("system", ion.system, 0)
-            found = self._ref_logK.get(key)
+                found = ref_logK.get(alt)
             if found is None:
                 return None
             stoich, logK = found
