@@ -19,6 +19,11 @@ import { applyState } from "./state.js";
 import { onPendingChange } from "./section.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
+import { embedConditionalConstantPlot, embedEdtaTitrationPlot, embedMetalSolubilityPlot } from "./plot.js";
+import { mountLead } from "./lead.js";
+import { LeadView } from "./lead-view.js";
+import { mountHardness } from "./hardness.js";
+import { HardnessView } from "./hardness-view.js";
 import { HeadlineView, WaterInputsFold, WorkbenchView, labelTableCells, mirrorWaterState } from "./workbench-view.js";
 
 /** The sections a link, file or example may hold, in the order they are computed. */
@@ -96,6 +101,17 @@ try {
     chemicals: chemicalList,
     systems: library,
   });
+  // Jobs "Lead and copper" and "Hardness titration" (lead.js, hardness.js), on that water; each
+  // computes when its job is shown.
+  const leadView = new LeadView(document);
+  const hardnessView = new HardnessView(document);
+  const [leadPlot, edtaPlot, conditionalPlot] = await Promise.all([
+    embedMetalSolubilityPlot("plot-lead"),
+    embedEdtaTitrationPlot("plot-edta"),
+    embedConditionalConstantPlot("plot-edta-conditional"),
+  ]);
+  mountLead({ py, view: leadView, plot: leadPlot, water });
+  mountHardness({ py, view: hardnessView, plots: { titration: edtaPlot, conditional: conditionalPlot }, water });
   messages.push(...(await applyState(opened, ["distribution", "treatment"])));
 
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });

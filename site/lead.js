@@ -1,0 +1,236 @@
+// Job "Lead and copper": dissolved lead and copper in equilibrium with their least soluble
+// solids, against pH (at the water's DIC and orthophosphate) or against DIC or orthophosphate
+// at a fixed pH, with an orthophosphate dose added to the water's own. The water comes from the
+// water section's handle ({scenario(), onSolved(cb), onStale(cb)}), as for treatment.js; the job
+// computes only while it is shown (workbench.js) and through one section.js computation.
+
+import { CoreError } from "./py.js";
+import { parseNumber } from "./parse.js";
+import { fixed } from "./format.js";
+import { computation } from "./section.js";
+import { isJobShown, onJobShown } from "./workbench.js";
+
+const DEBOUNCE_MS = 160;
+/** Points of each curve (the core's speed target is a 200-point lead curve). */
+export const LEAD_POINTS = 201;
+/** Each axis: default range, the unit sent to the core, the words shown. */
+export const LEAD_AXES = {
+  pH: { from: "6.5", to: "10.5", unit: null, words: "pH", digits: 2 },
+  DIC: { from: "1", to: "100", unit: "mg/L as C", words: "mg/L as C", digits: 1 },
+  orthophosphate: { from: "0", to: "3", unit: "mg/L as P", words: "mg/L as P", digits: 2 },
+};
+const METAL_LABEL = { lead: "Lead", copper: "Copper" };
+/** Rows of the table: this many points spread evenly along the curve. */
+const TABLE_ROWS = 9;
+
+// Core error fields -> input ids.
+const FIELDS = { from: "lead-from", to: "lead-to", fixed_pH: "lead-fixed-ph", orthophosphate_dose: "lead-dose",
+  axis: "lead-axis" };
+const LABEL = { from: "From", to: "To", fixed_pH: "Fixed pH", orthophosphate_dose: "Orthophosphate dose" };
+
+/**
+ * @param {object} deps
+ * @param {{call: (method: string, params?: object) => Promise<any>}} deps.py  the core
+ * @param {import("./lead-view.js").LeadView} deps.view  its DOM
+ * @param {object} deps.plot  from embedMetalSolubilityPlot
+ * @param {{scenario: () => object|null, onSolved: Function, onStale?: Function}} deps.water  the water's handle
+ * @returns {{refresh: () => Promise<void>}}
+ */
+export function mountLead({ py, view, plot, water }) {
+  let current = { scenario: water.scenario?.() ?? null, result: null };
+  let waterNote = "";
+  let owed = true; // a computation was put off while the job was hidden
+  let drawn = false;
+
+  function read() {
+    const raw = view.read();
+    const axis = raw["lead-axis"];
+    const spec = LEAD_AXES[axis];
+    const errors = {};
+    const what = axis === "pH" ? "a pH, e.g. 6.5" : `a value in ${spec.words}`;
+    const from = parseNumber(raw["lead-from"], what);
+    const to = parseNumber(raw["lead-to"], what);
+    if (from.error) errors["lead-from"] = from.error;
+    if (to.error) errors["lead-to"] = to.error;
+    const inPH = (v) => v >= 0 && v <= 14;
+    if (!from.error && !to.error) {
+      if (axis === "pH") {
+        if (!inPH(from.value)) errors["lead-from"] = "The pH must be between 0 and 14.";
+        if (!inPH(to.value)) errors["lead-to"] = "The pH must be between 0 and 14.";
+      } else {
+        if (from.value < 0) errors["lead-from"] = `Enter 0 ${spec.words} or more.`;
+        if (to.value < 0) errors["lead-to"] = `Enter 0 ${spec.words} or more.`;
+      }
+      if (!errors["lead-from"] && !errors["lead-to"] && !(to.value > from.value)) {
+        errors["lead-to"] = "The end of the range must be above its start.";
+      }
+    }
+    // on an orthophosphate axis the axis is the total orthophosphate: no dose is added
+    const dose = axis === "orthophosphate" ? { value: null }
+      : parseNumber(raw["lead-dose"], "the orthophosphate dose in mg/L as P, e.g. 1 (0 for none)");
+    if (dose.error) errors["lead-dose"] = dose.error;
+    else if (dose.value !== null && dose.value < 0) errors["lead-dose"] = "The dose cannot be negative (0 for none).";
+    let fixedPH = null;
+    if (axis !== "pH") {
+      const f = parseNumber(raw["lead-fixed-ph"], "a pH, or leave it empty for the water's pH", { optional: true });
+      if (f.error) errors["lead-fixed-ph"] = f.error;
+      else if (f.value !== null && !inPH(f.value)) errors["lead-fixed-ph"] = "The pH must be between 0 and 14.";
+      else fixedPH = f.value;
+    }
+    if (Object.keys(errors).length || !current.scenario) return { params: null, errors };
+    const params = {
+      scenario: current.scenario, axis, from: from.value, to: to.value, points: LEAD_POINTS,
+    };
+    if (dose.value !== null) {
+      params.orthophosphate_dose = dose.value;
+      params.orthophosphate_dose_unit = "mg/L as P";
+    }
+    if (spec.unit) params.unit = spec.unit;
+    if (fixedPH !== null) params.fixed_pH = fixedPH;
+    return { params, errors };
+  }
+
+  function explain(error) {
+    if (!(error instanceof CoreError)) return { block: String(error?.message || error) };
+    const id = FIELDS[error.field];
+    const label = LABEL[error.field];
+    const text = label && error.message.startsWith(error.field) ? label + error.message.slice(error.field.length) : error.message;
+    if (id) return { [id]: text };
+    const about = error.field && error.field !== "scenario" ? ` (${error.field})` : "";
+    return { block: `Lead and copper: the water above could not be used${about}: ${text}` };
+  }
+
+  /** The water's value on the axis, in the axis unit, from the core's own conversion (x / axis_M). */
+  function markerAt(result, axis) {
+    if (axis === "pH") return current.result?.pH ?? null;
+    const system = axis === "DIC" ? "carbonate" : "phosphate";
+    const own = (current.result?.systems || []).find((s) => s.id === system)?.total_M ?? 0;
+    const ref = result.points.find((p) => p.axis_M > 0);
+    if (!ref) return null;
+    return (own * ref.x) / ref.axis_M;
+  }
+
+  function render([lead, copper], params) {
+    view.showErrors({});
+    const spec = LEAD_AXES[params.axis];
+    const names = new Map();
+    for (const r of [lead, copper]) for (const c of r.constants) names.set(c.id, c.name);
+    const nameOf = (id) => (id ? names.get(id) ?? id : null);
+    const series = [lead, copper].map((r) => ({
+      metal: r.metal,
+      label: METAL_LABEL[r.metal],
+      points: r.points.map((p) => ({
+        x: p.x, y: p.dissolved_ug_per_L, solid: nameOf(p.controlling_solid),
+        low: p.band_ug_per_L?.low ?? null, high: p.band_ug_per_L?.high ?? null,
+      })),
+    }));
+    const axisLabel = params.axis === "pH" ? "pH" : `${params.axis === "DIC" ? "DIC" : "orthophosphate"} (${spec.words})`;
+    plot.setCurves(series, axisLabel, markerAt(lead, params.axis));
+    const n = lead.points.length;
+    const picks = [...new Set(Array.from({ length: Math.min(TABLE_ROWS, n) },
+      (_, k) => Math.round((k * (n - 1)) / Math.max(1, Math.min(TABLE_ROWS, n) - 1))))];
+    const metalRow = (p) => ({
+      ug: p.dissolved_ug_per_L, solid: nameOf(p.controlling_solid),
+      low: p.band_ug_per_L?.low ?? null, high: p.band_ug_per_L?.high ?? null,
+    });
+    const rows = picks.map((i) => ({ x: lead.points[i].x, digits: spec.digits, lead: metalRow(lead.points[i]),
+      copper: metalRow(copper.points[i]) }));
+    const at = params.axis === "pH" ? "at the water's DIC and orthophosphate" : `at pH ${fixed(lead.fixed_pH, 2)}`;
+    view.renderTable(axisLabel, `Dissolved lead and copper ${at} (${fixed(lead.temperature_C, 1)} °C)`, rows);
+    const constants = [lead, copper].flatMap((r) => r.constants.map((c) => ({
+      id: c.id, name: c.name, kind: c.kind, reaction: c.reaction, logK: c.log10_K_25C, spread: c.log10_K_spread,
+      source: c.source, provenance: c.provenance, metal: METAL_LABEL[r.metal].toLowerCase(),
+    })));
+    view.renderConstants(constants);
+    const warnings = [...new Set([...lead.warnings, ...copper.warnings])];
+    view.setWarnings(warnings);
+    view.setCautions(lead.cautions ?? []);
+    drawn = true;
+    if (waterNote) view.setResultState("stale", waterNote);
+    else view.setResultState("current");
+    view.markDrawn();
+  }
+
+  const block = computation({
+    read,
+    call: (params) => Promise.all([
+      py.call("solubility", { ...params, metal: "lead" }),
+      py.call("solubility", { ...params, metal: "copper" }),
+    ]),
+    render,
+    explain,
+    show(messages) {
+      view.showErrors(messages);
+      // no figure beside a question that cannot be answered as asked
+      drawn = false;
+      plot.setCurves([], view.read()["lead-axis"] === "pH" ? "pH" : "", null);
+      view.clear();
+      view.setResultState("empty");
+    },
+    busy: (flag) => view.setBusy(flag),
+  });
+
+  function run(delay = 0) {
+    if (!isJobShown("lead")) {
+      owed = true;
+      return;
+    }
+    owed = false;
+    if (delay) block.schedule(delay);
+    else block.run();
+  }
+
+  function describe(result) {
+    if (!result) return "Describe the water above; this job works on it.";
+    const sys = (id) => (result.systems || []).find((s) => s.id === id)?.total_M ?? 0;
+    const mmol = (v) => (v > 0 ? `${Number((v * 1e3).toPrecision(4))} mmol/L` : "none");
+    return `Working on the water above: pH ${fixed(result.pH, 2)}, DIC ${mmol(sys("carbonate"))}, ` +
+      `orthophosphate ${mmol(sys("phosphate"))} before any dose, ${fixed(result.temperature_C, 1)} °C.`;
+  }
+
+  water.onSolved((scenario, result) => {
+    current = { scenario, result };
+    waterNote = "";
+    view.setWater(describe(result));
+    run();
+  });
+  water.onStale?.((note, result) => {
+    waterNote = result
+      ? `Not updated: the water above has an input that cannot be used. These curves are for the last valid water (pH ${fixed(result.pH, 2)}).`
+      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    view.setWater(waterNote, true);
+    block.cancel();
+    if (drawn) view.setResultState("stale", waterNote);
+  });
+  view.bindChange((id) => {
+    if (id === "lead-axis") {
+      const spec = LEAD_AXES[view.read()["lead-axis"]];
+      view.write("lead-from", spec.from);
+      view.write("lead-to", spec.to);
+      view.setAxis(view.read()["lead-axis"], spec.words);
+    }
+    run(view.isChoice(id) ? 0 : DEBOUNCE_MS);
+  });
+  onJobShown("lead", () => {
+    if (owed) run();
+  });
+
+  view.setAxis("pH", LEAD_AXES.pH.words);
+  view.setWater(describe(null));
+  // Mounted after the water's first result: ask for that water's figures once (a later solve wins).
+  const initial = current.scenario;
+  if (initial) {
+    py.call("solve", initial).then((result) => {
+      if (current.result || current.scenario !== initial) return;
+      current = { scenario: initial, result };
+      view.setWater(describe(result));
+      run();
+    }).catch(() => {}); // the water section shows its own failure
+  }
+  return {
+    async refresh() {
+      if (isJobShown("lead")) await block.run();
+      else owed = true;
+    },
+  };
+}
