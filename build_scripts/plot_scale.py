@@ -33,11 +33,12 @@ BAND = PALETTE[9]   # cyan, translucent
 POINT = PALETTE[1]  # amber
 
 
-def _zero(p, x: float, above: str, below: str) -> None:
+def _zero(p, above: str, below: str) -> None:
+    """A dotted line at zero, named above and below at the left edge of the frame."""
     p.add_layout(Span(location=0.0, dimension="width", line_color=_MARKER, line_dash=[2, 3], line_width=1.4))
     for text, y_offset, baseline in ((above, 4, "bottom"), (below, -4, "top")):
-        p.add_layout(Label(x=x, y=0.0, text=text, text_font=_FONT, text_font_size="11px", text_color=_MARKER,
-                           y_offset=y_offset, text_baseline=baseline))
+        p.add_layout(Label(x=8, x_units="screen", y=0.0, text=text, text_font=_FONT, text_font_size="11px",
+                           text_color=_MARKER, y_offset=y_offset, text_baseline=baseline))
 
 
 def _strip_pan(p) -> None:
@@ -57,7 +58,7 @@ def saturation_plot():
     water = ColumnDataSource(data={"pH": [], "LSI": [], "label": []}, name="scale_si_water_src")
     dot = p.scatter("pH", "LSI", source=water, size=11, marker="diamond", fill_color=POINT, line_color=_INK,
                     line_width=1.0)
-    _zero(p, 6.05, "deposits calcium carbonate", "dissolves calcium carbonate")
+    _zero(p, "deposits calcium carbonate", "dissolves calcium carbonate")
     p.add_tools(HoverTool(renderers=[line], mode="vline",
                           tooltips=[("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}"), ("range", "@low{+0.00} to @high{+0.00}")]))
     p.add_tools(HoverTool(renderers=[dot], tooltips=[("", "@label"), ("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}")]))
@@ -77,7 +78,7 @@ def ccpp_plot():
     pts = ColumnDataSource(data={"t": [], "ccpp": [], "label": []}, name="scale_ccpp_pts_src")
     dots = p.scatter("t", "ccpp", source=pts, size=11, marker="diamond", fill_color=POINT, line_color=_INK,
                      line_width=1.0)
-    _zero(p, 2, "can deposit", "would dissolve")
+    _zero(p, "can deposit", "would dissolve")
     p.add_tools(HoverTool(renderers=[line], mode="vline",
                           tooltips=[("°C", "@t{0.0}"), ("CCPP", "@ccpp{+0.0} mg/L as CaCO₃"),
                                     ("range", "@low{+0.0} to @high{+0.0}")]))

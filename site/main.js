@@ -24,6 +24,11 @@ import { mountLead } from "./lead.js";
 import { LeadView } from "./lead-view.js";
 import { mountHardness } from "./hardness.js";
 import { HardnessView } from "./hardness-view.js";
+import { embedScalePlots } from "./plot.js";
+import { mountScale } from "./scale.js";
+import { ScaleView } from "./scale-view.js";
+import { mountSoftening } from "./softening.js";
+import { SofteningView } from "./softening-view.js";
 import { HeadlineView, WaterInputsFold, WorkbenchView, labelTableCells, mirrorWaterState } from "./workbench-view.js";
 
 /** The sections a link, file or example may hold, in the order they are computed. */
@@ -112,6 +117,11 @@ try {
   ]);
   mountLead({ py, view: leadView, plot: leadPlot, water });
   mountHardness({ py, view: hardnessView, plots: { titration: edtaPlot, conditional: conditionalPlot }, water });
+  // Jobs "Scale and corrosion" and "Softening" (scale.js, softening.js), on that water; each
+  // computes when its job is shown.
+  const scaleView = new ScaleView(document);
+  mountScale({ py, view: scaleView, plots: await embedScalePlots("plot-scale-si", "plot-scale-ccpp"), water, chemicals: chemicalList });
+  mountSoftening({ py, view: new SofteningView(document), water });
   messages.push(...(await applyState(opened, ["distribution", "treatment"])));
 
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });

@@ -43,7 +43,7 @@ def test_sm2320_relationship_table(P, T, expected):
 
 
 def test_sm2320_table_refuses_P_above_T():
-    with pytest.raises(InputError, match="exceeds T"):
+    with pytest.raises(InputError, match="cannot exceed the total alkalinity"):
         sm2320_split(60.0, 50.0)
 
 

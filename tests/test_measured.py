@@ -68,11 +68,11 @@ def test_units_agree():
 
 
 @pytest.mark.parametrize("measured,field,words", [
-    ({"pH": 7.5, "alkalinity": {"value": 120}}, "measured.alkalinity.unit", "measured.alkalinity.unit"),
+    ({"pH": 7.5, "alkalinity": {"value": 120}}, "measured.alkalinity.unit", "Choose the alkalinity unit"),
     ({"pH": 7.5, "alkalinity": {"value": 120, "unit": "mg/L"}}, "measured.alkalinity.unit", "mg/L as CaCO3"),
-    ({"pH": 7.5, "alkalinity": 120}, "measured.alkalinity", "object"),
-    ({"alkalinity": {"value": 1, "unit": "meq/L"}}, "measured.pH", "required"),
-    ({"pH": 11.5, "alkalinity": {"value": 0.5, "unit": "meq/L"}}, "measured.alkalinity.value", "inconsistent"),
+    ({"pH": 7.5, "alkalinity": 120}, "measured.alkalinity", "Enter the measured alkalinity and its unit"),
+    ({"alkalinity": {"value": 1, "unit": "meq/L"}}, "measured.pH", "Enter the measured pH"),
+    ({"pH": 11.5, "alkalinity": {"value": 0.5, "unit": "meq/L"}}, "measured.alkalinity.value", "too low for a measured pH"),
     ({"pH": 4.2, "alkalinity": {"value": 0.5, "unit": "meq/L"}}, "measured.pH", "end point"),
 ])
 def test_bad_measured_input(measured, field, words):

@@ -134,7 +134,7 @@ def test_bad_pKa_is_refused_naming_the_field(pKa, field):
 
 
 def test_bad_pH_is_refused():
-    with pytest.raises(InputError, match="pH must be a number, got 'seven'"):
+    with pytest.raises(InputError, match="The pH must be a number"):
         alpha_fractions("seven", [4.0])
-    with pytest.raises(InputError, match="outside the accepted range"):
+    with pytest.raises(InputError, match="must be from -5 to 20"):
         alpha_fractions(1e9, [4.0])

@@ -221,8 +221,8 @@ def test_cli_titrate_bad_input(tmp_path):
     r = run_cli("titrate", str(f), "--titrant", "HCl", "--to-pH", "9")
     assert r.returncode == 2
     assert "error [to_pH]" in r.stderr and "acid" in r.stderr
-    r = run_cli("titrate", str(f), "--titrant", "NaOCl")
-    assert r.returncode == 2 and "error [titrant]" in r.stderr and "not a known chemical" in r.stderr
+    r = run_cli("titrate", str(f), "--titrant", "KOH")
+    assert r.returncode == 2 and "error [titrant]" in r.stderr and "is not offered" in r.stderr
 
 
 def test_co2_curve_stops_at_saturation_under_one_atmosphere():
@@ -235,7 +235,7 @@ def test_co2_curve_stops_at_saturation_under_one_atmosphere():
     expected = 6.352 + math.log10(2e-3 / 10**-1.468)
     assert out["to_pH"] == pytest.approx(expected, abs=0.01)
     assert any("1 atm" in w for w in out["warnings"])
-    with pytest.raises(UnreachableError, match="saturated with CO2"):
+    with pytest.raises(UnreachableError, match="saturated with CO₂"):
         curve(sc, "CO2", points=30, to_pH=4.0)
 
 

@@ -146,11 +146,11 @@ def test_table_matches_the_core_for_a_library_acid_and_for_own_values(page: Page
     [
         ("#ph-input", "seven", "not a number"),
         ("#total-input", "", "Enter the total concentration"),
-        ("#total-input", "-0.001", "below the allowed minimum"),
-        ("#pka-input", ", ".join(f"{1 + 0.2 * i:.1f}" for i in range(50)), "50 values"),
+        ("#total-input", "-0.001", "must be from 0 to 5 mol/L"),
+        ("#pka-input", ", ".join(f"{1 + 0.2 * i:.1f}" for i in range(50)), "50 pKa values"),
         ("#pka-input", "4.76, abc", "not a number"),
         ("#charge-input", "1.5", "whole number"),
-        ("#pka-input", "9, 3", "increasing order"),
+        ("#pka-input", "9, 3", "must rise from step to step"),
     ],
 )
 def test_bad_input_is_explained_beside_its_field_and_the_last_result_stays(page: Page, watch, selector, text, needle):

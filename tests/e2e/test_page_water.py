@@ -218,21 +218,21 @@ def test_measured_ph_and_alkalinity_and_a_fixed_ph(page: Page, watch):
 
 # (how to make the bad input, input whose message shows it, words the message must hold)
 BAD = [
-    (lambda p: p.fill("#water-system-0-total", "-1"), "#water-system-0-total", "negative"),
+    (lambda p: p.fill("#water-system-0-total", "-1"), "#water-system-0-total", "must be zero or more"),
     (lambda p: p.fill("#water-system-0-total", "two"), "#water-system-0-total", "not a number"),
     (lambda p: p.fill("#water-ion-1-total", ""), "#water-ion-1-total", "Enter the concentration"),
-    (lambda p: p.fill("#water-temperature", "120"), "#water-temperature", "above the allowed maximum 100"),
-    (lambda p: p.fill("#water-pco2", "-0.1"), "#water-pco2", "below the allowed minimum"),
+    (lambda p: p.fill("#water-temperature", "120"), "#water-temperature", "must be from 0 to 100 °C"),
+    (lambda p: p.fill("#water-pco2", "-0.1"), "#water-pco2", "must be from 0 to 10 atm"),
     # A system the library does not have (as an old share link might carry).
     (lambda p: p.evaluate("""() => { const s = document.querySelector('#water-system-0-id');
         s.add(new Option('gone', 'unobtainium')); s.value = 'unobtainium';
         s.dispatchEvent(new Event('change', {bubbles: true})); }"""),
-     "#water-system-0-id", "system id 'unobtainium'"),
+     "#water-system-0-id", "acid-base system “unobtainium”"),
     # A unit that does not fit the system (meq/L is for strong ions only).
     (lambda p: p.evaluate("""() => { const s = document.querySelector('#water-system-0-unit');
         s.add(new Option('meq/L', 'meq/L')); s.value = 'meq/L';
         s.dispatchEvent(new Event('change', {bubbles: true})); }"""),
-     "#water-system-0-unit", "does not fit"),
+     "#water-system-0-unit", "strong ions only"),
 ]
 
 
@@ -264,5 +264,5 @@ def test_bad_input_is_explained_beside_its_field_and_the_last_result_stays(page:
     page.click("#water-add-system")
     page.check("#water-measured")
     page.fill("#water-system-1-total", "-2")
-    expect(page.locator("#water-system-1-total-error")).to_contain_text("negative", timeout=10_000)
+    expect(page.locator("#water-system-1-total-error")).to_contain_text("must be zero or more", timeout=10_000)
     expect(page.locator("#water-system-0-total-error")).to_be_empty()

@@ -211,7 +211,7 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
 
     # A core refusal (out of range) is marked the same way.
     page.fill("#water-temperature", "150")
-    expect(page.locator("#water-temperature-error")).to_contain_text("above the allowed maximum")
+    expect(page.locator("#water-temperature-error")).to_contain_text("must be from 0 to 100 °C")
     settled(page)
     expect(results).to_have_attribute("data-state", "stale")
 

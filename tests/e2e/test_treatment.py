@@ -142,10 +142,11 @@ def test_bad_dose_inputs_show_messages_beside_their_fields(page: Page, watch):
     page.select_option("#dose-chemical", "NaOH")
     page.fill("#dose-target-ph", "8")
     page.fill("#dose-strength", "150")
-    expect(page.locator("#dose-strength-error")).to_contain_text("Product strength = 150", timeout=15_000)
+    expect(page.locator("#dose-strength-error")).to_contain_text("strength of the product must be above 0 and at most 100% (you entered 150%)",
+                                                               timeout=15_000)
     page.fill("#dose-strength", "50")
     page.fill("#dose-flow", "-3")
-    expect(page.locator("#dose-flow-error")).to_contain_text("negative", timeout=15_000)
+    expect(page.locator("#dose-flow-error")).to_contain_text("must be from 0 to", timeout=15_000)
     assert value(page, "#dose-feed-kg-per-d") == ""
     page.fill("#dose-flow", "abc")
     expect(page.locator("#dose-flow-error")).to_contain_text('"abc" is not a number')

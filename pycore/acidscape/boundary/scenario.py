@@ -38,7 +38,8 @@ from ..data import library
 from ..science import temperature
 from ..science import purewater
 from ..constants import T0
-from ..checks import number
+from ..checks import PH_RANGE, TEMPERATURE_RANGE_C, describe, fmt, number, sentence, shown
+from ..checks import MAX_TOTAL_M as _MAX_TOTAL_M
 from ..errors import InputError, UnknownIdError
 from ..science.tableau import IonInput as Ion, SystemInput as Component
 from ..science.speciation import MAX_STEPS, _check_pKa, generic_species_names
@@ -48,8 +49,8 @@ from ..data.units import to_molar
 MAX_SYSTEMS = 40
 #: At most this many strong ions in one water.
 MAX_IONS = 40
-#: Largest total accepted for one system or ion [mol/L].
-MAX_TOTAL_M = 5.0
+#: Largest total accepted for one system or ion [mol/L] (the one limit in acidscape.checks).
+MAX_TOTAL_M = _MAX_TOTAL_M
 
 KNOWN_KEYS = {
     "temperature_C", "activity", "ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm",
@@ -113,7 +114,7 @@ def _num(value, field_name: str, *, lo=None, hi=None) -> float:
 
 def _text(value, field_name: str, max_len: int = 80) -> str:
     if not isinstance(value, str) or not value.strip():
-        raise InputError(f"{field_name} must be non-empty text, got {value!r}", field=field_name)
+        raise InputError(sentence(f"Enter {describe(field_name)} as text."), field=field_name)
     return value.strip()[:max_len]
 
 
@@ -122,21 +123,27 @@ def _entry_list(scenario: dict, key: str, limit: int) -> list:
     if entries is None:
         return []
     if not isinstance(entries, list):
-        raise InputError(f"{key} must be a list, got {type(entries).__name__}", field=key)
+        raise InputError(sentence(f"{describe(key)} must be a list of rows."), field=key)
     if len(entries) > limit:
-        raise InputError(f"{key} holds {len(entries)} entries; at most {limit} are allowed", field=key)
+        raise InputError(sentence(f"{describe(key)} holds {len(entries)} rows; at most {limit} are allowed. "
+                                  "Remove some rows."), field=key)
     for i, e in enumerate(entries):
         if not isinstance(e, dict):
-            raise InputError(f"{key}[{i}] must be an object, got {e!r}", field=f"{key}[{i}]")
+            raise InputError(sentence(f"{describe(f'{key}[{i}]')} must be a row with a choice and an amount."),
+                             field=f"{key}[{i}]")
     return entries
 
 
 def _total(entry: dict, unit, item, path: str) -> float:
     """The entry's total in mol/L: a number, not negative, within MAX_TOTAL_M."""
-    total = to_molar(entry.get("total", 0.0), unit, item, f"{path}.total")
+    raw = entry.get("total", 0.0)
+    total = to_molar(raw, unit, item, f"{path}.total")
     if total > MAX_TOTAL_M:
-        raise InputError(f"{path}.total = {total:g} mol/L is above the {MAX_TOTAL_M:g} mol/L this model accepts",
-                         field=f"{path}.total")
+        name = getattr(item, "name", None) or describe(path)
+        in_unit = f"{fmt(MAX_TOTAL_M * float(raw) / total)} {unit} = " if isinstance(unit, str) and unit != "mol/L" else ""
+        raise InputError(f"The amount of {name} must be at most {in_unit}{fmt(MAX_TOTAL_M)} mol/L "
+                         f"(you entered {fmt(float(raw))} {unit}); no water holds more, and the activity models "
+                         "end well below.", field=f"{path}.total")
     return total
 
 
@@ -144,8 +151,8 @@ def _lookup(getter, key, path: str, what: str, field: str | None = None):
     """A library entry by id, with errors naming ``field`` (default ``<path>.id``)."""
     field = field or f"{path}.id"
     if not isinstance(key, str):
-        hint = f" or give {path}.custom" if field.endswith(".id") else ""
-        raise InputError(f"{field} must be {what} (text){hint}", field=field)
+        what = describe(path if field.endswith(".id") else field)
+        raise InputError(f"Choose {what} from the list.", field=field)
     try:
         return getter(key)
     except UnknownIdError as exc:
@@ -157,7 +164,7 @@ def _custom(entry: dict, path: str, default_name: str) -> tuple[dict, str]:
     """The ``custom`` object of an entry and its name."""
     c = entry["custom"]
     if not isinstance(c, dict):
-        raise InputError(f"{path}.custom must be an object", field=f"{path}.custom")
+        raise InputError(sentence(f"{describe(path)} needs a name and its values."), field=f"{path}.custom")
     return c, _text(c.get("name", default_name), f"{path}.custom.name")
 
 
@@ -174,15 +181,16 @@ def _read_system(entry: dict, i: int, T: float, warnings: list[str]):
         c, name = _custom(entry, path, "custom acid")
         pKa_raw = c.get("pKa")
         if not isinstance(pKa_raw, list):
-            raise InputError(f"{path}.custom.pKa must be a list of 1 to {MAX_STEPS} numbers, got {pKa_raw!r}",
+            raise InputError(f"Enter 1 to {MAX_STEPS} pKa values for {name}, such as 2.15; 7.20; 12.35.",
                              field=f"{path}.custom.pKa")
         pKa = _check_pKa(pKa_raw, f"{path}.custom.pKa")
         if any(b < a for a, b in zip(pKa, pKa[1:])):
-            raise InputError(f"{path}.custom.pKa must increase with step", field=f"{path}.custom.pKa")
+            raise InputError(f"The pKa values of {name} must rise from step to step (list the first step first); "
+                             f"you entered {'; '.join(fmt(v) for v in pKa)}.", field=f"{path}.custom.pKa")
         z0 = c.get("charge_most_protonated", 0)
         if isinstance(z0, bool) or not isinstance(z0, int) or not -10 <= z0 <= 10:
-            raise InputError(f"{path}.custom.charge_most_protonated must be a whole number -10..10, got {z0!r}",
-                             field=f"{path}.custom.charge_most_protonated")
+            raise InputError(f"The charge of the most protonated form of {name} must be a whole number from -10 "
+                             f"to 10 (you entered {shown(z0)}).", field=f"{path}.custom.charge_most_protonated")
         mm = _molar_mass(c, path)
         src = CustomSystem(id=f"custom-{i}", name=name, mass_basis_g_per_mol=mm)
         names = tuple(generic_species_names(len(pKa), z0))
@@ -218,8 +226,8 @@ def _read_ion(entry: dict, i: int):
         c, name = _custom(entry, path, "custom ion")
         z = c.get("charge")
         if isinstance(z, bool) or not isinstance(z, int) or z == 0 or not -6 <= z <= 6:
-            raise InputError(f"{path}.custom.charge must be a non-zero whole number -6..6, got {z!r}",
-                             field=f"{path}.custom.charge")
+            raise InputError(f"The charge of {name} must be a whole number from -6 to 6, not 0 (you entered "
+                             f"{shown(z)}).", field=f"{path}.custom.charge")
         mm = _molar_mass(c, path)
         src = CustomIon(id=f"custom-ion-{i}", name=name, charge=z, molar_mass_g_per_mol=mm)
         conc = _total(entry, unit, src, path)
@@ -238,22 +246,24 @@ def read_scenario(scenario: dict) -> Parsed:
     Raises :class:`acidscape.errors.InputError` or :class:`UnknownIdError` naming the field.
     """
     if not isinstance(scenario, dict):
-        raise InputError("the scenario must be a JSON object", field=None)
+        raise InputError("The water could not be read: it must be a group of named values (a JSON object).",
+                         field=None)
     warnings: list[str] = []
     unknown = sorted(set(scenario) - KNOWN_KEYS)
     if unknown:
         warnings.append("ignored unknown scenario keys: " + ", ".join(unknown))
-    t_C = _num(scenario.get("temperature_C", 25.0), "temperature_C", lo=0.0, hi=100.0)
+    t_C = _num(scenario.get("temperature_C", 25.0), "temperature_C", lo=TEMPERATURE_RANGE_C[0], hi=TEMPERATURE_RANGE_C[1])
     T = t_C + T0
     model = scenario.get("activity", "davies")
     if model not in activity.MODELS:
-        raise UnknownIdError(f"activity = {model!r} is not a model; choose one of {', '.join(activity.MODELS)}",
-                             field="activity")
+        raise UnknownIdError(f"The activity model {shown(model)} is not offered; choose one of "
+                             f"{', '.join(activity.MODELS)}.", field="activity")
     I_fixed = None
     I_source = "composition"
     given = [k for k in ("ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm") if scenario.get(k) is not None]
     if len(given) > 1:
-        raise InputError(f"give only one of ionic_strength_M, tds_mg_per_L, conductance_uS_per_cm (got {', '.join(given)})",
+        raise InputError(f"Give only one of ionic strength, total dissolved solids or specific conductance; "
+                         f"{' and '.join(describe(k).removeprefix('the ') for k in given)} were given.",
                          field=given[1])
     if given:
         key = given[0]
@@ -268,7 +278,7 @@ def read_scenario(scenario: dict) -> Parsed:
             I_source = "estimated from specific conductance"
     pH = scenario.get("pH")
     if pH is not None:
-        pH = _num(pH, "pH", lo=-1.0, hi=15.0)
+        pH = _num(pH, "pH", lo=PH_RANGE[0], hi=PH_RANGE[1])
     components, sources = [], []
     for i, entry in enumerate(_entry_list(scenario, "systems", MAX_SYSTEMS)):
         comp, src = _read_system(entry, i, T, warnings)
@@ -278,14 +288,16 @@ def read_scenario(scenario: dict) -> Parsed:
     seen = {c.key: f"systems[{k}]" for k, c in enumerate(components)}
     if len(seen) < len(components):
         key = next(c.key for k, c in enumerate(components) if seen[c.key] != f"systems[{k}]")
-        raise InputError(f"{key} is given twice in systems; give each system once", field=seen[key])
+        name = next(c.name for c in components if c.key == key)
+        raise InputError(f"{name} is listed twice among the acid-base systems; list it once (add the amounts).",
+                         field=seen[key])
     for i, entry in enumerate(_entry_list(scenario, "ions", MAX_IONS)):
         ion, src = _read_ion(entry, i)
         if ion is None:  # an ion that is an acid-base system's base (sulfate)
             system, total = src
             if system.id in seen:
-                raise InputError(f"{system.id} is given twice (in {seen[system.id]} and ions[{i}]); give it once",
-                                 field=f"ions[{i}].id")
+                raise InputError(f"{system.name} is listed twice ({describe(seen[system.id])} and "
+                                 f"{describe(f'ions[{i}]')}); list it once (add the amounts).", field=f"ions[{i}].id")
             pKa, notes = temperature.pKa_at_with_notes(system, T)
             warnings.extend(notes)
             components.append(_library_component(system, pKa, total))
@@ -293,8 +305,8 @@ def read_scenario(scenario: dict) -> Parsed:
             seen[system.id] = f"ions[{i}]"
             continue
         if ion.key in seen:
-            raise InputError(f"{ion.key} is given twice (in {seen[ion.key]} and ions[{i}]); give it once",
-                             field=f"ions[{i}].id")
+            raise InputError(f"{ion.name} is listed twice ({describe(seen[ion.key])} and {describe(f'ions[{i}]')}); "
+                             "list it once (add the amounts).", field=f"ions[{i}].id")
         seen[ion.key] = f"ions[{i}]"
         ions.append(ion)
         ion_sources.append(src)
@@ -302,7 +314,7 @@ def read_scenario(scenario: dict) -> Parsed:
     gas = scenario.get("gas")
     if gas is not None:
         if not isinstance(gas, dict):
-            raise InputError("gas must be an object like {\"CO2_partial_pressure_atm\": 0.00042}", field="gas")
+            raise InputError("Enter the CO₂ partial pressure in atm (air holds about 0.00042 atm).", field="gas")
         if gas.get("CO2_partial_pressure_atm") is not None:
             pCO2 = _num(gas["CO2_partial_pressure_atm"], "gas.CO2_partial_pressure_atm", lo=0.0, hi=10.0)
             H2CO3 = 10.0 ** temperature.log10_KH_CO2(T) * pCO2
@@ -314,13 +326,13 @@ def read_scenario(scenario: dict) -> Parsed:
             else:
                 c = components[idx]
                 if c.total_M > 0:
-                    warnings.append("carbonate total is set by the CO2 partial pressure (open system); "
-                                    "the total given was not used")
+                    warnings.append("The carbonate total is set by the CO₂ partial pressure (open system); "
+                                    "the total given was not used.")
                 components[idx] = dataclasses.replace(c, total_M=0.0, fixed_first_M=H2CO3)
     pKw = purewater.pKw(T)
     complexes = scenario.get("complexes", True)
     if not isinstance(complexes, bool):
-        raise InputError(f"complexes must be true or false, got {complexes!r}", field="complexes")
+        raise InputError("Ion pairs and complexes must be switched on or off (true or false).", field="complexes")
     return Parsed(T=T, temperature_C=t_C, model=model, I_fixed=I_fixed, I_source=I_source, pH=pH,
                   components=components, ions=ions, sources=sources, ion_sources=ion_sources, pKw=pKw,
                   CO2_partial_pressure_atm=pCO2, warnings=warnings, complexes=complexes,
@@ -334,21 +346,22 @@ def _read_indices_options(scenario: dict) -> dict:
     if p is not None:
         p = _num(p, "ccpp_open_CO2_partial_pressure_atm", lo=0.0, hi=10.0)
         if p <= 0.0:
-            raise InputError("ccpp_open_CO2_partial_pressure_atm must be above 0 atm (air holds about 0.00042)",
-                             field="ccpp_open_CO2_partial_pressure_atm")
+            raise InputError("The CO₂ partial pressure for the open-system CCPP must be above 0 atm (air holds "
+                             "about 0.00042 atm).", field="ccpp_open_CO2_partial_pressure_atm")
         out["ccpp_open_CO2_partial_pressure_atm"] = p
     temps = scenario.get("ccpp_temperatures_C")
     if temps is not None:
         if not isinstance(temps, list):
             temps = [temps]
         if len(temps) > 8:
-            raise InputError(f"ccpp_temperatures_C lists {len(temps)} temperatures; at most 8 are allowed",
-                             field="ccpp_temperatures_C")
-        out["ccpp_temperatures_C"] = tuple(_num(t, f"ccpp_temperatures_C[{k}]", lo=0.0, hi=100.0)
+            raise InputError(f"{len(temps)} further temperatures were given for the calcium carbonate indices; "
+                             "at most 8 are allowed.", field="ccpp_temperatures_C")
+        out["ccpp_temperatures_C"] = tuple(_num(t, f"ccpp_temperatures_C[{k}]", lo=TEMPERATURE_RANGE_C[0],
+                                                hi=TEMPERATURE_RANGE_C[1])
                                            for k, t in enumerate(temps))
     unc = scenario.get("uncertainty", False)
     if not isinstance(unc, bool):
-        raise InputError(f"uncertainty must be true or false, got {unc!r}", field="uncertainty")
+        raise InputError("The uncertainty switch must be on or off (true or false).", field="uncertainty")
     out["uncertainty"] = unc
     return out
 
@@ -361,9 +374,9 @@ def _read_precipitate(scenario: dict) -> tuple[str, ...]:
     if isinstance(raw, str):
         raw = [raw]
     if not isinstance(raw, list):
-        raise InputError("precipitate must be a list of solid ids such as [\"calcite\"]", field="precipitate")
+        raise InputError("Choose the solids allowed to form from the list (such as calcite).", field="precipitate")
     if len(raw) > 20:
-        raise InputError(f"precipitate names {len(raw)} solids; at most 20 are allowed", field="precipitate")
+        raise InputError(f"{len(raw)} solids were chosen to form; at most 20 are allowed.", field="precipitate")
     out = []
     for k, sid in enumerate(raw):
         solid = _lookup(library.get_solid, sid, "precipitate", "a solid id", field=f"precipitate[{k}]")

@@ -1236,8 +1236,11 @@ def _unknown(kind: str, key, known, aliases=None) -> UnknownIdError:
         by_lower.setdefault(k.lower(), k)
     close = difflib.get_close_matches(str(key).lower(), list(by_lower), n=5, cutoff=0.6)
     ids = list(dict.fromkeys(target[by_lower[c]] for c in close))[:3]
-    hint = f"; did you mean {', '.join(repr(i) for i in ids)}?" if ids else ""
-    return UnknownIdError(f"unknown {kind} id {key!r}{hint}; known: {', '.join(known)}", field=None)
+    hint = f" Did you mean {' or '.join(ids)}?" if ids else ""
+    text = str(key).strip()[:40] if isinstance(key, str) else ""
+    kind = {"system": "acid-base system"}.get(kind, kind)
+    return UnknownIdError(f"There is no {kind} “{text}” in the library.{hint} Choose one of: {', '.join(known)}.",
+                          field=None)
 
 
 def get_system(id: str) -> AcidSystem:
@@ -1339,8 +1342,8 @@ def get_solid(id: str) -> Solid:
     >>> try:
     ...     get_solid("calcit")
     ... except UnknownIdError as exc:
-    ...     print(exc.message[:49])
-    unknown solid id 'calcit'; did you mean 'calcite'
+    ...     print(exc.message[:77])
+    There is no solid “calcit” in the library. Did you mean calcite or malachite?
     """
     for s in _solids():
         if s.id == id:

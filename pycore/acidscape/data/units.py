@@ -33,7 +33,8 @@ from __future__ import annotations
 
 import math
 
-from ..errors import InputError, UnknownIdError
+from ..checks import describe, fmt, shown
+from ..errors import InputError, UnknownIdError, sentence
 
 _SCALE = {"mol/L": 1.0, "mmol/L": 1e-3, "umol/L": 1e-6, "µmol/L": 1e-6, "μmol/L": 1e-6}
 
@@ -93,7 +94,7 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
     71.393
     """
     if not isinstance(unit, str):
-        raise InputError(f"{field} must be a unit string, got {unit!r}", field=field)
+        raise InputError(f"Choose {describe(field)} from the list (for example mmol/L).", field=field)
     u = unit.strip()
     if u in _SCALE:
         return _SCALE[u]
@@ -102,8 +103,8 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
         m = _mass_g_per_mol(item)
         if not m:
             raise InputError(
-                f"{field}: '{u}' needs a molar mass, and {name} has none; use one of "
-                + ", ".join(accepted_units(item)),
+                f"{u} needs a molar mass, and {name} has none; choose one of "
+                + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
         return (1e-3 if u == "mg/L" else 1e-6) / m
@@ -113,20 +114,21 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
         as_mass = getattr(item, "as_g_per_mol", None)
         if not as_formula or basis != as_formula or not as_mass:
             raise InputError(
-                f"{field}: {unit!r} does not fit {name}; use one of " + ", ".join(accepted_units(item)),
+                f"{shown(unit)} does not fit {name}; choose one of " + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
         return 1e-3 / as_mass
     if u == "meq/L":
         if not _is_ion(item) or not getattr(item, "charge", 0):
             raise InputError(
-                f"{field}: 'meq/L' applies to strong ions only (its equivalents per mole depend on pH "
-                f"for {name}); use one of " + ", ".join(accepted_units(item)),
+                f"meq/L applies to strong ions only (the equivalents per mole of {name} depend on the "
+                f"pH); choose one of " + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
         return 1e-3 / abs(item.charge)
     raise UnknownIdError(
-        f"{field}: unknown unit {unit!r}; known: mol/L, mmol/L, umol/L, mg/L, ug/L, mg/L as <basis>, meq/L",
+        f"The unit {shown(unit)} is not known; choose one of mol/L, mmol/L, umol/L, mg/L, ug/L, "
+        "mg/L as the basis given in the list, meq/L.",
         field=field,
     )
 
@@ -139,12 +141,15 @@ def to_molar(value: float, unit: str, item, field: str = "total") -> float:
     0.0025
     """
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputError(f"{field} must be a number, got {value!r}", field=field)
+        raise InputError(sentence(f"{describe(field)} must be a number (zero or more); {shown(value)} is not one."),
+                         field=field)
     value = float(value)
     if not math.isfinite(value):
-        raise InputError(f"{field} must be a finite number, got {value!r}", field=field)
+        raise InputError(sentence(f"{describe(field)} is too large to use; enter a number, zero or more."),
+                         field=field)
     if value < 0:
-        raise InputError(f"{field} = {value:g} is negative; totals must be zero or more", field=field)
+        raise InputError(sentence(f"{describe(field)} must be zero or more (you entered {fmt(value)})."),
+                         field=field)
     unit_field = field.rsplit(".", 1)[0] + ".unit" if "." in field else "unit"
     return value * factor_to_molar(unit, item, unit_field)
 

@@ -193,8 +193,8 @@ def sm2320_split(P: float, T: float) -> dict:
     P = number(P, "P", lo=0.0)
     T = number(T, "T", lo=0.0)
     if P > T * (1 + 1e-12):
-        raise InputError(f"P = {P:g} exceeds T = {T:g}; phenolphthalein alkalinity cannot exceed total",
-                         field="P")
+        raise InputError(f"The phenolphthalein alkalinity ({P:g}) cannot exceed the total alkalinity ({T:g}); "
+                         "check both.", field="P")
     P = min(P, T)
     if 2.0 * P <= T:
         return {"hydroxide": 0.0, "carbonate": 2.0 * P, "bicarbonate": T - 2.0 * P}

@@ -90,18 +90,19 @@ def check_fractions(fractions, n: int) -> list[float]:
     >>> check_fractions([0.5, 0.6], 2)
     Traceback (most recent call last):
     ...
-    acidscape.errors.InputError: fractions sum to 1.1, not 1: give each water's share of the flow (0.5, 0.6)
+    acidscape.errors.InputError: The shares of the flow add up to 1.1, not 1 (0.5 + 0.6); give shares that add up to 1.
     """
     if not isinstance(fractions, (list, tuple)):
-        raise InputError(f"fractions must be a list of {n} numbers summing to 1, got {fractions!r}", field="fractions")
+        raise InputError(f"Give the share of the flow of each of the {n} waters (shares that add up to 1).",
+                         field="fractions")
     if len(fractions) != n:
-        raise InputError(f"fractions lists {len(fractions)} numbers for {n} waters; give one per water",
+        raise InputError(f"{len(fractions)} shares were given for {n} waters; give one share per water.",
                          field="fractions")
     out = [number(f, f"fractions[{k}]", lo=0.0, hi=1.0, allow_text=True) for k, f in enumerate(fractions)]
     total = math.fsum(out)
     if abs(total - 1.0) > FRACTION_SUM_TOL:
-        raise InputError(f"fractions sum to {total:.10g}, not 1: give each water's share of the flow ("
-                         + ", ".join(f"{f:g}" for f in out) + ")", field="fractions")
+        raise InputError(f"The shares of the flow add up to {total:.10g}, not 1 ("
+                         + " + ".join(f"{f:g}" for f in out) + "); give shares that add up to 1.", field="fractions")
     return out
 
 
@@ -243,9 +244,10 @@ def blend(closed_waters: list, fractions, *, precipitate=None, flow=None, flow_u
     0.0
     """
     if not isinstance(closed_waters, (list, tuple)) or len(closed_waters) < 2:
-        raise InputError("give two or more waters to blend", field="waters")
+        raise InputError("Give two or more waters to blend.", field="waters")
     if len(closed_waters) > MAX_WATERS:
-        raise InputError(f"at most {MAX_WATERS} waters can be blended, got {len(closed_waters)}", field="waters")
+        raise InputError(f"At most {MAX_WATERS} waters can be blended; {len(closed_waters)} were given.",
+                         field="waters")
     fr = check_fractions(fractions, len(closed_waters))
     allow = read_solids(precipitate, "precipitate") or ()
     flow_Ld = _flow(flow, flow_unit)

@@ -83,11 +83,11 @@ def _check_systems(systems) -> list[tuple[list[float], float]]:
         try:
             pKa, total = item
         except (TypeError, ValueError):
-            raise InputError(f"systems[{k}] must be a (pKa list, total_M) pair, got {item!r}",
+            raise InputError(f"Acid-base system {k + 1} needs its pKa values and its total.",
                              field=f"systems[{k}]") from None
         total = float(total)
         if not math.isfinite(total) or total < 0:
-            raise InputError(f"systems[{k}] total = {total!r} mol/L must be finite and >= 0",
+            raise InputError(f"The total of acid-base system {k + 1} must be a number, zero or more (mol/L).",
                              field=f"systems[{k}]")
         out.append((_cum(pKa), total))
     return out

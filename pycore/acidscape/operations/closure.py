@@ -59,7 +59,7 @@ import dataclasses
 import math
 from dataclasses import dataclass, field
 
-from ..checks import number
+from ..checks import PH_RANGE, fmt, number, shown
 from ..constants import ATOMIC_WEIGHT
 from ..errors import ConvergenceError, InputError
 from ..science.model import I_RTOL
@@ -151,41 +151,41 @@ def read_measured(scenario: dict) -> tuple[dict, Measured]:
     """
     m = scenario.get("measured")
     if not isinstance(m, dict):
-        raise InputError("measured must be an object like {\"pH\": 7.5, \"alkalinity\": {\"value\": 120, "
-                         "\"unit\": \"mg/L as CaCO3\"}}", field="measured")
+        raise InputError("Enter the measured pH and alkalinity (such as pH 7.5 and 120 mg/L as CaCO3).",
+                         field="measured")
     if scenario.get("pH") is not None:
-        raise InputError("give the pH once: in measured.pH, not also as pH", field="pH")
+        raise InputError("Give the pH once: as the measured pH, or as a fixed pH of the water, not both.", field="pH")
     if scenario.get("gas") is not None:
-        raise InputError("measured (pH and alkalinity) fixes the carbonate total; it cannot be combined with gas",
-                         field="gas")
+        raise InputError("The measured pH and alkalinity set the carbonate of the water; clear the CO₂ partial "
+                         "pressure or the measurements.", field="gas")
     if m.get("pH") is None:
-        raise InputError("measured.pH is required", field="measured.pH")
-    pH = _num(m.get("pH"), "measured.pH", 0.0, 14.0)
+        raise InputError(f"Enter the measured pH (from {PH_RANGE[0]:g} to {PH_RANGE[1]:g}).", field="measured.pH")
+    pH = _num(m.get("pH"), "measured.pH", PH_RANGE[0], PH_RANGE[1])
     a = m.get("alkalinity")
     if not isinstance(a, dict):
-        raise InputError("measured.alkalinity must be an object {\"value\", \"unit\"}", field="measured.alkalinity")
+        raise InputError("Enter the measured alkalinity and its unit (mg/L as CaCO3 or meq/L).",
+                         field="measured.alkalinity")
     unit = a.get("unit")
     if unit is None:
-        raise InputError("measured.alkalinity.unit is missing; give \"mg/L as CaCO3\" or \"meq/L\"",
-                         field="measured.alkalinity.unit")
+        raise InputError("Choose the alkalinity unit: mg/L as CaCO3 or meq/L.", field="measured.alkalinity.unit")
     if unit not in ALK_UNITS:
-        raise InputError(f"measured.alkalinity.unit = {unit!r} is not an alkalinity unit; give "
-                         "\"mg/L as CaCO3\" or \"meq/L\"", field="measured.alkalinity.unit")
+        raise InputError(f"The alkalinity unit {shown(unit)} is not offered; choose mg/L as CaCO3 or meq/L.",
+                         field="measured.alkalinity.unit")
     value = _num(a.get("value"), "measured.alkalinity.value", 0.0, 50000.0)
     alk_meq = value if unit == "meq/L" else value / MG_CACO3_PER_MEQ
     definition = a.get("definition", "end-point")
     if definition not in DEFINITIONS:
-        raise InputError(f"measured.alkalinity.definition = {definition!r}; allowed: {', '.join(DEFINITIONS)}",
-                         field="measured.alkalinity.definition")
+        raise InputError(f"The kind of alkalinity {shown(definition)} is not offered; choose one of "
+                         f"{', '.join(DEFINITIONS)}.", field="measured.alkalinity.definition")
     end_pH = _num(a.get("end_point_pH", TOTAL_END_POINT_PH), "measured.alkalinity.end_point_pH", 3.5, 5.5)
     if definition == "end-point" and pH <= end_pH:
-        raise InputError(f"measured.pH {pH:g} is at or below the end point pH {end_pH:g}; such a water has no "
-                         "alkalinity to that end point", field="measured.pH")
+        raise InputError(f"The measured pH ({pH:g}) must be above the alkalinity end point (pH {end_pH:g}): a "
+                         "water at or below it has no alkalinity. Check the measured pH.", field="measured.pH")
     systems = list(scenario.get("systems") or [])
     for i, e in enumerate(systems):
         if isinstance(e, dict) and e.get("id") == "carbonate":
-            raise InputError(f"systems[{i}]: the carbonate total is inferred from measured pH and alkalinity; "
-                             "remove it or drop measured", field=f"systems[{i}]")
+            raise InputError("The carbonate of this water follows from the measured pH and alkalinity; remove the "
+                             "carbonate row or clear the measurements.", field=f"systems[{i}]")
     base = {k: v for k, v in scenario.items() if k != "measured"}
     base["systems"] = systems + [{"id": "carbonate", "total": 0.0, "unit": "mol/L"}]
     return base, Measured(pH, alk_meq * 1e-3, definition, end_pH)
@@ -270,14 +270,15 @@ def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None)
             f = a - measured.alkalinity_eq_per_L
             if not slope > 0.0:
                 raise InputError(
-                    f"measured pH {pH:g} is at or below the alkalinity end point pH {measured.end_point_pH:g}: "
-                    "carbonate cannot be inferred from an alkalinity there", field="measured.pH")
+                    f"The measured pH ({pH:g}) must be above the alkalinity end point (pH "
+                    f"{measured.end_point_pH:g}): the carbonate cannot be found from an alkalinity there. "
+                    "Check the measured pH.", field="measured.pH")
             if f > 0.0:
                 if C == 0.0:
                     raise InputError(
-                        f"measured alkalinity {measured.alkalinity_eq_per_L * 1e3:.4g} meq/L is less than "
-                        f"pH {pH:g} and the other systems give without any carbonate ({a * 1e3:.4g} meq/L): "
-                        "the measurements are inconsistent", field=field_alk)
+                        f"The measured alkalinity is too low for a measured pH of {pH:g}: at that pH the rest of "
+                        f"this water alone gives {fmt(a * 1e3)} meq/L of alkalinity, before any carbonate. Check "
+                        "the measured pH and alkalinity.", field=field_alk)
                 hi = C
             else:
                 lo = C
@@ -320,7 +321,8 @@ def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None)
             # about ACCEPT_STEP**2, far inside CLOSE_RTOL; no further solve is needed
             return (Cn if jc is not None else None), q_next, I_next
         q, C, I = q_next, Cn, I_next
-    raise ConvergenceError("the carbonate total and the balancing ion did not settle at the measured pH", field=None)
+    raise ConvergenceError("The water could not be matched to the measured pH and alkalinity; check the "
+                           "measurements and the amounts.", field=None)
 
 
 def _balance_entry(q: float) -> dict | None:
@@ -415,7 +417,8 @@ def close_scenario(scenario: dict, parsed) -> Closed:
         are in mol/L.
     """
     if not isinstance(scenario, dict):
-        raise InputError("the scenario must be a JSON object", field="scenario")
+        raise InputError("The water could not be read: it must be a group of named values (a JSON object).",
+                         field="scenario")
     notes = []
     precipitate = tuple(getattr(parsed, "precipitate", ()) or ())
     out = copy.deepcopy(scenario)

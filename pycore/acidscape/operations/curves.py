@@ -46,7 +46,8 @@ def pH_grid(pH_min: float = 0.0, pH_max: float = 14.0, points: int = 281) -> lis
     pH_min = number(pH_min, "pH_min")
     pH_max = number(pH_max, "pH_max")
     if not pH_max > pH_min:
-        raise InputError(f"pH_max ({pH_max:g}) must be above pH_min ({pH_min:g})", field="pH_max")
+        raise InputError(f"The highest pH of the plot ({pH_max:g}) must be above the lowest ({pH_min:g}).",
+                         field="pH_max")
     step = (pH_max - pH_min) / (points - 1)
     grid = [pH_min + k * step for k in range(points)]
     grid[-1] = float(pH_max)

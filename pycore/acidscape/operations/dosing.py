@@ -53,7 +53,7 @@ import math
 from dataclasses import dataclass
 from importlib.resources import files
 
-from ..checks import number
+from ..checks import MAX_FLOW_L_PER_D, choice, describe, fmt, number, sentence, shown
 from ..constants import ATOMIC_WEIGHT
 from ..data import library
 from ..data.formula import molar_mass
@@ -220,15 +220,15 @@ def get_chemical(id: str, field: str = "chemical") -> Chemical:
         s = library.get_system(id)
         k = next((i for i, sp in enumerate(s.species) if sp.charge == 0), None)
         if k is None:
-            raise InputError(f"{field} = {id!r}: the system has no neutral species to add as a chemical; "
-                             f"use one of {', '.join(table)}", field=field)
+            raise InputError(f"{s.name} has no neutral form to add as a chemical; choose one of "
+                             f"{', '.join(table)}.", field=field)
         sp = s.species[k]
         pairs = ((s.id, 1.0),)
         return Chemical(id=s.id, name=f"{sp.formula} ({s.name})", molar_mass_g_per_mol=sp.molar_mass_g_per_mol,
                         ions=(), ion_charges=(), systems=pairs,
                         alkalinity_eq_per_mol=_alkalinity_per_mol((), pairs), note="library system, neutral form")
-    raise UnknownIdError(f"{field} = {id!r} is not a known chemical; use one of {', '.join(table)} "
-                         "or a library system id", field=field)
+    raise UnknownIdError(sentence(f"{describe(field)} {shown(id)} is not offered; choose one of "
+                                  f"{', '.join(table)}, or an acid-base system of the library."), field=field)
 
 
 def flow_L_per_d(value, unit) -> float:
@@ -254,13 +254,14 @@ def flow_L_per_d(value, unit) -> float:
     864000.0
     """
     if unit is None:
-        raise InputError("flow_unit is required with flow; use one of " + ", ".join(FLOW_UNITS), field="flow_unit")
+        raise InputError("Choose the flow unit: " + ", ".join(FLOW_UNITS) + ".", field="flow_unit")
     if unit not in FLOW_UNITS:
-        raise UnknownIdError(f"flow_unit = {unit!r} is not known; use one of " + ", ".join(FLOW_UNITS),
-                             field="flow_unit")
+        raise choice("flow_unit", unit, FLOW_UNITS, UnknownIdError)
     value = number(value, "flow")
-    if value < 0:
-        raise InputError(f"flow = {value:g} {unit} is negative; a flow is zero or more", field="flow")
+    top = MAX_FLOW_L_PER_D / FLOW_UNITS[unit]
+    if not 0.0 <= value <= top:
+        raise InputError(f"The plant flow must be from 0 to {fmt(top)} {unit} (you entered {fmt(value)} {unit}); "
+                         "no plant treats more.", field="flow")
     return float(value) * FLOW_UNITS[unit]
 
 
@@ -268,10 +269,7 @@ def _opt_number(value, field, lo, hi):
     """None, or a number in the half-open range (lo, hi]."""
     if value is None:
         return None
-    v = number(value, field, hi=hi)
-    if not v > lo:
-        raise InputError(f"{field} = {v:g} is outside the allowed range ({lo:g}, {hi:g}]", field=field)
-    return v
+    return number(value, field, above=lo, hi=hi)
 
 
 def _solids(precipitate) -> tuple[str, ...]:
@@ -279,14 +277,13 @@ def _solids(precipitate) -> tuple[str, ...]:
     if precipitate is None:
         return ()
     if isinstance(precipitate, str) or not isinstance(precipitate, (list, tuple)):
-        raise InputError(f"precipitate must be a list of solid ids such as [\"calcite\"], got {precipitate!r}",
-                         field="precipitate")
+        raise InputError("Choose the solids allowed to form from the list (such as calcite).", field="precipitate")
     known = {s.id for s in library.solids()}
     out = []
     for k, sid in enumerate(precipitate):
         if sid not in known:
-            raise UnknownIdError(f"precipitate[{k}] = {sid!r} is not a solid of the database; known: "
-                                 + ", ".join(sorted(known)), field="precipitate")
+            raise UnknownIdError(f"There is no solid {shown(sid)} in the library; choose the solids allowed to "
+                                 "form from the list.", field="precipitate")
         if sid not in out:
             out.append(sid)
     return tuple(out)
@@ -325,8 +322,8 @@ def _dose(closed: Closed, chem, target_pH: float, allow: tuple = ()) -> _Dose:
             limit = limit_pH_trace(mix, pH0, upward, target_pH, I0)
             if limit is not None:
                 raise UnreachableError(
-                    f"pH {target_pH:g} is beyond what {chem.id} can give this water: however much is dosed the "
-                    f"pH only approaches {limit:.2f}", field="target_pH")
+                    f"{chem.id} cannot bring this water to pH {target_pH:g}: however much is dosed, the pH only "
+                    f"approaches {limit:.2f}. Choose a target pH short of {limit:.2f}.", field="target_pH")
             d, sol, ok, I_after = mix.amount(target_pH, 0.0, I0=I0, guess=sol0.state, sign=sign,
                                              d_max=MAX_AMOUNT_M, exact=True, robust=True)
     else:
@@ -336,29 +333,30 @@ def _dose(closed: Closed, chem, target_pH: float, allow: tuple = ()) -> _Dose:
         d, sol, ok, I_after = _scan(mix, target_pH, I0, sol0.state)
         if not ok:
             raise UnreachableError(
-                f"{chem.id} acts as {role} on this water (pH {pH0:.2f}); it "
+                f"{chem.id} acts as {role} on this water (pH {pH0:.2f}): it "
                 f"{'lowers' if g0 < 0 else 'raises' if g0 > 0 else 'does not change'} the pH and cannot bring "
-                f"it to {target_pH:g}", field="target_pH")
+                f"it to {target_pH:g}. Choose {'an acid' if target_pH < pH0 else 'a base'} for this target, or "
+                "another target pH.", field="target_pH")
     if not ok:
         # no root up to the cap: either the root lies beyond it, or the dose grows without bound
         dR = None if sol.solids else mix.charge_per_mol(sol, d)
         beyond = -sol.charge_residual / dR + d if dR else math.inf
         if mix.stopped == "cap" and dR and (dR > 0) == upward and math.isfinite(beyond) and beyond > MAX_AMOUNT_M:
             raise UnreachableError(
-                f"pH {target_pH:g} needs {beyond:.3g} mol/L of {chem.id}, more than the {MAX_AMOUNT_M:g} mol/L "
-                "accepted (beyond water treatment and the activity models)", field="target_pH")
+                f"A target pH of {target_pH:g} needs {fmt(beyond)} mol/L of {chem.id}, more than the {fmt(MAX_AMOUNT_M)} mol/L "
+                "this calculator accepts (beyond water treatment). Choose a target pH closer to the "
+                "water's own.", field="target_pH")
         raise UnreachableError(
-            f"pH {target_pH:g} is beyond what {chem.id} can give this water: the dose needed grows without "
-            f"bound, because the ionic strength it adds lowers the pH {chem.id} can reach (activity "
-            "corrections)", field="target_pH")
+            f"{chem.id} cannot bring this water to pH {target_pH:g}: the more is dosed, the more salt it adds, "
+            f"and the salt holds the pH back. Choose a target pH closer to the water's own.", field="target_pH")
     if chem.is_gas and "carbonate" in mix.wm.system_species:
         h2co3 = sol.conc[mix.wm.system_species["carbonate"][0]]
         sat = 10.0 ** temperature.log10_KH_CO2(mix.wm.T)
         if h2co3 > sat:
             raise UnreachableError(
-                f"pH {target_pH:g} needs {d * 1e3:.4g} mmol/L CO2, leaving {h2co3 * 1e3:.4g} mmol/L dissolved "
-                f"H2CO3*, more than dissolves under 1 atm of pure CO2 ({sat * 1e3:.4g} mmol/L at "
-                f"{mix.wm.T - 273.15:.4g} °C): CO2 cannot take this water that low", field="target_pH")
+                f"CO₂ cannot take this water down to pH {target_pH:g}: that needs {fmt(d * 1e3)} mmol/L, more "
+                f"than dissolves under 1 atm of pure CO₂ ({fmt(sat * 1e3)} mmol/L at "
+                f"{mix.wm.T - 273.15:.4g} °C). Choose a higher target pH, or an acid.", field="target_pH")
     return _Dose(d, sol, mix, allow, I_after)
 
 
@@ -625,12 +623,11 @@ def dose_to_pH(water, chemical: str, target_pH, *, strength_pct=None, density_kg
     flow_Ld = None
     if flow is not None or flow_unit is not None:
         if flow is None:
-            raise InputError("flow_unit given without flow", field="flow")
+            raise InputError("Enter the plant flow, or clear the flow unit.", field="flow")
         flow_Ld = flow_L_per_d(flow, flow_unit)
     asked = _solids(precipitate)
     if not isinstance(water, Closed):
-        raise InputError("the water must be a closed water (acidscape.operations.closure.close_scenario)",
-                         field="scenario")
+        raise InputError("The water could not be read.", field="scenario")
     closed = water
     allow = tuple(dict.fromkeys(tuple(closed.precipitate) + asked))
     res = _dose(closed, chem, target_pH, allow)

@@ -77,6 +77,7 @@ from __future__ import annotations
 import dataclasses
 import math
 
+from ..checks import MAX_SAMPLE_ML, MAX_TOTAL_M, PH_RANGE, number
 from ..constants import LN10, M_CaCO3
 from ..data import library
 from ..errors import InputError, UnknownIdError
@@ -135,7 +136,7 @@ def _edta_water(parsed, metals) -> tuple[WaterModel, list[str]]:
             ions.append(IonInput(key=ion.id, name=ion.formula, charge=ion.charge, conc_M=0.0,
                                  ion_size_A=ion.ion_size_A))
     if not getattr(parsed, "complexes", True):
-        raise InputError("an EDTA titration needs the metal-EDTA complexes: set complexes to true",
+        raise InputError("An EDTA titration needs the metal-EDTA complexes: switch ion pairs and complexes on.",
                          field="complexes")
     wm = WaterModel(systems, ions, T=parsed.T, pKw=parsed.pKw, model=parsed.model, complexes=True,
                     I_fixed=parsed.I_fixed)
@@ -158,7 +159,7 @@ def _metal_ids(wm: WaterModel, requested) -> list[str]:
     for mid in requested:
         ion = library.get_ion(mid)
         if ion.id not in wm.comp_index:
-            raise UnknownIdError(f"{mid} is not an ion of this water", field="metals")
+            raise UnknownIdError(f"{mid} is not in this water; choose metals the water holds.", field="metals")
         out.append(ion.id)
     return out
 
@@ -237,10 +238,10 @@ def conditional_constants(parsed, metals=HARDNESS_METALS, pH_from: float = 6.0, 
     (10.65, -0.6, 10.05)
     """
     if not 1 <= points <= MAX_POINTS:
-        raise InputError(f"points must be 1..{MAX_POINTS}, got {points}", field="points")
+        raise InputError(f"The number of points must be from 1 to {MAX_POINTS} (you entered {points}).",
+                         field="points")
     for v, f in ((pH_from, "pH_from"), (pH_to, "pH_to")):
-        if not 0.0 <= v <= 14.0:
-            raise InputError(f"{f} = {v:g} is outside pH 0..14", field=f)
+        number(v, f, lo=PH_RANGE[0], hi=PH_RANGE[1])
     ids = [library.get_ion(m).id for m in metals]
     wm, notes = _edta_water(parsed, ids)
     ids = _metal_ids(wm, ids)
@@ -248,7 +249,7 @@ def conditional_constants(parsed, metals=HARDNESS_METALS, pH_from: float = 6.0, 
     for mid in ids:
         i = _edta_complex(wm, mid)
         if i is None:
-            raise InputError(f"the database holds no EDTA complex of {mid}", field="metals")
+            raise InputError(f"The library holds no EDTA complex of {mid}; choose another metal.", field="metals")
         cx = wm.complex_info[i]
         src = library.sources().get(cx.K_source)
         rows.append({"id": mid, "complex": cx.formula, "log10_Kf_printed": cx.log10_K_printed,
@@ -346,14 +347,12 @@ def edta_titration(parsed, titrant_M: float, sample_mL: float, fixed_pH: float =
     >>> round(out["end_points"][0]["titrant_mL"], 3), round(out["total_hardness_mg_per_L_as_CaCO3"], 2)
     (5.0, 100.09)
     """
-    if not (titrant_M > 0 and math.isfinite(titrant_M)):
-        raise InputError(f"titrant_M must be a positive concentration, got {titrant_M!r}", field="titrant_M")
-    if not (sample_mL > 0 and math.isfinite(sample_mL)):
-        raise InputError(f"sample_mL must be a positive volume, got {sample_mL!r}", field="sample_mL")
-    if not 0.0 <= fixed_pH <= 14.0:
-        raise InputError(f"fixed_pH = {fixed_pH:g} is outside 0..14", field="fixed_pH")
+    number(titrant_M, "titrant_M", above=0.0, hi=MAX_TOTAL_M)
+    number(sample_mL, "sample_mL", above=0.0, hi=MAX_SAMPLE_ML)
+    number(fixed_pH, "fixed_pH", lo=PH_RANGE[0], hi=PH_RANGE[1])
     if not 3 <= points <= MAX_POINTS:
-        raise InputError(f"points must be 3..{MAX_POINTS}, got {points}", field="points")
+        raise InputError(f"The number of points must be from 3 to {MAX_POINTS} (you entered {points}).",
+                         field="points")
     wm, notes = _edta_water(parsed, HARDNESS_METALS)
     warnings = list(getattr(parsed, "warnings", []) or []) + notes
     if getattr(parsed, "precipitate", ()):
@@ -368,8 +367,8 @@ def edta_titration(parsed, titrant_M: float, sample_mL: float, fixed_pH: float =
             binders.append(key)
     hard = [m for m in HARDNESS_METALS if base_totals[wm.comp_index[m]] > 0]
     if not hard:
-        raise InputError("the sample holds neither calcium nor magnesium: there is no hardness to titrate",
-                         field="scenario")
+        raise InputError("The sample holds neither calcium nor magnesium: there is no hardness to titrate. Add "
+                         "them to the water.", field="scenario")
     solver = FixedPHSolver(wm)
     # conditional constants at the fixed pH set the order of titration
     st0 = solver.solve(fixed_pH, base_totals)
@@ -396,8 +395,7 @@ def edta_titration(parsed, titrant_M: float, sample_mL: float, fixed_pH: float =
     V_last = max(stoich.values())
     if to_mL is None:
         to_mL = OVERSHOOT * V_last if V_last > 0 else 1.0
-    if not (to_mL > 0 and math.isfinite(to_mL)):
-        raise InputError(f"to_mL must be a positive volume, got {to_mL!r}", field="to_mL")
+    number(to_mL, "to_mL", above=0.0, hi=MAX_SAMPLE_ML)
     others = [m for m in binders if m not in HARDNESS_METALS]
     if others:
         warnings.append("EDTA also binds " + ", ".join(others) + " in this sample: titrated and counted as "

@@ -51,6 +51,7 @@ from __future__ import annotations
 
 import math
 
+from ..checks import PH_RANGE as _PH_RANGE
 from ..constants import LN10
 from ..data import library
 from ..science.activity import VALIDITY_I_M
@@ -59,8 +60,8 @@ from .probe import Linearization, aqueous_totals, ionic_strength, resolve
 
 #: Largest titrant or chemical amount accepted [mol per litre of sample].
 MAX_AMOUNT_M = 5.0
-#: Lowest and highest pH a curve or a dose may be asked to reach [-].
-PH_RANGE = (0.0, 14.5)
+#: Lowest and highest pH a curve or a dose may be asked to reach [-] (the one range, acidscape.checks).
+PH_RANGE = _PH_RANGE
 #: Relative tolerance on the amount and on the ionic strength at each pH.
 AMOUNT_RTOL = 1e-12
 I_RTOL = 1e-11

@@ -95,7 +95,7 @@ from __future__ import annotations
 
 import math
 
-from ..checks import number
+from ..checks import fmt, number, shown
 from ..constants import ATOMIC_WEIGHT, M_CaCO3
 from ..data import library
 from ..errors import InputError
@@ -191,7 +191,8 @@ def stoichiometric_softening(CO2_meq: float, alkalinity_meq: float, calcium_meq:
     for name, v in (("CO2_meq", CO2_meq), ("alkalinity_meq", alkalinity_meq), ("calcium_meq", calcium_meq),
                     ("magnesium_meq", magnesium_meq)):
         if not (v >= 0.0) or not math.isfinite(v):
-            raise InputError(f"{name} must be a finite amount >= 0, got {v!r}", field=name)
+            raise InputError(f"The {name.removesuffix('_meq').replace('_', ' ')} must be a number, zero or more "
+                             "(meq/L).", field=name)
     excess = EXCESS_LIME_MEQ if excess_lime_meq is None else excess_lime_meq
     Ca, Mg, Alk, CO2 = calcium_meq, magnesium_meq, alkalinity_meq, CO2_meq
     TH = Ca + Mg
@@ -323,12 +324,11 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     (10.3, 'calcite')
     """
     if not isinstance(remove_magnesium, bool):
-        raise InputError(f"remove_magnesium must be true or false, got {remove_magnesium!r}", field="remove_magnesium")
+        raise InputError("Magnesium removal must be switched on or off (true or false).", field="remove_magnesium")
     if lime_mg_per_L is not None and softening_pH is not None:
-        raise InputError("give softening_pH or lime_mg_per_L, not both", field="lime_mg_per_L")
+        raise InputError("Give the softening pH or the lime dose, not both.", field="lime_mg_per_L")
     if soda_ash_mg_per_L is not None and target_hardness_mg_per_L_as_CaCO3 is not None:
-        raise InputError("give soda_ash_mg_per_L or target_hardness_mg_per_L_as_CaCO3, not both",
-                         field="soda_ash_mg_per_L")
+        raise InputError("Give the soda ash dose or the target hardness, not both.", field="soda_ash_mg_per_L")
     pH_s = _opt(softening_pH, "softening_pH", 8.5, 12.5)
     lime_mg = _opt(lime_mg_per_L, "lime_mg_per_L", 0.0, 5000.0)
     soda_mg = _opt(soda_ash_mg_per_L, "soda_ash_mg_per_L", 0.0, 5000.0)
@@ -339,16 +339,17 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     rc_step = None
     if recarbonation:
         if not isinstance(recarbonation, dict):
-            raise InputError("recarbonation must be an object such as {\"target_LSI\": 0}, or false",
+            raise InputError("The recarbonation step needs one target (such as an LSI of 0), or none at all.",
                              field="recarbonation")
         fields = [k for k in ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L")
                   if recarbonation.get(k) is not None]
         if len(fields) != 1:
-            raise InputError("recarbonation: give one of target_LSI, target_CCPP, target_pH, dose_mg_per_L",
+            raise InputError("The recarbonation step needs one target: an LSI, a CCPP, a pH or a dose in mg/L.",
                              field="recarbonation")
         unknown = sorted(set(recarbonation) - {fields[0], "precipitate", "strength_pct", "density_kg_per_L"})
         if unknown:
-            raise InputError(f"recarbonation: unknown keys {', '.join(unknown)}", field=f"recarbonation.{unknown[0]}")
+            raise InputError("The recarbonation step holds settings that are not known here: "
+                             + ", ".join(k.replace("_", " ") for k in unknown) + ".", field=f"recarbonation.{unknown[0]}")
         rc_step = make_step("CO2", fields[0], recarbonation[fields[0]], precipitate=recarbonation.get("precipitate"),
                             strength_pct=recarbonation.get("strength_pct"),
                             density_kg_per_L=recarbonation.get("density_kg_per_L"), path="recarbonation")
@@ -360,7 +361,8 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
     w0 = water_from_closed(closed)
     Ca0, Mg0 = w0.totals.get("calcium", 0.0), w0.totals.get("magnesium", 0.0)
     if not Ca0 + Mg0 > 0.0:
-        raise InputError("the water holds no calcium or magnesium: there is nothing to soften", field="scenario")
+        raise InputError("The water holds no calcium or magnesium: there is nothing to soften. Add them to the "
+                         "water.", field="scenario")
     before = summarize(w0)
     warnings: list[str] = list(w0.notes)
 
@@ -381,8 +383,8 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
             if found.status in ("unreachable", "no effect"):
                 best = found.best or found.start
                 raise TargetUnreachableError(
-                    f"{field_pH} {pH_s:g} is above the highest pH lime gives this water: {best.value:.3f} at "
-                    f"{best.d * 1e3:.4g} mmol/L", field_pH,
+                    f"The softening pH ({pH_s:g}) is above the highest pH lime gives this water: {best.value:.3f} "
+                    f"at {fmt(best.d * 1e3)} mmol/L. Choose a lower softening pH.", field_pH,
                     {"direction": "above", "best_value": best.value, "best_dose_mmol_per_L": best.d * 1e3,
                      "searched_to_mmol_per_L": MAX_DOSE_M * 1e3, "chemical": lime.id})
             p = found.point
@@ -402,10 +404,10 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
         if found.status == "unreachable" or found.status == "no effect":
             best = found.best or found.start
             raise TargetUnreachableError(
-                f"target_hardness_mg_per_L_as_CaCO3 {target_H:g} is below the lowest total hardness soda ash gives "
-                f"this water at the softening conditions: {best.value:.4g} mg/L as CaCO3 at {best.d * 1e3:.4g} mmol/L "
-                "of soda ash (the rest is magnesium, which soda ash does not remove"
-                + ("; soften at a higher pH to remove it)" if not remove_magnesium else ")"),
+                f"The target hardness ({target_H:g} mg/L as CaCO3) is below the lowest total hardness soda ash "
+                f"gives this water at the softening conditions: {best.value:.4g} mg/L as CaCO3 at "
+                f"{fmt(best.d * 1e3)} mmol/L of soda ash (the rest is magnesium, which soda ash does not remove"
+                + ("; soften at a higher pH to remove it)." if not remove_magnesium else ")."),
                 "target_hardness_mg_per_L_as_CaCO3",
                 {"direction": "below", "best_value": best.value, "best_dose_mmol_per_L": best.d * 1e3,
                  "searched_to_mmol_per_L": max(q.d for q in found.points) * 1e3, "chemical": soda.id})

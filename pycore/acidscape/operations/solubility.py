@@ -101,6 +101,7 @@ from __future__ import annotations
 import dataclasses
 import math
 
+from ..checks import MAX_TOTAL_M, PH_RANGE, choice
 from ..constants import LN10
 from ..data import library
 from ..errors import ConvergenceError, InputError, UnknownIdError
@@ -283,12 +284,12 @@ class FixedPHSolver:
                     solid = library.get_solid(sid)  # UnknownIdError for an unknown id
                     refs = [library.resolve_ref(r) for r, _ in solid.reactants]
                     if ("ion", metal) not in refs:
-                        raise InputError(f"{sid} holds no {metal}", field="solids")
-                    raise InputError(f"{sid} cannot form in this water: it needs "
-                                     + ", ".join(r for r, _ in solid.reactants if r not in ("H+", "OH-")),
-                                     field="solids")
+                        raise InputError(f"The solid {sid} holds no {metal}; choose {metal} solids.", field="solids")
+                    raise InputError(f"The solid {sid} cannot form in this water: it needs "
+                                     + ", ".join(r for r, _ in solid.reactants if r not in ("H+", "OH-"))
+                                     + ". Add them to the water, or choose another solid.", field="solids")
                 if dict(tab.solids[wm.solid_index[sid]].stoich).get(self.jM, 0) <= 0:
-                    raise InputError(f"{sid} holds no {metal}", field="solids")
+                    raise InputError(f"The solid {sid} holds no {metal}; choose {metal} solids.", field="solids")
             self.candidates = [wm.solid_index[s] for s in allowed]
         else:
             self.candidates = []
@@ -809,7 +810,7 @@ def metal_water(parsed, metal: str, need=()) -> tuple[WaterModel, list[str]]:
     (WaterModel, notes)
     """
     if metal not in METALS:
-        raise UnknownIdError(f"metal must be one of {', '.join(METALS)}, got {metal!r}", field="metal")
+        raise choice("metal", metal, METALS, UnknownIdError)
     notes = []
     systems = list(parsed.components)
     complexes = getattr(parsed, "complexes", True)
@@ -1003,9 +1004,10 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
     ('copper-hydroxide', -5.226)
     """
     if axis not in AXES:
-        raise UnknownIdError(f"axis must be one of {', '.join(AXES)}, got {axis!r}", field="axis")
+        raise choice("axis", axis, AXES, UnknownIdError)
     if not 1 <= points <= MAX_POINTS:
-        raise InputError(f"points must be 1..{MAX_POINTS}, got {points}", field="points")
+        raise InputError(f"The number of points must be from 1 to {MAX_POINTS} (you entered {points}).",
+                         field="points")
     need = (AXIS_COMPONENT[axis],) if axis in AXIS_COMPONENT else ()
     wm, notes = metal_water(parsed, metal, need)
     warnings = list(getattr(parsed, "warnings", []) or []) + notes
@@ -1015,23 +1017,26 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
     jM = wm.comp_index[metal]
     cand = candidate_solids(wm, metal) if solids is None else list(dict.fromkeys(solids))
     if not cand:
-        raise InputError(f"no candidate solid holds {metal}", field="solids")
+        raise InputError(f"None of the solids chosen holds {metal}; choose {metal} solids.", field="solids")
     solver = FixedPHSolver(wm, metal, cand)
     warnings.extend(temperature_notes(
         wm, [i for i, sp in enumerate(wm.tab.species) if sp.kind == "complex" and dict(sp.stoich).get(jM, 0)],
         solver.candidates))
     if axis == "pH":
         for v, f in ((start, "from"), (stop, "to")):
-            if not 0.0 <= v <= 14.0:
-                raise InputError(f"{f} = {v:g} is outside pH 0..14", field=f)
+            if not PH_RANGE[0] <= v <= PH_RANGE[1]:
+                raise InputError(f"The pH at the {'start' if f == 'from' else 'end'} of the axis must be from "
+                                 f"{PH_RANGE[0]:g} to {PH_RANGE[1]:g} (you entered {v:g}).", field=f)
         pH_fixed = None
     else:
         for v, f in ((start, "from"), (stop, "to")):
-            if not (v >= 0.0 and math.isfinite(v)) or v > 5.0:
-                raise InputError(f"{f} must be a total of 0..5 mol/L, got {v!r}", field=f)
+            if not (v >= 0.0 and math.isfinite(v)) or v > MAX_TOTAL_M:
+                raise InputError(f"The total at the {'start' if f == 'from' else 'end'} of the axis must be from 0 "
+                                 f"to {MAX_TOTAL_M:g} mol/L.", field=f)
         pH_fixed = _water_pH(parsed) if fixed_pH is None else float(fixed_pH)
-        if not 0.0 <= pH_fixed <= 14.0:
-            raise InputError(f"fixed_pH = {pH_fixed:g} is outside 0..14", field="fixed_pH")
+        if not PH_RANGE[0] <= pH_fixed <= PH_RANGE[1]:
+            raise InputError(f"The pH of the water must be from {PH_RANGE[0]:g} to {PH_RANGE[1]:g} for this axis "
+                             f"(it is {pH_fixed:.3g}).", field="fixed_pH")
     grid = _grid(start, stop, points)
     ion = library.get_ion(metal)
     mass = ion.molar_mass_g_per_mol

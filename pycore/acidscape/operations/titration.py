@@ -46,7 +46,7 @@ import dataclasses
 import math
 from typing import NamedTuple
 
-from ..checks import number, whole
+from ..checks import MAX_SAMPLE_ML, MAX_TOTAL_M, fmt, number, whole
 from ..data import library
 from ..errors import InputError, UnreachableError
 from ..science.tableau import IonInput, WaterModel
@@ -63,10 +63,7 @@ PH_TOL = 1e-7
 
 
 def _positive(value, field: str, hi: float) -> float:
-    value = number(value, field, hi=hi)
-    if not value > 0.0:
-        raise InputError(f"{field} = {value:g} must be above 0 and at most {hi:g}", field=field)
-    return value
+    return number(value, field, above=0.0, hi=hi)
 
 
 def _golden_min(f, a, b, tol=PH_TOL):
@@ -130,8 +127,8 @@ class _Curve:
                                         d_max=MAX_AMOUNT_M)
         if not ok or not 0.0 <= d <= MAX_AMOUNT_M:
             raise UnreachableError(
-                f"pH {pH:.3g} needs more than {MAX_AMOUNT_M:g} mol of {self.mix.chem.id} per litre of sample, "
-                f"or cannot be reached", field="to_pH")
+                f"An end pH of {pH:.3g} needs more than {fmt(MAX_AMOUNT_M)} mol of {self.mix.chem.id} per litre of sample, "
+                "or cannot be reached. Choose an end pH closer to the water's own.", field="to_pH")
         return _Point(pH, d, self.mix.slope(sol, d), sol, I)
 
 
@@ -234,16 +231,16 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
     from .dosing import get_chemical
 
     points = whole(points, "points", lo=3, hi=MAX_POINTS)
-    sample_mL = _positive(sample_mL, "sample_mL", 1e6)
+    sample_mL = _positive(sample_mL, "sample_mL", MAX_SAMPLE_ML)
     chem = get_chemical(titrant, field="titrant")
     volumes = not chem.is_gas
     if volumes:
         if titrant_M is None:
-            raise InputError("titrant_M is required for a titrant in solution", field="titrant_M")
-        titrant_M = _positive(titrant_M, "titrant_M", 20.0)
+            raise InputError(f"Enter the titrant concentration (above 0 and at most {fmt(MAX_TOTAL_M)} mol/L).",
+                             field="titrant_M")
+        titrant_M = _positive(titrant_M, "titrant_M", MAX_TOTAL_M)
     if not isinstance(water, Closed):
-        raise InputError("the water must be a closed water (acidscape.operations.closure.close_scenario)",
-                         field="scenario")
+        raise InputError("The water could not be read.", field="scenario")
     closed = water
     warnings = list(closed.notes)
     if closed.sol.solids:
@@ -253,7 +250,8 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
     sol0 = mix.solve(pH0, 0.0, I=I0)
     g0 = mix.charge_per_mol(sol0, 0.0)
     if g0 == 0.0:
-        raise UnreachableError(f"{chem.id} does not change this water's pH", field="titrant")
+        raise UnreachableError(f"{chem.id} does not change the pH of this water; choose an acid or a base.",
+                               field="titrant")
     upward = g0 > 0
     sign = 1.0 if upward else -1.0
     if volumes:
@@ -274,11 +272,14 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
     if (to_pH > pH0) != upward or to_pH == pH0:
         raise UnreachableError(
             f"{chem.id} acts as {'a base' if upward else 'an acid'} on this water (pH {pH0:.2f}): it "
-            f"{'raises' if upward else 'lowers'} the pH and cannot take it to {to_pH:g}", field="to_pH")
+            f"{'raises' if upward else 'lowers'} the pH and cannot take it to {to_pH:g}. Choose an end pH "
+            f"{'above' if upward else 'below'} {pH0:.2f}, or {'an acid' if upward else 'a base'} as the titrant.",
+            field="to_pH")
     if limit is not None and ((upward and to_pH >= limit) or (not upward and to_pH <= limit)):
         raise UnreachableError(
-            f"pH {to_pH:g} is beyond what {chem.id}{f' at {titrant_M:g} mol/L' if volumes else ''} can give: "
-            f"however much is added the pH only approaches {limit:.2f}", field="to_pH")
+            f"An end pH of {to_pH:g} is beyond what {chem.id}{f' at {fmt(titrant_M)} mol/L' if volumes else ''} can give: "
+            f"however much is added, the pH only approaches {limit:.2f}. Choose an end pH short of {limit:.2f}.",
+            field="to_pH")
     curve = _Curve(mix, sign)
     first = _Point(pH0, 0.0, mix.slope(sol0, 0.0), sol0, I0)
     if chem.is_gas:
@@ -288,8 +289,9 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
         if sat_pH is not None:
             if given_to_pH:
                 raise UnreachableError(
-                    f"pH {to_pH:g} is beyond what {chem.id} can give: the water is saturated with CO2 under "
-                    f"1 atm at pH {sat_pH:.2f}, and more does not dissolve", field="to_pH")
+                    f"An end pH of {to_pH:g} is beyond what {chem.id} can give: the water is saturated with CO₂ under "
+                    f"1 atm at pH {sat_pH:.2f}, and more does not dissolve. Choose an end pH above {sat_pH:.2f}.",
+                    field="to_pH")
             to_pH = sat_pH
             warnings.append(f"curve ends at pH {sat_pH:.2f}, where the water holds as much CO2 as 1 atm of pure "
                             "CO2 dissolves")

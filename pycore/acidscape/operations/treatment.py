@@ -148,7 +148,7 @@ import dataclasses
 import math
 from dataclasses import dataclass, field
 
-from ..checks import number
+from ..checks import PH_RANGE, describe, fmt, number, sentence, shown
 from ..constants import ATOMIC_WEIGHT, M_CaCO3, T0
 from ..data import library
 from ..errors import AcidscapeError, ConvergenceError, InputError, UnknownIdError, UnreachableError
@@ -172,7 +172,7 @@ TOLERANCE = {"target_pH": 1e-6, "target_LSI": 1e-6, "target_CCPP": 1e-5}
 #: Relative tolerance on the dose where the value is not yet within its tolerance.
 DOSE_RTOL = 1e-9
 #: Accepted range of each target or dose.
-BOUNDS = {"target_pH": (0.0, 14.5), "target_LSI": (-5.0, 5.0), "target_CCPP": (-5000.0, 5000.0),
+BOUNDS = {"target_pH": PH_RANGE, "target_LSI": (-5.0, 5.0), "target_CCPP": (-5000.0, 5000.0),
           "dose_mg_per_L": (0.0, 100000.0)}
 FIELDS = ("target_pH", "target_LSI", "target_CCPP", "dose_mg_per_L")
 #: Solids allowed to form by default in a pH or fixed-dose step: calcite (it forms where the
@@ -873,11 +873,11 @@ def read_solids(raw, where: str) -> tuple | None:
     if isinstance(raw, str):
         raw = [raw]
     if not isinstance(raw, (list, tuple)):
-        raise InputError(f"{where} must be a list of solid ids such as [\"calcite\"], got {raw!r}", field=where)
+        raise InputError(sentence(f"Choose {describe(where)} from the list (such as calcite)."), field=where)
     out = []
     for k, sid in enumerate(raw):
         if not isinstance(sid, str):
-            raise InputError(f"{where}[{k}] must be a solid id (text), got {sid!r}", field=f"{where}[{k}]")
+            raise InputError(sentence(f"Choose {describe(f'{where}[{k}]')} from the list."), field=f"{where}[{k}]")
         try:
             sid = library.get_solid(sid).id
         except UnknownIdError as exc:
@@ -891,10 +891,7 @@ def read_solids(raw, where: str) -> tuple | None:
 def _positive(value, where: str, hi: float) -> float | None:
     if value is None:
         return None
-    v = number(value, where, hi=hi, allow_text=True)
-    if not v > 0:
-        raise InputError(f"{where} = {v:g} must be above 0", field=where)
-    return v
+    return number(value, where, above=0.0, hi=hi, allow_text=True)
 
 
 def make_step(chemical, field: str, value, *, strength_pct=None, density_kg_per_L=None, precipitate=None,
@@ -903,10 +900,10 @@ def make_step(chemical, field: str, value, *, strength_pct=None, density_kg_per_
     where = (lambda k: f"{path}.{k}" if path else k)  # noqa: E731
     chem = get_chemical(chemical, field=where("chemical")) if isinstance(chemical, str) else None
     if chem is None:
-        raise InputError(f"{where('chemical')} must be a chemical id such as 'NaOH', got {chemical!r}",
+        raise InputError(sentence(f"Choose {describe(where('chemical'))} from the list (such as NaOH)."),
                          field=where("chemical"))
     if field not in FIELDS:
-        raise InputError(f"give one of {', '.join(FIELDS)}", field=where("target_pH"))
+        raise InputError(f"Give one target: {_TARGET_WORDS}.", field=where("target_pH"))
     lo, hi = BOUNDS[field]
     v = number(value, where(field), lo=lo, hi=hi, allow_text=True)
     return Step(chem, field, v, _positive(strength_pct, where("strength_pct"), 100.0),
@@ -934,31 +931,37 @@ def read_steps(raw, path: str = "steps") -> list[Step]:
     >>> read_steps([{"chemical": "NaOH"}])
     Traceback (most recent call last):
     ...
-    acidscape.errors.InputError: steps[0]: give one of target_pH, target_LSI, target_CCPP, dose_mg_per_L
+    acidscape.errors.InputError: Treatment step 1: give one target, a target pH, a target LSI, a target CCPP or a dose in mg/L.
     """
     if not isinstance(raw, list) or not raw:
-        raise InputError(f"{path} must be a non-empty list of steps such as [{{\"chemical\": \"NaOH\", "
-                         "\"target_pH\": 8.5}]", field=path)
+        raise InputError("Add at least one treatment step (a chemical and its target, such as NaOH to pH 8.5).",
+                         field=path)
     if len(raw) > MAX_STEPS:
-        raise InputError(f"{path} holds {len(raw)} steps; at most {MAX_STEPS} are allowed", field=path)
+        raise InputError(f"{len(raw)} treatment steps were given; at most {MAX_STEPS} are allowed.", field=path)
     out = []
     for k, st in enumerate(raw):
         where = f"{path}[{k}]"
         if not isinstance(st, dict):
-            raise InputError(f"{where} must be an object {{chemical, target_pH | target_LSI | target_CCPP | "
-                             "dose_mg_per_L, ...}", field=where)
+            raise InputError(sentence(f"{describe(where)} needs a chemical and one target ({_TARGET_WORDS})."),
+                             field=where)
         unknown = sorted(set(st) - STEP_KEYS)
         if unknown:
-            raise InputError(f"{where}: unknown keys {', '.join(unknown)}", field=f"{where}.{unknown[0]}")
+            raise InputError(sentence(f"{describe(where)} holds settings that are not known here: "
+                                      f"{', '.join(describe(k).removeprefix('the ') for k in unknown)}."),
+                             field=f"{where}.{unknown[0]}")
         given = [f for f in FIELDS if st.get(f) is not None]
         if len(given) != 1:
-            raise InputError(f"{where}: give one of {', '.join(FIELDS)}"
-                             + (f" (got {', '.join(given)})" if given else ""),
+            raise InputError(sentence(f"{describe(where)}: give one target, {_TARGET_WORDS}"
+                                      + (" (several were given)." if given else ".")),
                              field=f"{where}.{given[1] if len(given) > 1 else 'target_pH'}")
         out.append(make_step(st.get("chemical"), given[0], st[given[0]], strength_pct=st.get("strength_pct"),
                              density_kg_per_L=st.get("density_kg_per_L"), precipitate=st.get("precipitate"),
                              path=where))
     return out
+
+
+#: The targets of a step, in words.
+_TARGET_WORDS = "a target pH, a target LSI, a target CCPP or a dose in mg/L"
 
 
 def _label(field: str) -> str:
@@ -1011,16 +1014,17 @@ def _unreachable(step: Step, found: _Found, allowed: tuple) -> TargetUnreachable
     most = "highest" if s > 0 else "lowest"
     if best is None:
         best = found.start
-    msg = (f"{where} {_fmt(step.field, step.value)} is {side} the {most} {label} {chem.id} can give this water: "
-           f"{_fmt(step.field, best.value)} at {best.d * 1e3:.4g} mmol/L")
+    msg = (f"{describe(where)} ({_fmt(step.field, step.value)}) is {side} the {most} {label} {chem.id} can give "
+           f"this water: {_fmt(step.field, best.value)} at {fmt(best.d * 1e3)} mmol/L")
     if found.limited:
-        msg += ("; more CO2 would leave more dissolved H2CO3* than 1 atm of pure CO2 holds in solution "
-                "(Henry's law, Plummer & Busenberg 1982)")
+        msg += ("; more CO₂ would not dissolve (it would leave more dissolved CO₂ than 1 atm of pure CO₂ holds, "
+                "Henry's law, Plummer & Busenberg 1982)")
     elif found.point.d >= MAX_DOSE_M:
-        msg += f" (searched to {MAX_DOSE_M * 1e3:g} mmol/L)"
+        msg += f" (doses up to {fmt(MAX_DOSE_M * 1e3)} mmol/L were tried)"
     if step.field in ("target_LSI", "target_CCPP") and "calcite" in allowed and s > 0:
-        msg += ("; calcite is allowed to precipitate in this step, which holds the water at saturation (LSI 0, "
-                "CCPP 0): leave calcite out of precipitate to dose to an oversaturated water")
+        msg += ("; calcite is allowed to form in this step, which holds the water at saturation (LSI 0, "
+                "CCPP 0): do not let calcite form to dose to an oversaturated water")
+    msg = sentence(msg) + ". Choose a target the chemical can reach, or another chemical."
     detail = {"direction": side, "best_value": best.value, "best_dose_mmol_per_L": best.d * 1e3,
               "searched_to_mmol_per_L": max(q.d for q in found.points) * 1e3, "chemical": chem.id}
     return TargetUnreachableError(msg, where, detail)
@@ -1065,15 +1069,15 @@ def _run_step(water: Water, step: Step, *, flow_Ld: float | None, scenario_solid
                 # water without it): start from a trace of it
                 p0 = dosed.point(TRACE_DOSE_M, kind)
                 if p0.value is None:
-                    raise InputError(f"{step.where(kind)}: the {_label(kind)} is not defined for this water: it "
-                                     f"holds no calcium or no carbonate (alkalinity), and {chem.id} adds none",
-                                     field=step.where(kind))
+                    raise InputError(f"The {_label(kind)} is not defined for this water: it holds no calcium or "
+                                     f"no carbonate (alkalinity), and {chem.id} adds none. Choose a pH target, "
+                                     "or add calcium and alkalinity to the water.", field=step.where(kind))
                 warnings.append(f"the water holds no calcium or no carbonate before the dose: its {_label(kind)} is "
                                 f"not defined, and the search starts from a trace of {chem.id}")
         found = _search(lambda x: dosed.point(x, kind), step.value, TOLERANCE[kind], direction, start=p0)
         if found.status == "no effect":
             raise TargetUnreachableError(
-                f"{step.where(kind)}: {chem.id} does not change the {_label(kind)} of this water",
+                f"{chem.id} does not change the {_label(kind)} of this water; choose another chemical.",
                 step.where(kind), {"direction": "none", "best_value": found.start.value, "best_dose_mmol_per_L": 0.0,
                                    "searched_to_mmol_per_L": max(q.d for q in found.points) * 1e3,
                                    "chemical": chem.id})
@@ -1198,7 +1202,7 @@ def _flow(flow, flow_unit) -> float | None:
     if flow is None and flow_unit is None:
         return None
     if flow is None:
-        raise InputError("flow_unit given without flow", field="flow")
+        raise InputError("Enter the plant flow, or clear the flow unit.", field="flow")
     return flow_L_per_d(flow, flow_unit)
 
 

@@ -57,18 +57,20 @@ def _check_pKa(pKa: Sequence[float], field: str = "pKa") -> tuple[float, ...]:
     try:
         values = tuple(float(v) for v in pKa)
     except (TypeError, ValueError):
-        raise InputError(f"{field} must be a list of numbers, got {pKa!r}", field=field) from None
+        raise InputError("The pKa values must be numbers, such as 4.76 or 2.15; 7.20; 12.35.",
+                         field=field) from None
     if not values:
-        raise InputError(f"{field} must hold at least one value, got an empty list", field=field)
+        raise InputError("Enter at least one pKa value, such as 4.76.", field=field)
     if len(values) > MAX_STEPS:
         raise InputError(
-            f"{field} holds {len(values)} values; at most {MAX_STEPS} dissociation steps are allowed",
+            f"{len(values)} pKa values were given; an acid has at most {MAX_STEPS} dissociation steps.",
             field=field,
         )
     for i, v in enumerate(values):
         if not math.isfinite(v) or not PKA_LIMITS[0] <= v <= PKA_LIMITS[1]:
+            shown = f"{v:.6g}" if math.isfinite(v) else "too large"
             raise InputError(
-                f"{field}[{i}] = {v!r} is outside the accepted range {PKA_LIMITS[0]}..{PKA_LIMITS[1]}",
+                f"pKa value {i + 1} ({shown}) must be from {PKA_LIMITS[0]:g} to {PKA_LIMITS[1]:g}.",
                 field=f"{field}[{i}]",
             )
     return values
@@ -78,11 +80,9 @@ def _check_pH(pH: float, field: str = "pH") -> float:
     try:
         value = float(pH)
     except (TypeError, ValueError):
-        raise InputError(f"{field} must be a number, got {pH!r}", field=field) from None
+        raise InputError("The pH must be a number, such as 7.5.", field=field) from None
     if not math.isfinite(value) or not PH_LIMITS[0] <= value <= PH_LIMITS[1]:
-        raise InputError(
-            f"{field} = {pH!r} is outside the accepted range {PH_LIMITS[0]}..{PH_LIMITS[1]}", field=field
-        )
+        raise InputError(f"The pH must be from {PH_LIMITS[0]:g} to {PH_LIMITS[1]:g}.", field=field)
     return value
 
 

@@ -1,0 +1,366 @@
+// Job "scale": will the water lay down calcium carbonate scale or dissolve it, and what
+// conditions it. Four blocks work on the water section's water (its handle: scenario(),
+// onSolved(cb), onStale(cb)), each a section.js computation (latest-only requests):
+//   indices   solve with the uncertainty ranges, the extra temperatures and the open CCPP
+//             (api.solve's "calcium_carbonate" block)
+//   curves    saturation index against pH and CCPP against temperature, with bands
+//             (api.scale_curves)
+//   dose      a dose to a target LSI or CCPP with what precipitates and the cautions (api.dose)
+//   steps     several chemicals in sequence, the water after each (api.treat)
+// The job computes only while it is shown (workbench.js); a water solved meanwhile is
+// computed when the job is next shown, and the plots are laid out again then.
+
+import { CoreError } from "./py.js";
+import { fixed } from "./format.js";
+import { parseNumber } from "./parse.js";
+import { computation } from "./section.js";
+import { isJobShown, onJobShown } from "./workbench.js";
+import { relayoutPlots } from "./plot.js";
+
+const DEBOUNCE_MS = 150;
+const JOB = "scale";
+/** Temperature grid of the CCPP curve [°C]: 5 to 100 in steps of 5. */
+const CURVE_T = { from_C: 5, to_C: 100, points: 20 };
+const MAX_TEMPERATURES = 8;
+/** Chemicals offered first (the conditioning chemicals of the trade); any other follows. */
+const CONDITIONING = ["NaOH", "Ca(OH)2", "Na2CO3", "CO2", "NaHCO3", "H2SO4", "HCl"];
+const DEFAULT_STEPS = [
+  { chemical: "Ca(OH)2", kind: "target_pH", value: "9.5" },
+  { chemical: "CO2", kind: "target_LSI", value: "0" },
+];
+
+/**
+ * Read a list of temperatures [°C]: numbers separated by commas, semicolons or spaces
+ * (decimal points; "60, 100" is two temperatures).
+ *
+ * @param {string} text
+ * @returns {{value?: number[], error?: string}}
+ */
+export function parseTemperatureList(text) {
+  const parts = String(text ?? "").trim().split(/[;,\s]+/).filter(Boolean);
+  const out = [];
+  for (const part of parts) {
+    const v = parseNumber(part, "temperatures in °C between 0 and 100, e.g. 60, 100");
+    if (v.error) return { error: v.error };
+    if (v.value < 0 || v.value > 100) return { error: `${part} °C is outside 0 to 100 °C (liquid water at 1 atm).` };
+    out.push(v.value);
+  }
+  if (out.length > MAX_TEMPERATURES) return { error: `At most ${MAX_TEMPERATURES} temperatures; ${out.length} were given.` };
+  return { value: out };
+}
+
+function sign(x, d) {
+  return (x > 0 ? "+" : "") + fixed(x, d);
+}
+
+/** The verdict in words, and how sure it is. */
+function verdictOf(cc) {
+  const unc = cc.uncertainty || {};
+  const [lo, hi] = unc.LSI_range || [null, null];
+  const ccpp = cc.CCPP_mg_per_L_as_CaCO3;
+  let text;
+  if (cc.tendency === "deposit") {
+    text = `This water will deposit calcium carbonate (scale): LSI ${sign(cc.LSI, 2)}` +
+      (Number.isFinite(ccpp) ? `; up to ${fixed(ccpp, 1)} mg/L as CaCO₃ can precipitate (CCPP).` : ".");
+  } else if (cc.tendency === "dissolve") {
+    text = `This water will dissolve calcium carbonate (it attacks cement and lays down no protective scale): ` +
+      `LSI ${sign(cc.LSI, 2)}` + (Number.isFinite(ccpp) ? `; it would dissolve ${fixed(-ccpp, 1)} mg/L as CaCO₃.` : ".");
+  } else {
+    text = `This water is at saturation with calcium carbonate (LSI ${sign(cc.LSI, 2)}): it neither deposits nor dissolves much.`;
+  }
+  if (Number.isFinite(lo) && Number.isFinite(hi) && lo < 0 && hi > 0) {
+    text += ` The LSI's range (${sign(lo, 2)} to ${sign(hi, 2)}) includes zero: within the usual measurement uncertainty the sign is not certain.`;
+  }
+  return text;
+}
+
+/**
+ * Mount the job.
+ *
+ * @param {object} deps
+ * @param {{call: (method: string, params?: object) => Promise<any>}} deps.py  the core
+ * @param {import("./scale-view.js").ScaleView} deps.view  its DOM
+ * @param {{saturation: object, ccpp: object}} deps.plots  from plot.js embedScalePlots
+ * @param {{scenario: () => object|null, onSolved: Function, onStale?: Function}} deps.water  the water handle
+ * @param {{id: string, name: string}[]} deps.chemicals  from the core's "chemicals" method
+ * @returns {{refresh: () => Promise<void>}}
+ */
+export function mountScale({ py, view, plots, water, chemicals }) {
+  const order = (c) => {
+    const k = CONDITIONING.indexOf(c.id);
+    return k < 0 ? CONDITIONING.length : k;
+  };
+  const offered = [...chemicals].sort((a, b) => order(a) - order(b));
+  const known = new Set(offered.map((c) => c.id));
+  view.setChemicals(offered);
+  view.setSteps(DEFAULT_STEPS.filter((s) => known.has(s.chemical)));
+  if (known.has("NaOH")) view.write("scale-dose-chemical", "NaOH");
+  let current = { scenario: null, result: null };
+  let waterNote = "";
+  let dirty = true; // the water changed while the job was hidden
+  let lastIndices = null;
+  let lastCurves = null;
+
+  const shown = () => isJobShown(JOB) || view.isVisible();
+
+  // -- indices and curves ---------------------------------------------------------------------
+  function readIndexInputs() {
+    const raw = view.read();
+    const errors = {};
+    const temps = parseTemperatureList(raw["scale-temperatures"]);
+    if (temps.error) errors["scale-temperatures"] = temps.error;
+    const p = parseNumber(raw["scale-pco2"], "a CO₂ partial pressure in atm, e.g. 0.00042, or leave it empty", { optional: true });
+    if (p.error) errors["scale-pco2"] = p.error;
+    else if (p.value !== null && !(p.value > 0 && p.value <= 10)) {
+      errors["scale-pco2"] = "The CO₂ partial pressure must be above 0 and at most 10 atm (air holds about 0.00042).";
+    }
+    return { temps: temps.value ?? [], pCO2: p.value ?? null, errors };
+  }
+
+  function missingMessage(result) {
+    const has = (id) => (result?.ions ?? []).some((i) => i.id === id && i.total_M > 0);
+    const hasC = (result?.systems ?? []).some((s) => s.id === "carbonate" && s.total_M > 0);
+    const missing = [!has("calcium") && "calcium", !hasC && "alkalinity (carbonate)"].filter(Boolean);
+    return `The calcium carbonate indices need calcium and alkalinity: the water above has no ${missing.join(" and no ") || "calcium carbonate data"}. Add them to the water to see the LSI, RSI and CCPP.`;
+  }
+
+  function drawCcppPlot() {
+    if (!lastCurves) return;
+    const c = lastCurves.ccpp_against_temperature;
+    const marks = (lastIndices?.at_temperatures ?? []).map((row, i) => ({
+      t: row.temperature_C, ccpp: row.CCPP_mg_per_L_as_CaCO3,
+      label: i === 0 ? "the water as it is" : `${fixed(row.temperature_C, 0)} °C`,
+    }));
+    plots.ccpp.setCurve(c.temperature_C, c.CCPP_mg_per_L_as_CaCO3, c.CCPP_low ?? [], c.CCPP_high ?? [], marks);
+  }
+
+  const indices = computation({
+    read() {
+      const { temps, pCO2, errors } = readIndexInputs();
+      if (Object.keys(errors).length) return { params: null, errors };
+      if (!current.scenario) return { params: null };
+      const scenario = { ...current.scenario, uncertainty: true, ccpp_temperatures_C: temps };
+      if (pCO2 !== null) scenario.ccpp_open_CO2_partial_pressure_atm = pCO2;
+      return { params: scenario };
+    },
+    call: (scenario) => py.call("solve", scenario),
+    render(result) {
+      const cc = result.calcium_carbonate;
+      if (!cc) {
+        lastIndices = null;
+        view.showErrors("indices", { block: missingMessage(result) });
+        view.renderIndices(null);
+        view.setResultState("indices", "empty");
+        return;
+      }
+      view.showErrors("indices", {});
+      if (!waterNote) view.setWater(`Working on the water above: pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C.`);
+      lastIndices = cc;
+      const u = cc.uncertainty || {};
+      const ranges = {
+        LSI: u.LSI_range, pHs: u.pHs_range, RSI: u.RSI_range, CCPP: u.CCPP_range_mg_per_L_as_CaCO3,
+        CCPP_open: u.CCPP_open_range_mg_per_L_as_CaCO3,
+      };
+      const classic = cc.classic ? ` Classic form (total calcium and total alkalinity, no ion pairs): LSI ${sign(cc.classic.LSI, 2)}, pHs ${fixed(cc.classic.pHs, 2)}.` : "";
+      const dominant = u.dominant?.LSI ? ` The input that moves the LSI most: ${u.dominant.LSI}.` : "";
+      view.renderIndices(cc, {
+        verdict: verdictOf(cc),
+        tendency: cc.tendency,
+        method: `Method: ${cc.method_id} (at ${fixed(cc.temperature_C, 1)} °C, pH ${fixed(cc.pH, 2)}). ${cc.method}.${classic}` +
+          ` CCPP: ${cc.CCPP_method}.${dominant} Ranges: ${u.method ?? "not computed"}.`,
+        notes: [...(cc.notes ?? []), ...(cc.at_temperatures ?? []).flatMap((r) => (r.notes ?? []).map((n) => `${fixed(r.temperature_C, 0)} °C: ${n}`))],
+        ranges,
+      });
+      drawCcppPlot();
+      settled("indices");
+      view.markDrawn("indices");
+    },
+    explain: (error) => coreMessage(error, { ccpp_open_CO2_partial_pressure_atm: "scale-pco2", ccpp_temperatures_C: "scale-temperatures" }, "Indices"),
+    show(messages, kind) {
+      view.showErrors("indices", messages);
+      lastIndices = null;
+      view.renderIndices(null); // no number beside a question that cannot be answered
+      view.setResultState("indices", "empty");
+      if (kind === "failed") view.setBandNote("");
+    },
+    busy: (flag) => view.setBusy("indices", flag),
+  });
+
+  const curves = computation({
+    read: () => ({ params: current.scenario ? { scenario: current.scenario, temperature: CURVE_T } : null }),
+    call: (params) => py.call("scale_curves", params),
+    render(r) {
+      lastCurves = r;
+      const s = r.saturation_against_pH;
+      plots.saturation.setCurve(s.pH, s.LSI, s.LSI_low ?? [], s.LSI_high ?? [],
+        { pH: s.water.pH, LSI: s.water.LSI, label: "the water" });
+      drawCcppPlot();
+      view.setBandNote(`Saturation index plot: ${s.method}; ${s.band ?? ""}. CCPP plot: ${r.ccpp_against_temperature.method}; ` +
+        `${r.ccpp_against_temperature.band ?? ""}.` + [...(s.notes ?? []), ...(r.ccpp_against_temperature.notes ?? [])].map((n) => ` ${n}.`).join(""));
+      view.markDrawn("curves");
+    },
+    explain: (error) => ({ block: error instanceof CoreError ? error.message : String(error?.message || error) }),
+    show() {
+      lastCurves = null;
+      plots.saturation.setCurve([], [], [], [], null);
+      plots.ccpp.setCurve([], [], [], [], []);
+      view.setBandNote("");
+    },
+    busy: () => {},
+  });
+
+  // -- dose to a target LSI or CCPP -------------------------------------------------------------
+  const DOSE_FIELDS = {
+    chemical: "scale-dose-chemical", target_LSI: "scale-dose-target", target_CCPP: "scale-dose-target",
+    flow: "scale-dose-flow", flow_unit: "scale-dose-flow-unit",
+  };
+  const dose = computation({
+    read() {
+      const raw = view.read();
+      const errors = {};
+      const kind = raw["scale-dose-target-kind"];
+      const target = parseNumber(raw["scale-dose-target"], kind === "LSI" ? "the target LSI, e.g. 0" : "the target CCPP in mg/L as CaCO₃, e.g. 4");
+      if (target.error) errors["scale-dose-target"] = target.error;
+      const flow = parseNumber(raw["scale-dose-flow"], "the plant flow, or leave it empty", { optional: true });
+      if (flow.error) errors["scale-dose-flow"] = flow.error;
+      else if (flow.value !== null && !(flow.value > 0)) errors["scale-dose-flow"] = "The plant flow must be above 0, or leave it empty.";
+      if (Object.keys(errors).length) return { params: null, errors };
+      if (!current.scenario) return { params: null };
+      const params = { scenario: current.scenario, chemical: raw["scale-dose-chemical"], [`target_${kind}`]: target.value };
+      if (flow.value !== null) Object.assign(params, { flow: flow.value, flow_unit: raw["scale-dose-flow-unit"] });
+      return { params };
+    },
+    call: (params) => py.call("dose", params),
+    render(r) {
+      view.showErrors("dose", {});
+      view.renderDose(r);
+      settled("dose");
+      view.markDrawn("dose");
+    },
+    explain: (error) => coreMessage(error, DOSE_FIELDS, "Dose"),
+    show(messages) {
+      view.showErrors("dose", messages);
+      view.renderDose(null);
+      view.setResultState("dose", "empty");
+    },
+    busy: (flag) => view.setBusy("dose", flag),
+  });
+
+  // -- several chemicals in sequence ------------------------------------------------------------
+  const steps = computation({
+    read() {
+      const rows = view.readSteps();
+      const errors = {};
+      if (!rows.length) errors["scale-steps"] = "Add at least one step.";
+      const out = rows.map((row, i) => {
+        const what = row.kind === "dose_mg_per_L" ? "a dose in mg/L, e.g. 10" : row.kind === "target_pH" ? "a target pH, e.g. 8.5"
+          : row.kind === "target_LSI" ? "a target LSI, e.g. 0" : "a target CCPP in mg/L as CaCO₃, e.g. 4";
+        const v = parseNumber(row.value, what);
+        if (v.error) errors[`scale-step-${i}-value`] = v.error;
+        else if (row.kind === "dose_mg_per_L" && v.value < 0) errors[`scale-step-${i}-value`] = "A dose cannot be negative.";
+        return { chemical: row.chemical, [row.kind]: v.value };
+      });
+      if (Object.keys(errors).length) return { params: null, errors };
+      if (!current.scenario) return { params: null };
+      return { params: { scenario: current.scenario, steps: out } };
+    },
+    call: (params) => py.call("treat", params),
+    render(r) {
+      view.showErrors("steps", {});
+      view.renderSteps(r);
+      settled("steps");
+      view.markDrawn("steps");
+    },
+    explain(error) {
+      if (error instanceof CoreError) {
+        const m = /^steps\[(\d+)\]\.(\w+)/.exec(error.field ?? "");
+        if (m) {
+          const part = m[2] === "chemical" ? "chemical" : "value";
+          return { [`scale-step-${m[1]}-${part}`]: error.message };
+        }
+      }
+      return coreMessage(error, {}, "Sequence");
+    },
+    show(messages) {
+      view.showErrors("steps", messages);
+      view.renderSteps(null);
+      view.setResultState("steps", "empty");
+    },
+    busy: (flag) => view.setBusy("steps", flag),
+  });
+
+  function coreMessage(error, fields, block) {
+    if (!(error instanceof CoreError)) return { block: String(error?.message || error) };
+    const id = fields[error.field];
+    if (id) return { [id]: error.message.replace(/^target_(LSI|CCPP)/i, "Target $1") };
+    const about = error.field && error.field !== "scenario" ? ` (${error.field})` : "";
+    return { block: `${block}: the water above could not be used${about}: ${error.message}` };
+  }
+
+  function settled(block) {
+    if (waterNote) view.setResultState(block, "stale", waterNote);
+    else view.setResultState(block, "current");
+  }
+
+  const blocks = { indices, curves, dose, steps };
+
+  async function refresh() {
+    if (!shown()) {
+      dirty = true;
+      return;
+    }
+    dirty = false;
+    await Promise.all([indices.run(), dose.run(), steps.run(), curves.run()]);
+  }
+
+  water.onSolved((scenario, result) => {
+    current = { scenario, result };
+    waterNote = "";
+    view.setWater(`Working on the water above: pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C.`, false);
+    refresh();
+  });
+
+  water.onStale?.((note, result) => {
+    waterNote = result
+      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C).`
+      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    view.setWater(waterNote, true);
+    for (const [name, block] of Object.entries(blocks)) {
+      block.cancel();
+      if (name !== "curves") view.setResultState(name, "stale", waterNote);
+    }
+  });
+
+  onJobShown(JOB, () => {
+    relayoutPlots();
+    if (dirty) refresh();
+  });
+
+  view.bind(
+    (block, id) => {
+      const blockOf = { indices, dose, steps };
+      blockOf[block].schedule(view.isChoice(id) ? 0 : DEBOUNCE_MS);
+    },
+    (t) => {
+      const now = view.read()["scale-temperatures"];
+      const list = parseTemperatureList(now).value ?? [];
+      if (!list.includes(t)) view.write("scale-temperatures", [...list, t].join(", "));
+      indices.schedule(0);
+    },
+    () => {
+      view.addStep({ chemical: "CO2", kind: "target_LSI", value: "0" });
+      steps.schedule(0);
+    },
+    (i) => {
+      const rows = view.readSteps();
+      rows.splice(i, 1);
+      view.setSteps(rows);
+      steps.schedule(0);
+    },
+  );
+
+  const initial = water.scenario?.();
+  if (initial) current.scenario = initial;
+  view.setWater("Describe the water above; this job works on it.");
+  return { refresh };
+}
