@@ -91,6 +91,43 @@ def test_each_row_equals_solve_of_its_own_scenario():
         assert row["pH"] == pytest.approx(float(cells["pH"]), abs=1e-6)
 
 
+def test_rows_sharing_a_tableau_equal_solve_of_their_own_scenarios():
+    # Rows alike in make-up and temperature share one tableau (batch._row_model); each must still
+    # give exactly what api.solve gives for its own scenario: other totals, a blank total (another
+    # make-up), a conductivity (ionic strength from it) and another temperature in between.
+    from acidscape.boundary import batch
+
+    batch._MODELS.clear()
+    text = ("id,pH,T,Alk,Ca,Mg,EC\n"
+            "a,7.4,12,120,40,8,\nb,8.1,12,60,15,2,\nc,7.9,12,200,,5,\nd,7.6,12,90,30,4,450\n"
+            "e,7.0,20,150,60,12,\nf,8.4,12,40,5,1,\ng,7.6,12,90,30,4,\n")
+    m = {"id": "id", "pH": "pH", "temperature": {"column": "T", "unit": "C"},
+         "alkalinity": {"column": "Alk", "unit": "mg/L as CaCO3"}, "conductivity": {"column": "EC", "unit": "uS/cm"},
+         "ions": [{"id": "calcium", "column": "Ca", "unit": "mg/L"}, {"id": "magnesium", "column": "Mg", "unit": "mg/L"}]}
+    out = run_rows(text, m)
+    assert out["errors"] == []
+    # make-ups: Ca, Mg and a negative balancing ion at 12 °C (a, d, g) or 20 °C (e), a positive
+    # one (b, f), Mg only (c): the closure's balancing ion takes the sign the water needs
+    assert len(batch._MODELS) == 4
+    for cells, row in zip(csv.DictReader(io.StringIO(text)), out["rows"]):
+        sc = {"temperature_C": float(cells["T"]), "activity": "davies",
+              "measured": {"pH": float(cells["pH"]), "alkalinity": {"value": float(cells["Alk"]),
+                                                                    "unit": "mg/L as CaCO3"}},
+              "ions": [{"id": k, "total": float(cells[c]), "unit": "mg/L"}
+                       for k, c in (("calcium", "Ca"), ("magnesium", "Mg")) if cells[c]]}
+        if cells["EC"]:
+            sc["conductance_uS_per_cm"] = float(cells["EC"])
+        want = api.solve(sc)
+        for key, got in (("pH", row["pH"]), ("ionic_strength_M", row["ionic_strength_M"])):
+            assert got == want[key], (cells["id"], key)
+        assert row["alkalinity_mg_per_L_as_CaCO3"] == want["alkalinity"]["total_mg_per_L_as_CaCO3"]
+        assert row["carbonate_alk_mg_per_L_as_CaCO3"] == \
+            want["alkalinity"]["split_from_speciation"]["carbonate_mg_per_L_as_CaCO3"]
+    # d (ionic strength from its conductivity) and g (from its composition) differ only there
+    d, g = out["rows"][3], out["rows"][6]
+    assert d["ionic_strength_M"] != g["ionic_strength_M"]
+
+
 def test_alkalinity_reported_back_is_the_lab_value():
     # Fixed end point pH 4.5 total alkalinity (Standard Methods 2320 B, common practice): the
     # water inferred from pH + alkalinity must titrate back to the number the lab wrote down.

@@ -887,6 +887,47 @@ def row_scenario(plan: _Plan, cells) -> tuple[dict, float | None]:
     return sc, pH
 
 
+#: Tableaux of the row waters met so far, by make-up and temperature (see :func:`_row_model`).
+_MODELS: dict = {}
+#: Most tableaux kept (a sheet's rows at a few hundred distinct temperatures share them).
+MAX_MODELS = 512
+
+
+def _row_model(parsed):
+    """The row's :class:`~acidscape.science.tableau.WaterModel`, sharing its tableau with earlier
+    rows of the same make-up.
+
+    A water's tableau (species, complexes and solids of the database written in its component
+    basis, constants at its temperature) depends on which systems and ions it holds, its
+    temperature and activity model, not on their amounts. Rows alike in those share one
+    tableau (and the model's caches on it); each row gets its own totals, ionic strength
+    rule and fixed species, set as :class:`WaterModel` sets them from its inputs, so the
+    model answers exactly as for ``acidscape.boundary.api.water_model(parsed)``
+    (``tests/test_batch.py`` checks this row by row).
+    """
+    import copy
+
+    from .api import water_model
+
+    key = (tuple((s.key, s.name, s.species, s.charges, s.pKa, s.ion_sizes, s.fixed_first_M is None)
+                 for s in parsed.components),
+           tuple((i.key, i.name, i.charge, i.ion_size_A) for i in parsed.ions),
+           parsed.T, parsed.pKw, parsed.model, parsed.complexes)
+    base = _MODELS.get(key)
+    if base is None:
+        if len(_MODELS) >= MAX_MODELS:
+            _MODELS.clear()
+        base = _MODELS[key] = water_model(parsed)
+    wm = copy.copy(base)
+    wm.systems, wm.ions, wm.I_fixed = list(parsed.components), list(parsed.ions), parsed.I_fixed
+    # as WaterModel.__init__ lays them out: H+ (set by the solve), each system, each ion
+    wm.totals = [0.0] + [0.0 if s.fixed_first_M is not None else s.total_M for s in parsed.components] \
+        + [i.conc_M for i in parsed.ions]
+    wm.fixed_species = {wm.system_species[s.key][0]: s.fixed_first_M for s in parsed.components
+                        if s.fixed_first_M is not None}
+    return wm
+
+
 def _row_water(sc: dict):
     """The row's water, closed and solved: ``(ordinary scenario, parsed, inferred, model, solution)``.
 
@@ -895,10 +936,10 @@ def _row_water(sc: dict):
     the rest of its description (indices, buffer intensity, saturation, trail, equivalence
     points), which a batch row does not report.
     """
-    from .api import _ordinary, water_model
+    from .api import _ordinary
 
     scenario, parsed, inferred = _ordinary(sc)
-    wm = water_model(parsed)
+    wm = _row_model(parsed)
     sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
     return scenario, parsed, inferred, wm, sol
 
