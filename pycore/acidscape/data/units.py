@@ -103,7 +103,7 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
         m = _mass_g_per_mol(item)
         if not m:
             raise InputError(
-                f"{u} needs a molar mass, and {name} has none; choose one of "
+                f"The unit {u} needs a molar mass, and {name} has none; choose one of "
                 + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
@@ -114,14 +114,14 @@ def factor_to_molar(unit: str, item, field: str = "unit") -> float:
         as_mass = getattr(item, "as_g_per_mol", None)
         if not as_formula or basis != as_formula or not as_mass:
             raise InputError(
-                f"{shown(unit)} does not fit {name}; choose one of " + ", ".join(accepted_units(item)) + ".",
+                f"The unit {shown(unit)} does not fit {name}; choose one of " + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
         return 1e-3 / as_mass
     if u == "meq/L":
         if not _is_ion(item) or not getattr(item, "charge", 0):
             raise InputError(
-                f"meq/L applies to strong ions only (the equivalents per mole of {name} depend on the "
+                f"The unit meq/L applies to strong ions only (the equivalents per mole of {name} depend on the "
                 f"pH); choose one of " + ", ".join(accepted_units(item)) + ".",
                 field=field,
             )
