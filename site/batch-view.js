@@ -11,6 +11,7 @@
 //   #batch-total-<i>-column / -id / -unit   one totals row (filled from the guess or by hand)
 
 import { prettyFormula, sciNumber } from "./format.js";
+import { parsePH } from "./parse.js";
 
 function byId(doc, id) {
   const el = doc.getElementById(id);
@@ -264,12 +265,10 @@ export class BatchView {
     if (mapping.mode === "measured" && !mapping.pH) problems.push("Choose the pH column, or calculate the equilibrium pH instead.");
     const chem = v("batch-dose-chemical");
     if (chem) {
-      const target = Number(String(v("batch-dose-target")).trim().replace(/\u2212/g, "-").replace(",", "."));
-      if (!String(v("batch-dose-target")).trim() || !Number.isFinite(target) || target < 0 || target > 14) {
-        problems.push("Enter a target pH between 0 and 14 for the dose.");
-      } else {
-        mapping.dose = { chemical: chem, target_pH: target };
-      }
+      // the one number parser (decimal commas) and the core's one pH range (site/parse.js)
+      const target = parsePH(v("batch-dose-target"), "The target pH of the dose");
+      if (target.error) problems.push(target.error);
+      else mapping.dose = { chemical: chem, target_pH: target.value };
     }
     return { mapping, problems };
   }

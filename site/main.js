@@ -17,6 +17,7 @@ import { mountShare, openingOf } from "./share-section.js";
 import { loadPresets } from "./presets.js";
 import { applyState } from "./state.js";
 import { onPendingChange } from "./section.js";
+import { setLimits } from "./parse.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
 import { embedConditionalConstantPlot, embedEdtaTitrationPlot, embedMetalSolubilityPlot } from "./plot.js";
@@ -63,6 +64,7 @@ try {
     py.call("chemicals").then((r) => r.chemicals),
   ]);
   const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
+  setLimits(waterLibrary.limits); // the core's input limits (one pH range) for every pH field
 
   // What the URL opens (a link or an example) is read before anything is computed, and each
   // section is filled from it before its first result: the defaults never flash first.

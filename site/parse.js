@@ -7,6 +7,26 @@
 // Lists (pKa values) are separated by ";" or by ", " (comma and space); "4.2,8.9" (no spaces,
 // decimal points) is a list too, and "4,76" alone is one number with a decimal comma.
 
+// Limits of the inputs (the pH range...) come from the core, which owns them (acidscape.checks,
+// sent with the "systems" catalogue): main.js hands them over once with setLimits(). Until then no
+// range is checked here, and the core's own message (beside the field) says what is allowed.
+let limits = null;
+
+/**
+ * Take the core's input limits (the "limits" of the "systems" catalogue).
+ *
+ * @param {{pH?: [number, number], total_M?: number, flow_L_per_d?: number}|null|undefined} fromCore
+ */
+export function setLimits(fromCore) {
+  const pH = fromCore?.pH;
+  limits = Array.isArray(pH) && pH.length === 2 && pH.every(Number.isFinite) ? { ...fromCore, pH: [...pH] } : null;
+}
+
+/** @returns {[number, number]|null}  the one pH range of every pH field, once the core has said it */
+export function phRange() {
+  return limits ? [...limits.pH] : null;
+}
+
 /** A plain decimal number with a point (exponent allowed): the form every number ends up in. */
 export const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
 /** A whole number as typed in a field. */
@@ -143,4 +163,27 @@ export function stateNumber(text) {
   if (!t) return null;
   const plain = normalizeNumberText(t);
   return plain === null ? t : Number(plain);
+}
+
+/**
+ * Parse a pH field: a number (decimal comma allowed) within the core's one pH range.
+ *
+ * @param {unknown} text  what the user typed, e.g. "8,5"
+ * @param {string} label  the field in words at the start of a sentence, e.g. "The target pH"
+ * @param {{optional?: boolean}} [opts]  an empty optional field gives value null
+ * @returns {{value?: number|null, error?: string, raw?: string}}
+ *
+ * @example parsePH("8,5", "The target pH").value === 8.5
+ */
+export function parsePH(text, label, { optional = false } = {}) {
+  const range = phRange();
+  const span = range ? ` (from ${range[0]} to ${range[1]})` : "";
+  const what = `${label.charAt(0).toLowerCase()}${label.slice(1)}${span}`;
+  const parsed = parseNumber(text, what, { optional });
+  if (parsed.error || parsed.value === null || !range) return parsed;
+  if (parsed.value < range[0] || parsed.value > range[1]) {
+    return { error: `${label} must be from ${range[0]} to ${range[1]} (you entered ${cleanNumberText(text)}).`,
+      raw: cleanNumberText(text) };
+  }
+  return parsed;
 }

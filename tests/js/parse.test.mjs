@@ -3,7 +3,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import {
-  normalizeNumberText, parseNumber, parseNumberList, parseTemperature, stateNumber,
+  normalizeNumberText, parseNumber, parseNumberList, parsePH, parseTemperature, phRange, setLimits, stateNumber,
 } from "../../site/parse.js";
 
 test("a decimal comma reads like a decimal point", () => {
@@ -65,4 +65,43 @@ test("state numbers: the number when the text reads as one, else the text", () =
   assert.equal(stateNumber("12,5"), 12.5);
   assert.equal(stateNumber(""), null);
   assert.equal(stateNumber("abc"), "abc");
+});
+
+test("pH fields: decimal commas, and the one range the core gives (no copy of it here)", () => {
+  setLimits(null);
+  assert.equal(phRange(), null);
+  // before the core has said its range, only the number is read (the core checks the range)
+  assert.equal(parsePH("20", "The target pH").value, 20);
+  setLimits({ pH: [0, 14], total_M: 5 });
+  assert.deepEqual(phRange(), [0, 14]);
+  assert.equal(parsePH("8,5", "The target pH").value, 8.5);
+  assert.equal(parsePH(" 7.25 ", "The target pH").value, 7.25);
+  assert.equal(parsePH("0", "The target pH").value, 0);
+  assert.equal(parsePH("14", "The target pH").value, 14);
+  assert.deepEqual(parsePH("", "The end pH", { optional: true }), { value: null });
+  const high = parsePH("20", "The target pH");
+  assert.equal(high.error, "The target pH must be from 0 to 14 (you entered 20).");
+  assert.match(parsePH("−0,5", "The measured pH").error, /^The measured pH must be from 0 to 14 \(you entered -0,5\)\.$/);
+  assert.match(parsePH("seven", "The target pH").error, /"seven" is not a number; enter the target pH \(from 0 to 14\)\./);
+  assert.match(parsePH("", "The target pH").error, /^Enter the target pH \(from 0 to 14\)\.$/);
+  assert.match(parsePH("1e999", "The target pH").error, /too large; enter the target pH/);
+  // a malformed catalogue leaves the range to the core
+  setLimits({ pH: ["a", 3] });
+  assert.equal(phRange(), null);
+  setLimits(null);
+});
+
+test("every number form a user types reads the same as the plain number", () => {
+  for (const [typed, plain] of [["12,5", 12.5], ["12.5", 12.5], [" 12,50 ", 12.5], ["1 234,5", 1234.5],
+    ["1.234,5", 1234.5], ["1,234.5", 1234.5], ["0,1", 0.1], [",5", 0.5], ["−12,5", -12.5], ["1,25e1", 12.5]]) {
+    assert.equal(parseNumber(typed, "x").value, plain, typed);
+    assert.equal(stateNumber(typed), plain, typed);
+  }
+  // °F with a decimal comma: 54,5 °F = (54.5 - 32) x 5/9 = 12.5 °C (definition of the Fahrenheit scale)
+  assert.ok(Math.abs(parseTemperature("54,5 °F", "t").value - 12.5) < 1e-12);
+  assert.ok(Math.abs(parseTemperature("54,5°F", "t").value - 12.5) < 1e-12);
+  assert.ok(Math.abs(parseTemperature("54.5 deg F", "t").value - 12.5) < 1e-12);
+  assert.equal(parseTemperature("12,5", "t").value, 12.5);
+  assert.equal(parseTemperature("12,5 °C", "t").value, 12.5);
+  assert.ok(Math.abs(parseTemperature("285,65 K", "t").value - 12.5) < 1e-9); // 0 °C = 273.15 K (SI)
 });
