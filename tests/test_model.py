@@ -194,3 +194,35 @@ def test_free_calcium_in_a_CaY_solution_by_the_conditional_constant(pH):
         assert free_ca > 1e-4
     else:
         assert free_ca < 1e-5
+
+
+@pytest.mark.parametrize("pH, solids", [(None, ()), (8.3, ()), (8.3, (0,))])
+def test_compiled_evaluation_is_the_same_arithmetic_as_the_loop(pH, solids):
+    # The model compiles a constraint pattern's evaluation to straight-line code once it is
+    # used often (model._compile_evaluator); it must give the very same numbers as the loop
+    # it replaces, at every state Newton's method visits, and the same answer.
+    import acidscape.science.model as model
+
+    tab = _carbonate_water()
+    totals = [0.0, 4e-3, 3e-3, 2e-3, 2e-3]  # an invented hard water [mol/L]
+    lg = gamma_function(T25, "davies")
+    seen = []
+    real = model._newton
+
+    def spy(prob, y, **kw):
+        seen.append((prob, list(y)))
+        return real(prob, y, **kw)
+
+    model._newton = spy
+    try:
+        sols = [equilibrium(tab, totals, T=T25, gamma_of=lg, pH=pH, allow_solids=solids) for _ in range(3)]
+    finally:
+        model._newton = real
+    assert seen and any(prob.sk.compiled is not None for prob, _ in seen)
+    for prob, y in seen:
+        fn = prob.sk.compiled or prob.sk.compile()
+        for want_hess in (True, False):
+            assert fn(y, prob.cs_lnK, prob.Tr, prob.Tr_abs, prob.const, want_hess) == \
+                prob._coupled(y, want_hess)
+    assert sols[0].pH == sols[-1].pH and sols[0].conc == sols[-1].conc
+    assert bool(sols[0].solids) == bool(solids)

@@ -294,10 +294,12 @@ class _Skeleton:
     structure and constraint pattern; the ionic strength only changes the numbers."""
 
     __slots__ = ("r", "N", "free", "nH", "P", "pivots", "N_cols", "N_rows", "cs_nz", "cs_abs", "cs_hess",
-                 "cs_x0", "nH_nz", "dependent")
+                 "cs_x0", "nH_nz", "dependent", "calls", "compiled")
 
     def __init__(self, nc: int, C: list[list[float]], prefer: list[int], x_coeffs: list[list[float]]):
         self.dependent = False
+        self.calls = 0          # evaluations so far (None: not worth compiling)
+        self.compiled = None    # the straight-line evaluation, once compiled
         if C:
             res = _rref_nullspace(C, nc, prefer)
             if res is None:
@@ -323,6 +325,20 @@ class _Skeleton:
             # lower-triangle Hessian entries of this species: (flat index q*r+s, a_q a_s), s <= q
             self.cs_hess.append([(q * r + s, aq * as_) for q, aq in nz for s, as_ in nz if s <= q])
             self.cs_x0.append([(k, a[k]) for k in range(nc) if a[k] and k in pset])
+        if r == 0 or not self.cs_nz:
+            self.calls = None
+
+    def compile(self):
+        """The compiled evaluation of this pattern (shared by every skeleton of the same pattern)."""
+        key = (self.r, tuple(tuple(nz) for nz in self.cs_nz))
+        fn = _COMPILED.get(key)
+        if fn is None:
+            fn = _compile_evaluator(self.r, self.cs_nz, self.cs_hess)
+            if len(_COMPILED) > 512:
+                _COMPILED.clear()
+            _COMPILED[key] = fn
+        self.compiled = fn
+        return fn
 
 
 class _Problem:
@@ -360,6 +376,27 @@ class _Problem:
 
     def evaluate(self, y, want_hess=True):
         """F, gradient, Hessian (or None) and per-coordinate residual scale at y."""
+        sk = self.sk
+        fn = sk.compiled
+        if fn is None and sk.calls is not None:
+            sk.calls += 1
+            if sk.calls >= COMPILE_AFTER:
+                fn = sk.compile()
+        if fn is not None:
+            out = fn(y, self.cs_lnK, self.Tr, self.Tr_abs, self.const, want_hess)
+            if out is None:
+                return math.inf, None, None, None
+            F, g, H, scale = out
+        else:
+            F, g, H, scale = self._coupled(y, want_hess)
+            if F == math.inf:
+                return math.inf, None, None, None
+        if self.ladders:
+            F = self._add_ladders(y, F, g, H, scale)
+        return F, g, H, scale
+
+    def _coupled(self, y, want_hess):
+        """The coupled species' part of :meth:`evaluate` (the loop :func:`_compile_evaluator` unrolls)."""
         r = self.r
         exp = math.exp
         F = -self.const
@@ -383,34 +420,6 @@ class _Problem:
             if want_hess:
                 for k, p in hs:
                     Hf[k] += p * c
-        if self.ladders:
-            xH = self.xH(y)
-            m1 = m2 = Fs = sabs = 0.0
-            for T, lad in zip(self.T_simple, self.ladders):
-                if len(lad) == 1:
-                    k, lnK = lad[0]
-                    Fs += T * (lnK + k * xH)
-                    m1 += T * k
-                    sabs += T * abs(k)
-                    continue
-                es = [lnK + k * xH for k, lnK in lad]
-                top = max(es)
-                w = [exp(e - top) for e in es]
-                S = sum(w)
-                mean = sum(k * wi for (k, _), wi in zip(lad, w)) / S
-                var = sum(k * k * wi for (k, _), wi in zip(lad, w)) / S - mean * mean
-                Fs += T * (top + math.log(S))
-                m1 += T * mean
-                m2 += T * max(var, 0.0)
-                sabs += T * abs(mean)
-            F += Fs
-            for q, nq in self.nH_nz:
-                g[q] += m1 * nq
-                scale[q] += sabs * abs(nq)
-                if want_hess:
-                    for s, ns in self.nH_nz:
-                        if s <= q:
-                            Hf[q * r + s] += m2 * nq * ns
         H = None
         if want_hess:
             H = [Hf[q * r:(q + 1) * r] for q in range(r)]
@@ -419,6 +428,114 @@ class _Problem:
                 for s in range(q):
                     H[s][q] = Hq[s]
         return F, g, H, scale
+
+    def _add_ladders(self, y, F, g, H, scale):
+        """Add the eliminated simple components' log-sum-exp terms (in place); returns F."""
+        exp = math.exp
+        xH = self.xH(y)
+        m1 = m2 = Fs = sabs = 0.0
+        for T, lad in zip(self.T_simple, self.ladders):
+            if len(lad) == 1:
+                k, lnK = lad[0]
+                Fs += T * (lnK + k * xH)
+                m1 += T * k
+                sabs += T * abs(k)
+                continue
+            es = [lnK + k * xH for k, lnK in lad]
+            top = max(es)
+            w = [exp(e - top) for e in es]
+            S = sum(w)
+            mean = sum(k * wi for (k, _), wi in zip(lad, w)) / S
+            var = sum(k * k * wi for (k, _), wi in zip(lad, w)) / S - mean * mean
+            Fs += T * (top + math.log(S))
+            m1 += T * mean
+            m2 += T * max(var, 0.0)
+            sabs += T * abs(mean)
+        for q, nq in self.nH_nz:
+            g[q] += m1 * nq
+            scale[q] += sabs * abs(nq)
+            if H is not None:
+                Hq = H[q]
+                for s, ns in self.nH_nz:
+                    if s < q:
+                        v = m2 * nq * ns
+                        Hq[s] += v
+                        H[s][q] += v
+                    elif s == q:
+                        Hq[q] += m2 * nq * ns
+        return F + Fs
+
+
+#: A constraint pattern's evaluation is compiled to straight-line code after this many calls.
+COMPILE_AFTER = 6
+#: Compiled evaluations by sparsity pattern (r and each coupled species' coefficients over y).
+_COMPILED: dict = {}
+
+
+def _num(a: float) -> str:
+    return repr(float(a))
+
+
+def _compile_evaluator(r: int, cs_nz, cs_hess):
+    """Straight-line Python for the coupled species' part of ``_Problem.evaluate``.
+
+    The same sums in the same order as :meth:`_Problem._coupled` (so the same numbers), with
+    the loops over species and coefficients unrolled for one sparsity pattern: in CPython the
+    loop overhead, not the arithmetic, is most of the cost of a small dense-sparse evaluation.
+    The source is built from numbers only and compiled with :func:`compile`; it is cached by
+    pattern, so waters of the same shape share it.
+    """
+    def term(a, name):
+        if a == 1.0:
+            return f" + {name}"
+        if a == -1.0:
+            return f" - {name}"
+        return f" + {_num(a)} * {name}"
+
+    ns = len(cs_nz)
+    L = ["def _evaluate(y, K, Tr, Tr_abs, const, want_hess):"]
+    if r:
+        L.append("    " + "".join(f"y{q}, " for q in range(r)) + "= y")
+    for i, nz in enumerate(cs_nz):
+        L.append(f"    e{i} = K[{i}]" + "".join(term(a, f"y{q}") for q, a in nz))
+    if ns:
+        L.append("    if max(" + ", ".join(f"e{i}" for i in range(ns)) + ", 0.0) > 700.0:")
+        L.append("        return None")
+    for i in range(ns):
+        L.append(f"    c{i} = exp(e{i})")
+    L.append("    F = -const" + "".join(f" - Tr[{q}] * y{q}" for q in range(r)) + "".join(f" + c{i}" for i in range(ns)))
+    g_terms = [[] for _ in range(r)]
+    s_terms = [[] for _ in range(r)]
+    for i, nz in enumerate(cs_nz):
+        for q, a in nz:
+            g_terms[q].append(term(a, f"c{i}"))
+            s_terms[q].append(term(abs(a), f"c{i}"))
+    L.append("    g = [" + ", ".join(f"-Tr[{q}]" + "".join(g_terms[q]) for q in range(r)) + "]")
+    L.append("    scale = [" + ", ".join(f"Tr_abs[{q}]" + "".join(s_terms[q]) for q in range(r)) + "]")
+    L.append("    if not want_hess:")
+    L.append("        return F, g, None, scale")
+    h_terms: dict = {}
+    for i, hs in enumerate(cs_hess):
+        for k, p in hs:
+            h_terms.setdefault(k, []).append((p, i))
+    for q in range(r):
+        for s in range(q + 1):
+            ts = h_terms.get(q * r + s)
+            if ts:
+                first = ts[0]
+                expr = (f"c{first[1]}" if first[0] == 1.0 else f"{_num(first[0])} * c{first[1]}") + \
+                    "".join(term(p, f"c{i}") for p, i in ts[1:])
+            else:
+                expr = "0.0"
+            L.append(f"    h{q}_{s} = {expr}")
+    rows = []
+    for q in range(r):
+        rows.append("[" + ", ".join(f"h{max(q, s)}_{min(q, s)}" for s in range(r)) + "]")
+    L.append("    return F, g, [" + ", ".join(rows) + "], scale")
+    code = compile("\n".join(L) + "\n", "<acidscape.science.model evaluation>", "exec")
+    env = {"exp": math.exp, "max": max}
+    exec(code, env)  # noqa: S102 - source built above from numbers and fixed names only
+    return env["_evaluate"]
 
 
 class _Dependent(Exception):
