@@ -2,7 +2,7 @@
 // links between jobs, the sections each job shows, the water's headline figures and the
 // phone's fold of the water inputs.
 //
-//   body[data-job]            the job in view
+//   body[data-job]            the job in view; the sections of the others carry .job-off + inert
 //   #job-tab-<job>            the switcher's buttons (aria-current="true" on the shown one)
 //   [data-job] buttons        anywhere on the page: bring that job into view; a link (not a
 //                             switcher tab) also moves the focus to the job's heading
@@ -40,7 +40,7 @@ export class WorkbenchView {
     this.show(shownJob());
     onJobChange((name) => this.show(name));
     doc.addEventListener("click", (event) => {
-      const button = event.target.closest?.("[data-job]");
+      const button = event.target.closest?.("[data-job]:not(body)"); // body[data-job] names the job in view
       if (!button || !isJob(button.dataset.job)) return;
       event.preventDefault(); // an anchor's hash would be read as a scenario link
       const name = button.dataset.job;
@@ -49,12 +49,19 @@ export class WorkbenchView {
     });
   }
 
-  /** Show the sections of job `name` and hide the others; mark the switcher. */
+  /**
+   * Show the sections of job `name` and put the others away; mark the switcher. A job put away
+   * keeps its width (style.css .job-off: no height, invisible, inert), so plots embedded in it
+   * are drawn at the width they will have when it is shown.
+   */
   show(name) {
     const wanted = new Set(JOB_ELEMENTS[name] || []);
     for (const id of EVERY_ELEMENT) {
       const el = this.doc.getElementById(id);
-      if (el) el.hidden = !wanted.has(id);
+      if (!el) continue;
+      const off = !wanted.has(id);
+      el.classList.toggle("job-off", off);
+      el.inert = off;
     }
     for (const [job, tab] of this.tabs) {
       if (!tab) continue;
