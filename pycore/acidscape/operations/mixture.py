@@ -205,9 +205,15 @@ class Mixture:
         hi_turn = math.inf         # a point past the extreme of the pH with g < 0 (first branch)
         prev = None                # (d, g) of the last state at the current I, for secant steps
         state = guess
+        # the linearisation of the state we start from (the curve's last point) moves its free
+        # concentrations to the new pH and totals: a closer start for the model
+        last = self._last
+        lin_prev = last if last is not None and guess is not None and last.sol.state is guess \
+            and not last.sol.solids else None
         sol = None
         for _ in range(200):
-            sol = self.solve(pH, d, I=I, guess=state)
+            start = state if lin_prev is None else lin_prev.predict(self.totals(d), pH, I, self.wm.gamma_of)
+            sol = self.solve(pH, d, I=I, guess=start)
             state = sol.state
             R = sol.charge_residual
             scale = sum(abs(sp.charge) * c for sp, c in zip(self.wm.tab.species, sol.conc))
@@ -215,8 +221,9 @@ class Mixture:
             if sol.solids:
                 dR = None
                 dI = dR_dI = dI_dI = 0.0
+                lin_prev = None
             else:
-                lin = self._lin(sol)
+                lin = lin_prev = self._lin(sol)
                 dR, dI = lin.along(self.direction(d))
                 dR_dI, dI_dI = (0.0, 0.0) if held_I else lin.with_I(gamma_of)
             if sign is None:

@@ -321,13 +321,16 @@ def titration_curve(water, titrant: str, *, titrant_M: float | None = 0.1, sampl
         if sharp < MIN_SHARPNESS:
             continue
         start = [pts[k]]
+        # the grid points around the minimum: the amount and ionic strength at each trial pH are
+        # interpolated through them (a start the Newton step accepts at once)
+        around = [pts[i] for i in (k - 2, k - 1, k + 1) if 0 <= i < points]
 
         def f(pH):
-            pt = curve.at(pH, start[0])
+            pt = curve.at(pH, start[0], around)
             start[0] = pt
             return abs(pt.slope)
         pe = _golden_min(f, min(grid[k - 1], grid[k + 1]), max(grid[k - 1], grid[k + 1]))
-        r = row(curve.at(pe, start[0]))
+        r = row(curve.at(pe, start[0], around))
         r["sharpness"] = sharp if math.isfinite(sharp) else None
         eq_points.append(r)
     half = []
