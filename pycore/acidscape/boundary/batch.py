@@ -147,6 +147,7 @@ import re
 import sys
 import time
 
+from ..checks import PH_RANGE
 from ..constants import ATOMIC_WEIGHT
 from ..errors import AcidscapeError, InputError
 from ..operations.dosing import CAUTION_LINE, CAUTIONS
@@ -735,7 +736,7 @@ class _Plan:
             from ..operations.dosing import get_chemical
 
             chem = get_chemical(dose["chemical"], field="mapping.dose.chemical")
-            target = _finite(dose.get("target_pH"), "mapping.dose.target_pH", 0.0, 14.0)
+            target = _finite(dose.get("target_pH"), "mapping.dose.target_pH", *PH_RANGE)  # the one pH range
             # a base (alkalinity added per mole > 0) raises the pH; anything else lowers it
             self.dose = (dose["chemical"], target, 1 if chem.alkalinity_eq_per_mol > 0 else -1)
         else:
