@@ -167,10 +167,13 @@ class TitrationPlot {
    * @param {number[]} pH  pH at each amount [-]
    * @param {{x: number, pH: number, label: string}[]} marks  equivalence and half-equivalence points
    * @param {string} axisLabel  e.g. "NaOH added (mL)"
+   * @param {string} [unit]  the unit of x for the tooltips, e.g. "mL" or "mg/L"
    */
-  setCurve(x, pH, marks, axisLabel) {
-    this.source.data = { x, pH };
-    this.points.data = { x: marks.map((m) => m.x), pH: marks.map((m) => m.pH), label: marks.map((m) => m.label) };
+  setCurve(x, pH, marks, axisLabel, unit = "") {
+    this.source.data = { x, pH, unit: x.map(() => unit) };
+    this.points.data = {
+      x: marks.map((m) => m.x), pH: marks.map((m) => m.pH), label: marks.map((m) => m.label), unit: marks.map(() => unit),
+    };
     this.axis.axis_label = axisLabel;
     const finite = x.filter(Number.isFinite);
     const hi = finite.length ? Math.max(...finite) : 1;
@@ -189,12 +192,23 @@ export async function embedTitrationPlot(hostId) {
   return new TitrationPlot(doc);
 }
 
-/** Buffer intensity against pH, with the water's pH marked. */
+/** Buffer intensity against pH, with the water's pH marked; linear or logarithmic β axis. */
 class BufferPlot {
   constructor(doc) {
     this.source = findModel("buffer_src", doc);
     this.marker = findModel("buffer_marker", doc);
     this.yRange = findModel("buffer_y", doc);
+    this.logRange = findModel("buffer_log_y", doc);
+    this.linear = ["buffer_line", "buffer_yaxis", "buffer_ygrid"].map((n) => findModel(n, doc));
+    this.logarithmic = ["buffer_log_line", "buffer_log_yaxis", "buffer_log_ygrid"].map((n) => findModel(n, doc));
+    this.log = false;
+  }
+
+  /** @param {boolean} log  show β on a logarithmic axis (else linear) */
+  setLog(log) {
+    this.log = Boolean(log);
+    for (const m of this.linear) m.visible = !this.log;
+    for (const m of this.logarithmic) m.visible = this.log;
   }
 
   /**
@@ -207,6 +221,13 @@ class BufferPlot {
     this.marker.location = waterPH;
     const top = Math.max(0, ...beta.filter(Number.isFinite));
     this.yRange.setv({ start: 0, end: top > 0 ? top * 1.08 : 1 });
+    // the log axis: whole decades around every positive value
+    const positive = beta.filter((b) => Number.isFinite(b) && b > 0);
+    if (positive.length) {
+      const lo = Math.floor(Math.log10(Math.min(...positive)));
+      const hi = Math.ceil(Math.log10(Math.max(...positive)));
+      this.logRange.setv({ start: 10 ** lo, end: 10 ** Math.max(hi, lo + 1) });
+    }
   }
 }
 
@@ -421,6 +442,11 @@ class ConditionalConstantPlot {
     this.marker.location = bufferPH;
     const [lo, hi] = extent(lines.flatMap((l) => l.logK));
     this.yRange.setv({ start: Math.min(0, Math.floor(lo)), end: Math.ceil(hi) + 1 });
+  }
+
+  /** @param {number} bufferPH  where to draw the marker [-] */
+  setMarker(bufferPH) {
+    this.marker.location = bufferPH;
   }
 }
 

@@ -12,9 +12,9 @@ function byId(doc, id) {
 }
 
 /** Input ids of each block, in form order; each has a #<id>-error beside it. */
-export const TITRATION_INPUTS = ["titrant-select", "titrant-conc", "sample-volume", "titration-end-ph", "titration-axis"];
-export const BUFFER_INPUTS = ["capacity-from-ph", "capacity-to-ph"];
-export const DOSE_INPUTS = ["dose-chemical", "dose-target-ph", "dose-strength", "dose-density", "dose-flow", "dose-flow-unit"];
+export const TITRATION_INPUTS = ["titrant-select", "titrant-conc", "titrant-conc-unit", "sample-volume", "titration-end-ph", "titration-axis"];
+export const BUFFER_INPUTS = ["capacity-from-ph", "capacity-to-ph", "buffer-log"];
+export const DOSE_INPUTS = ["dose-chemical", "dose-product", "dose-target-ph", "dose-strength", "dose-density", "dose-flow", "dose-flow-unit"];
 
 /** Plant flow units the core accepts (acidscape.operations.dosing.FLOW_UNITS), with the words shown. */
 export const FLOW_UNITS = [
@@ -46,6 +46,11 @@ export class TreatmentView {
     this.waterLine = byId(doc, "treatment-water");
     this.titrationWarning = byId(doc, "titration-warning");
     this.titrantHint = byId(doc, "titrant-select-hint");
+    this.concHint = byId(doc, "titrant-conc-hint");
+    this.endPoints = byId(doc, "titration-endpoints");
+    this.productSource = byId(doc, "dose-product-source");
+    this.productSourceText = byId(doc, "dose-product-source-text");
+    this.bufferPlotHost = byId(doc, "plot-buffer");
     this.equivalenceTable = byId(doc, "equivalence-table");
     this.bufferAtPH = byId(doc, "buffer-at-ph");
     this.capacity = byId(doc, "buffer-capacity");
@@ -111,9 +116,53 @@ export class TreatmentView {
     this.inputs["dose-chemical"].replaceChildren(common("Treatment chemicals"));
   }
 
-  /** @returns {Record<string, string>} raw text of every input, by id */
+  /** @returns {Record<string, string>} raw text of every input, by id (a checkbox: "true" or "false") */
   read() {
-    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.value]));
+    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.type === "checkbox" ? String(el.checked) : el.value]));
+  }
+
+  /**
+   * Offer the products of one chemical as presets (the first option is "type your own").
+   *
+   * @param {{id: string, name: string, strength_pct: number, density_kg_per_L: number}[]} products
+   */
+  setProducts(products) {
+    const select = this.inputs["dose-product"];
+    const keep = select.value;
+    const first = select.options[0];
+    select.replaceChildren(first, ...products.map((p) => {
+      const o = this.doc.createElement("option");
+      o.value = p.id;
+      o.textContent = `${p.name} (${fixed(p.density_kg_per_L, 3)} kg/L)`;
+      return o;
+    }));
+    select.value = products.some((p) => p.id === keep) ? keep : "";
+    select.disabled = products.length === 0;
+  }
+
+  /** @param {string|null} text  where the chosen product's figures come from (null hides the line) */
+  setProductSource(text) {
+    this.productSourceText.textContent = text ?? "";
+    this.productSource.hidden = !text;
+  }
+
+  /** @param {string} text  what the titrant concentration means (molarity, normality) */
+  setConcentrationHint(text) {
+    this.concHint.textContent = text;
+  }
+
+  /** @param {boolean} log  the buffer plot's β axis is logarithmic (data-log on its host) */
+  markBufferLog(log) {
+    this.bufferPlotHost.dataset.log = String(log);
+  }
+
+  /** @param {string[]} lines  one sentence per end point ("pH 4.5 end point: 12.3 mL → ...") */
+  renderEndPoints(lines) {
+    this.endPoints.replaceChildren(...lines.map((line) => {
+      const li = this.doc.createElement("li");
+      li.textContent = line;
+      return li;
+    }));
   }
 
   /**
@@ -123,6 +172,11 @@ export class TreatmentView {
    */
   write(id, value) {
     const el = this.inputs[id];
+    if (el.type === "checkbox") {
+      if (!["true", "false"].includes(String(value))) return false;
+      el.checked = String(value) === "true";
+      return true;
+    }
     if (el.tagName === "SELECT" && ![...el.options].some((o) => o.value === value)) return false;
     el.value = value;
     return true;
@@ -154,12 +208,12 @@ export class TreatmentView {
 
   /** @param {boolean} gas  the titrant is a gas: its concentration, volume and axis do not apply */
   setGasTitrant(gas) {
-    for (const id of ["titrant-conc", "sample-volume", "titration-axis"]) this.inputs[id].disabled = gas;
+    for (const id of ["titrant-conc", "titrant-conc-unit", "sample-volume", "titration-axis"]) this.inputs[id].disabled = gas;
   }
 
   /** @param {string} id  input id @returns {boolean}  a drop-down (changes take effect at once) */
   isChoice(id) {
-    return this.inputs[id].tagName === "SELECT";
+    return this.inputs[id].tagName === "SELECT" || this.inputs[id].type === "checkbox";
   }
 
   /** Count one drawn result of a block on the section element (data-<block>-drawn). */
@@ -200,7 +254,7 @@ export class TreatmentView {
   }
 
   /**
-   * @param {{kind: string, pH: number, mL: number|null, mmol: number, mg: number}[]} rows
+   * @param {{kind: string, pH: number, mL: number|null, mmol: number, mg: number, caco3: number|null}[]} rows
    * @param {string} caption
    */
   renderEquivalence(rows, caption) {
@@ -209,7 +263,7 @@ export class TreatmentView {
     if (!rows.length) {
       const tr = this.doc.createElement("tr");
       const td = this.doc.createElement("td");
-      td.colSpan = 5;
+      td.colSpan = 6;
       td.className = "empty";
       td.textContent = "No end point within this curve.";
       tr.append(td);
@@ -229,6 +283,7 @@ export class TreatmentView {
           this.cell(row.mL === null ? "—" : short(row.mL), row.mL, "titrant_mL"),
           this.cell(short(row.mmol), row.mmol, "dose_mmol_per_L"),
           this.cell(short(row.mg), row.mg, "dose_mg_per_L"),
+          this.cell(row.caco3 === null ? "—" : fixed(row.caco3, 1), row.caco3, "as_CaCO3_mg_per_L"),
         );
         return tr;
       }),
@@ -238,6 +293,7 @@ export class TreatmentView {
   /** Remove the equivalence rows (no curve). */
   clearEquivalence() {
     this.equivalenceTable.tBodies[0].replaceChildren();
+    this.endPoints.replaceChildren();
   }
 
   /**
@@ -364,7 +420,7 @@ export class TreatmentView {
     for (const [block, ids] of blocks) {
       for (const id of ids) {
         const el = this.inputs[id];
-        el.addEventListener(el.tagName === "SELECT" ? "change" : "input", () => handler(block, id));
+        el.addEventListener(el.tagName === "SELECT" || el.type === "checkbox" ? "change" : "input", () => handler(block, id));
       }
     }
   }

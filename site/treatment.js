@@ -10,7 +10,7 @@
 
 import { CoreError } from "./py.js";
 import { notifyInputChange, registerSection } from "./state.js";
-import { fixed, prettyFormula } from "./format.js";
+import { fixed, prettyFormula, sciNumber } from "./format.js";
 import { FLOW_UNITS } from "./treatment-view.js";
 import { parseNumber, stateNumber } from "./parse.js";
 import { computation } from "./section.js";
@@ -92,6 +92,8 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
   let current = { scenario: null, result: null };
   let waterNote = ""; // set while the water's inputs cannot be used
   let lastTitration = null;
+  let products = null; // the core's product presets (data/products.csv), once they arrive
+  let pendingProduct = null; // a product named by a link before the presets arrived
 
   // -- inputs ------------------------------------------------------------------------------
   function collectTitration() {
@@ -99,9 +101,13 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     const errors = {};
     const params = { titrant: raw["titrant-select"] };
     const gas = params.titrant === "CO2";
-    const conc = parseNumber(raw["titrant-conc"], "the titrant concentration in mol/L, e.g. 0.02");
+    const normal = raw["titrant-conc-unit"] === "N";
+    const conc = parseNumber(raw["titrant-conc"], normal
+      ? "the titrant normality in eq/L, e.g. 0.02" : "the titrant concentration in mol/L, e.g. 0.02");
     if (conc.error) errors["titrant-conc"] = conc.error;
-    else params.titrant_M = conc.value;
+    else if (!normal) params.titrant_M = conc.value;
+    else if (equivalents(params.titrant)) params.titrant_M = conc.value / equivalents(params.titrant);
+    else errors["titrant-conc-unit"] = "This titrant has no known equivalents per mole: give its concentration in mol/L.";
     const vol = parseNumber(raw["sample-volume"], "the sample volume in mL, e.g. 100");
     if (vol.error) errors["sample-volume"] = vol.error;
     else params.sample_mL = vol.value;
@@ -182,7 +188,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     const marks = [];
     result.equivalence_points.forEach((p, i) => marks.push({ x: xOf(p), pH: p.pH, label: `equivalence ${i + 1}` }));
     result.half_equivalence_points.forEach((p, i) => marks.push({ x: xOf(p), pH: p.pH, label: `half-equivalence ${i + 1}` }));
-    plots.titration.setCurve(pts.map(xOf), pts.map((p) => p.pH), marks, label);
+    plots.titration.setCurve(pts.map(xOf), pts.map((p) => p.pH), marks, label, volumes ? "mL" : `mg/L of ${id}`);
     const rows = [
       ...result.equivalence_points.map((p, i) => ({ key: "equivalence", kind: `Equivalence ${i + 1}`, p })),
       ...result.half_equivalence_points.map((p, i) => ({ key: "half-equivalence", kind: `Half-equivalence ${i + 1}`, p })),
@@ -191,11 +197,16 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       })),
     ].map(({ key, kind, p }) => ({
       key, kind, pH: p.pH, mL: result.volumes_apply ? p.titrant_mL : null, mmol: p.dose_mmol_per_L, mg: p.dose_mg_per_L,
+      caco3: Number.isFinite(p.as_CaCO3_mg_per_L) ? p.as_CaCO3_mg_per_L : null,
     }));
     rows.sort((a, b) => a.mmol - b.mmol);
+    const normality = result.titrant.normality_eq_per_L;
     const strength = result.volumes_apply
-      ? `, ${Number(result.titrant.concentration_M.toPrecision(4))} mol/L into ${Number(result.sample_mL.toPrecision(6))} mL of sample`
+      ? `, ${Number(result.titrant.concentration_M.toPrecision(4))} mol/L` +
+        (Number.isFinite(normality) && normality > 0 ? ` (${Number(normality.toPrecision(4))} eq/L)` : "") +
+        ` into ${Number(result.sample_mL.toPrecision(6))} mL of sample`
       : "";
+    view.renderEndPoints(endPointLines(result));
     view.renderEquivalence(rows, `End points: ${result.titrant.name}${strength}, pH ${fixed(result.initial_pH, 2)} to ${fixed(result.to_pH, 2)}`);
     view.setTitrationWarning([...result.warnings]);
     view.markDrawn("titration");
@@ -208,10 +219,48 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     return "";
   }
 
+  /** Equivalents per mole of a titrant (|alkalinity change per mole|, from the core's catalogue); 0 if unknown. */
+  function equivalents(id) {
+    return Math.abs(chemById.get(id)?.alkalinity_eq_per_mol ?? 0);
+  }
+
+  function concentrationHint(id, raw) {
+    const eq = equivalents(id);
+    if (id === "CO2" || !eq) return "";
+    const v = Number(String(raw["titrant-conc"]).replace(",", "."));
+    const per = `${eq} eq per mol`;
+    if (!Number.isFinite(v) || v <= 0) return `Normality = molarity × ${per}.`;
+    const other = raw["titrant-conc-unit"] === "N"
+      ? `${Number((v / eq).toPrecision(4))} mol/L` : `${Number((v * eq).toPrecision(4))} eq/L (N)`;
+    return `That is ${other} of ${prettyFormula(id)} (${per}).`;
+  }
+
+  /** One sentence per end point: where it is and what it measures, in mg/L as CaCO3. */
+  function endPointLines(result) {
+    const amount = (p) => (result.volumes_apply
+      ? `${sciNumber(p.titrant_mL, 4)} mL`
+      : `${sciNumber(p.dose_mg_per_L, 4)} mg/L of ${prettyFormula(result.titrant.id)}`);
+    const acid = result.titrant.alkalinity_eq_per_mol < 0;
+    const what = (p) => {
+      if (Math.abs(p.pH - 4.5) < 1e-9) return acid ? "total alkalinity" : "mineral acidity (to pH 4.5)";
+      if (Math.abs(p.pH - 8.3) < 1e-9) return acid ? "phenolphthalein alkalinity" : "total acidity (to pH 8.3)";
+      return acid ? "alkalinity to this point" : "acidity to this point";
+    };
+    const caco3 = (p) => (Number.isFinite(p.as_CaCO3_mg_per_L)
+      ? ` → ${what(p)} ${fixed(p.as_CaCO3_mg_per_L, 1)} mg/L as CaCO₃` : "");
+    return [
+      ...result.fixed_end_points.map((p) => ({ p, text: `pH ${fixed(p.pH, 1)} end point: ${amount(p)}${caco3(p)}` })),
+      ...result.equivalence_points.map((p, i) => ({
+        p, text: `Equivalence point ${i + 1} (pH ${fixed(p.pH, 2)}): ${amount(p)}${caco3(p)}`,
+      })),
+    ].sort((a, b) => a.p.dose_mmol_per_L - b.p.dose_mmol_per_L).map((x) => x.text);
+  }
+
   const titration = computation({
     read() {
       const id = view.read()["titrant-select"];
       view.setTitrantHint(titrantHint(chemById.get(id), id));
+      view.setConcentrationHint(concentrationHint(id, view.read()));
       return collectTitration();
     },
     call: (params) => py.call("titrate", params),
@@ -247,6 +296,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     render(r) {
       view.showErrors("buffer", {});
       plots.buffer.setCurve(r.pH, r.beta_mmol_per_L_per_pH, r.water_pH);
+      applyBufferScale();
       view.setBufferAtPH(r.beta_at_water_pH_eq_per_L_per_pH, r.water_pH);
       view.setCapacity(r.capacity);
       bufferShown = true;
@@ -263,20 +313,72 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     busy: (flag) => view.setBusy("buffer", flag),
   });
 
+  function applyBufferScale() {
+    const log = view.read()["buffer-log"] === "true";
+    plots.buffer.setLog?.(log);
+    view.markBufferLog(log);
+  }
+
   // -- dose --------------------------------------------------------------------------------
   function doseHint(id) {
     const c = chemById.get(id);
-    if (!c) return "";
-    const parts = [];
-    if (c.example_strength_pct) {
-      const density = c.example_density_kg_per_L ? `, about ${c.example_density_kg_per_L} kg/L` : "";
-      const source = c.example_source ? ` (source: ${c.example_source.replace(/ \((from memory)\)$/, ", $1")})` : "";
-      parts.push(`A common grade is ${c.example_strength_pct} % w/w${density}${source}; ` +
-        "enter the figures of the product you actually use.");
-    }
-    if (c.note) parts.push(c.note.charAt(0).toUpperCase() + c.note.slice(1) + ".");
-    return parts.join(" ");
+    return c?.note ? c.note.charAt(0).toUpperCase() + c.note.slice(1) + "." : "";
   }
+
+  // -- product presets (the core's catalogue, data/products.csv) ---------------------------
+  function productsOf(chemical) {
+    return (products || []).filter((p) => p.chemical === chemical);
+  }
+
+  function productSource(p) {
+    if (!p) return null;
+    const note = p.note ? ` ${p.note.charAt(0).toUpperCase() + p.note.slice(1)}.` : "";
+    return `${p.name}: ${p.strength_pct} % w/w, ${p.density_kg_per_L} kg/L at ${p.temperature_C} °C. ` +
+      `Density: ${p.provenance}. Source: ${p.source}${note} Check both figures against the certificate ` +
+      "or safety data sheet of the product you actually use.";
+  }
+
+  /** Offer the chosen chemical's products; keep the chosen one if it still fits. */
+  function showProducts() {
+    const raw = view.read();
+    view.setProducts(productsOf(raw["dose-chemical"]));
+    const chosen = (products || []).find((p) => p.id === view.read()["dose-product"]);
+    view.setProductSource(productSource(chosen));
+  }
+
+  /** A product was chosen: fill in its strength and density. */
+  function useProduct(id) {
+    const p = (products || []).find((q) => q.id === id);
+    if (p) {
+      view.write("dose-strength", String(p.strength_pct));
+      view.write("dose-density", String(p.density_kg_per_L));
+    }
+    view.setProductSource(productSource(p));
+  }
+
+  /** Strength or density typed by hand: the figures are no longer the preset's. */
+  function checkProduct() {
+    const raw = view.read();
+    const p = (products || []).find((q) => q.id === raw["dose-product"]);
+    if (p && (Number(raw["dose-strength"]) !== p.strength_pct || Number(raw["dose-density"]) !== p.density_kg_per_L)) {
+      view.write("dose-product", "");
+      view.setProductSource(null);
+    }
+  }
+
+  py.call("products").then((r) => {
+    products = r.products || [];
+    const raw = view.read();
+    showProducts();
+    if (pendingProduct && productsOf(raw["dose-chemical"]).some((p) => p.id === pendingProduct)) {
+      view.write("dose-product", pendingProduct);
+      view.setProductSource(productSource(products.find((p) => p.id === pendingProduct)));
+    }
+    pendingProduct = null;
+  }).catch(() => {
+    products = []; // no presets: the fields are typed by hand as before
+    showProducts();
+  });
 
   /** The before/after table with the page's one total alkalinity (to pH 4.5) in it. */
   function withPageAlkalinity(r) {
@@ -350,7 +452,14 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
 
   view.bindChange((block, id) => {
     if (id === "titrant-select") view.setGasTitrant(view.read()["titrant-select"] === "CO2");
+    if (id === "dose-chemical") showProducts();
+    if (id === "dose-product") useProduct(view.read()["dose-product"]);
+    if (id === "dose-strength" || id === "dose-density") checkProduct();
     notifyInputChange("treatment");
+    if (id === "buffer-log") {
+      applyBufferScale(); // same curve, other axis: no need to ask the core again
+      return;
+    }
     if (id === "titration-axis" && lastTitration) {
       drawTitration(lastTitration); // same curve, other unit: no need to ask the core again
       return;
@@ -384,13 +493,16 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       return {
         titration: {
           titrant: raw["titrant-select"],
-          titrant_M: stateNumber(raw["titrant-conc"]),
+          // typed as molarity: titrant_M; typed as normality: titrant_N (and titrant_M null)
+          titrant_M: raw["titrant-conc-unit"] === "N" ? null : stateNumber(raw["titrant-conc"]),
+          ...(raw["titrant-conc-unit"] === "N" ? { titrant_N: stateNumber(raw["titrant-conc"]) } : {}),
           sample_mL: stateNumber(raw["sample-volume"]),
           to_pH: stateNumber(raw["titration-end-ph"]),
           axis: raw["titration-axis"],
         },
         dose: {
           chemical: raw["dose-chemical"],
+          product: raw["dose-product"] || null,
           target_pH: stateNumber(raw["dose-target-ph"]),
           strength_pct: stateNumber(raw["dose-strength"]),
           density_kg_per_L: stateNumber(raw["dose-density"]),
@@ -400,6 +512,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
         buffer: {
           from_pH: stateNumber(raw["capacity-from-ph"]),
           to_pH: stateNumber(raw["capacity-to-ph"]),
+          log_scale: raw["buffer-log"] === "true",
         },
       };
     },
@@ -413,12 +526,25 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       };
       const t = obj.titration || {};
       put("titrant-select", t.titrant, "titrant");
-      put("titrant-conc", t.titrant_M, "titrant concentration");
+      if (t.titrant_N !== undefined && t.titrant_N !== null) {
+        put("titrant-conc-unit", "N", "concentration unit");
+        put("titrant-conc", t.titrant_N, "titrant normality");
+      } else {
+        if (t.titrant_M !== undefined) put("titrant-conc-unit", "M", "concentration unit");
+        put("titrant-conc", t.titrant_M, "titrant concentration");
+      }
       put("sample-volume", t.sample_mL, "sample volume");
       put("titration-end-ph", t.to_pH, "end pH");
       put("titration-axis", t.axis, "axis");
       const d = obj.dose || {};
       put("dose-chemical", d.chemical, "chemical");
+      if (d.chemical !== undefined || d.product !== undefined) showProducts();
+      if (d.product === null || d.product === "") view.write("dose-product", "");
+      else if (typeof d.product === "string") {
+        if (products === null) pendingProduct = d.product; // the presets have not arrived yet
+        else put("dose-product", d.product, "product");
+      }
+      view.setProductSource(productSource((products || []).find((p) => p.id === view.read()["dose-product"])));
       put("dose-target-ph", d.target_pH, "target pH");
       put("dose-strength", d.strength_pct, "strength");
       put("dose-density", d.density_kg_per_L, "density");
@@ -431,6 +557,8 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       const b = obj.buffer || {};
       put("capacity-from-ph", b.from_pH, "buffer capacity from pH");
       put("capacity-to-ph", b.to_pH, "buffer capacity to pH");
+      if (typeof b.log_scale === "boolean") put("buffer-log", String(b.log_scale), "logarithmic axis");
+      applyBufferScale();
       view.setGasTitrant(view.read()["titrant-select"] === "CO2");
       return messages;
     },

@@ -11,6 +11,7 @@ import json
 import math
 
 import pytest
+from conftest import show_job
 from playwright.sync_api import Page, expect
 
 from acidscape.boundary import api
@@ -51,10 +52,15 @@ def count(page: Page, block: str) -> int:
     return int(page.evaluate(f"() => Number(document.querySelector('#treatment-section').dataset.{block}Drawn || 0)"))
 
 
-def open_page(page: Page) -> None:
+#: The workbench's jobs (site/workbench.js) and the blocks of #treatment-section each shows.
+JOB_BLOCKS = {"treat": ("dose",), "titrate": ("titration", "buffer")}
+
+
+def open_page(page: Page, job: str = "titrate") -> None:
     page.goto("/")
     expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    for block in ("titration", "buffer", "dose"):
+    show_job(page, job)
+    for block in JOB_BLOCKS[job]:
         page.wait_for_function(
             f"() => Number(document.querySelector('#treatment-section').dataset.{block}Drawn || 0) > 0",
             timeout=BOOT_MS)
@@ -79,7 +85,8 @@ def value(page: Page, selector: str) -> str:
 
 
 def test_dose_and_feed_equal_the_core_and_cautions_show(page: Page, watch):
-    open_page(page)
+    open_page(page, "treat")
+    show_job(page, "treat")
     expect(page.locator("#dose-cautions")).to_be_visible()
     for words in ("burn skin and eyes", "acid slowly into water", "jar or bench test", "overfeed",
                   "licensed operators"):
@@ -94,9 +101,9 @@ def test_dose_and_feed_equal_the_core_and_cautions_show(page: Page, watch):
     assert count(page, "dose") > before
     state = page_state(page)
     d = state["treatment"]["dose"]
-    assert d == {"chemical": "NaOH", "target_pH": 8, "strength_pct": 50, "density_kg_per_L": 1.525,
+    assert d == {"chemical": "NaOH", "product": None, "target_pH": 8, "strength_pct": 50, "density_kg_per_L": 1.525,
                  "flow": 2.5, "flow_unit": "MGD"}
-    want = core("dose", {"scenario": state["water"]["scenario"], **d})
+    want = core("dose", {"scenario": state["water"]["scenario"], **{k: v for k, v in d.items() if k != "product"}})
     assert close(float(value(page, "#dose-result-mmol")), want["dose_mmol_per_L"])
     assert close(float(value(page, "#dose-result-mg")), want["dose_mg_per_L"])
     assert close(float(value(page, "#dose-feed-kg-per-d")), want["product"]["feed_kg_per_d"])
@@ -126,7 +133,8 @@ def test_dose_and_feed_equal_the_core_and_cautions_show(page: Page, watch):
 
 
 def test_bad_dose_inputs_show_messages_beside_their_fields(page: Page, watch):
-    open_page(page)
+    open_page(page, "treat")
+    show_job(page, "treat")
     scenario = page_state(page)["water"]["scenario"]
     # NaHCO3 cannot raise a water past about pH 8.3 (pKa1 + pKa2)/2 (carbonate chemistry,
     # common practice): the core's own message must appear beside the target, not a number.
@@ -155,6 +163,7 @@ def test_bad_dose_inputs_show_messages_beside_their_fields(page: Page, watch):
 
 def test_titration_curve_equals_the_core_and_unsuited_titrant_is_explained(page: Page, watch):
     open_page(page)
+    show_job(page, "titrate")
     state = page_state(page)
     t = state["treatment"]["titration"]
     assert t["titrant"] == "HCl" and t["axis"] == "volume"
@@ -199,6 +208,7 @@ def test_titration_curve_equals_the_core_and_unsuited_titrant_is_explained(page:
 
 def test_buffer_intensity_equals_the_core(page: Page, watch):
     open_page(page)
+    show_job(page, "titrate")
     scenario = page_state(page)["water"]["scenario"]
     want = core("buffer", {"scenario": scenario, "pH_min": 2, "pH_max": 12, "points": 241})
     assert close(float(value(page, "#buffer-at-ph")), want["beta_at_water_pH_eq_per_L_per_pH"])
@@ -211,3 +221,145 @@ def test_buffer_intensity_equals_the_core(page: Page, watch):
     cap = core("buffer", {"scenario": scenario, "points": 2, "capacity": {"from_pH": 7, "to_pH": 4.5}})["capacity"]
     assert close(float(value(page, "#buffer-capacity")), cap["base_meq_per_L"])
     expect(page.locator("#buffer-capacity")).to_contain_text("strong acid")
+
+
+# -- what users asked for: normality, end-point alkalinity, units in tooltips, log buffer axis,
+#    product presets with their sources ------------------------------------------------------
+
+HOVERS = """() => {
+  const out = {};
+  for (const doc of Bokeh.documents) {
+    for (const m of doc.all_models) {
+      if (m.constructor.__name__ !== 'HoverTool') continue;
+      const fig = [...doc.roots()].map((r) => r.name).join(',');
+      (out[fig] = out[fig] || []).push(...m.tooltips.map(([k, v]) => `${k}: ${v}`));
+    }
+  }
+  return out;
+}"""
+
+
+def test_titrant_strength_as_normality(page: Page, watch):
+    open_page(page)
+    show_job(page, "titrate")
+    before = count(page, "titration")
+    page.select_option("#titrant-select", "H2SO4")
+    page.select_option("#titrant-conc-unit", "N")
+    page.fill("#titrant-conc", "0.02")
+    page.wait_for_function("() => document.querySelector('#equivalence-table caption').textContent.includes('0.01 mol/L')",
+                           timeout=20_000)
+    assert count(page, "titration") > before
+    state = page_state(page)
+    t = state["treatment"]["titration"]
+    assert t["titrant_N"] == 0.02 and t["titrant_M"] is None
+    # H2SO4 brings two equivalents per mole (the core's catalogue): 0.02 N is 0.01 mol/L
+    want = core("titrate", {"scenario": state["water"]["scenario"], "titrant": "H2SO4", "titrant_M": 0.01,
+                            "sample_mL": t["sample_mL"]})
+    assert want["titrant"]["normality_eq_per_L"] == pytest.approx(0.02)
+    expect(page.locator("#equivalence-table caption")).to_contain_text("0.01 mol/L (0.02 eq/L)")
+    expect(page.locator("#titrant-conc-hint")).to_contain_text("0.01 mol/L")
+    got = page.evaluate(READ_TITRATION)
+    for x, p in zip(got["x"], want["points"]):
+        assert close(x, p["titrant_mL"])
+    # back to molarity: the same number now means mol/L
+    page.select_option("#titrant-conc-unit", "M")
+    expect(page.locator("#equivalence-table caption")).to_contain_text("0.02 mol/L (0.04 eq/L)", timeout=20_000)
+
+
+def test_end_points_give_alkalinity_in_mg_per_L_as_CaCO3(page: Page, watch):
+    open_page(page)
+    show_job(page, "titrate")
+    state = page_state(page)
+    t = state["treatment"]["titration"]
+    want = core("titrate", {"scenario": state["water"]["scenario"], "titrant": t["titrant"],
+                            "titrant_M": t["titrant_M"], "sample_mL": t["sample_mL"]})
+    total = next(p for p in want["fixed_end_points"] if abs(p["pH"] - 4.5) < 1e-9)
+    # Standard Methods 2320 B: mg/L as CaCO3 = mL x N x 50 000 / mL of sample
+    assert total["as_CaCO3_mg_per_L"] == pytest.approx(
+        total["titrant_mL"] * want["titrant"]["normality_eq_per_L"] * 50044 / t["sample_mL"], rel=1e-3)
+    line = page.locator("#titration-endpoints li", has_text="pH 4.5 end point")
+    expect(line).to_have_count(1)
+    expect(line).to_contain_text(f"mL → total alkalinity {total['as_CaCO3_mg_per_L']:.1f} mg/L as CaCO₃")
+    cell = page.locator("#equivalence-table tbody tr[data-kind='fixed'] td[data-key='as_CaCO3_mg_per_L']")
+    values = sorted(float(cell.nth(k).get_attribute("data-value")) for k in range(cell.count()))
+    assert values == pytest.approx(sorted(p["as_CaCO3_mg_per_L"] for p in want["fixed_end_points"]), rel=1e-9)
+
+
+def test_plot_tooltips_name_their_units(page: Page, watch):
+    open_page(page)
+    show_job(page, "titrate")
+    hovers = page.evaluate(HOVERS)
+    text = "\n".join(line for lines in hovers.values() for line in lines)
+    assert "α = $snap_y{0.000}" in text               # distribution: "pH 7.21, α = 0.500"
+    assert "log c = $snap_y{0.00} (mol/L)" in text     # log concentration
+    assert "@x{0.00} @unit, pH @pH{0.00}" in text       # titration: "12.30 mL, pH 8.30"
+    assert "β = @beta{0.000} mmol/(L·pH)" in text       # buffer
+    # the titration's unit column follows the axis: mL for the lab, mg/L of the chemical for the plant
+    unit = "() => { for (const d of Bokeh.documents) { const s = d.get_model_by_name('titr_src');" \
+           " if (s) { const u = s.data instanceof Map ? s.data.get('unit') : s.data.unit; return u[0]; } } }"
+    assert page.evaluate(unit) == "mL"
+    page.select_option("#titration-axis", "dose")
+    page.wait_for_function(f"() => ({unit})() === 'mg/L of HCl'")
+
+
+BUFFER_MODELS = """() => { for (const d of Bokeh.documents) { const r = d.get_model_by_name('buffer_log_y');
+  if (!r) continue; const v = (n) => d.get_model_by_name(n).visible;
+  return {start: r.start, end: r.end, log: v('buffer_log_line') && v('buffer_log_yaxis'),
+          linear: v('buffer_line') && v('buffer_yaxis')}; } }"""
+
+
+def test_buffer_intensity_on_a_log_axis(page: Page, watch):
+    open_page(page)
+    show_job(page, "titrate")
+    assert page.evaluate(BUFFER_MODELS)["linear"] and not page.evaluate(BUFFER_MODELS)["log"]
+    page.check("#buffer-log")
+    expect(page.locator("#plot-buffer")).to_have_attribute("data-log", "true")
+    m = page.evaluate(BUFFER_MODELS)
+    assert m["log"] and not m["linear"]
+    scenario = page_state(page)["water"]["scenario"]
+    beta = core("buffer", {"scenario": scenario, "pH_min": 2, "pH_max": 12, "points": 241})["beta_mmol_per_L_per_pH"]
+    assert 0 < m["start"] <= min(beta) and max(beta) <= m["end"]
+    assert page_state(page)["treatment"]["buffer"]["log_scale"] is True
+    page.uncheck("#buffer-log")
+    expect(page.locator("#plot-buffer")).to_have_attribute("data-log", "false")
+
+
+def test_product_presets_fill_strength_and_density_with_their_sources(page: Page, watch):
+    open_page(page, "treat")
+    show_job(page, "treat")
+    products = {p["id"]: p for p in core("products", {})["products"]}
+    page.select_option("#dose-chemical", "NaOH")
+    options = page.locator("#dose-product option")
+    page.wait_for_function("() => document.querySelectorAll('#dose-product option').length >= 3", timeout=20_000)
+    labels = options.all_inner_texts()
+    assert any("Caustic soda solution 50 %" in x for x in labels) and any("25 %" in x for x in labels)
+    assert not any("source" in x.lower() or "memory" in x.lower() for x in labels)
+    before = count(page, "dose")
+    page.fill("#dose-flow", "1000")
+    page.select_option("#dose-product", "naoh-25")
+    assert page.input_value("#dose-strength") == "25" and page.input_value("#dose-density") == str(products["naoh-25"]["density_kg_per_L"])
+    details = page.locator("#dose-product-source")
+    expect(details).to_be_visible()
+    expect(details.locator("summary")).to_have_text("Where these figures come from")
+    expect(page.locator("#dose-product-source-text")).to_contain_text("CRC Handbook of Chemistry and Physics")
+    expect(page.locator("#dose-product-source-text")).to_contain_text("from memory")
+    expect(page.locator("#dose-chemical-hint")).not_to_contain_text("source")
+    redrawn(page, "dose", before)
+    page.wait_for_function("() => document.body.dataset.pending === '0'", timeout=30_000)
+    state = page_state(page)
+    d = state["treatment"]["dose"]
+    assert d["product"] == "naoh-25" and d["strength_pct"] == 25
+    want = core("dose", {"scenario": state["water"]["scenario"], "chemical": "NaOH", "target_pH": d["target_pH"],
+                         "strength_pct": 25, "density_kg_per_L": products["naoh-25"]["density_kg_per_L"],
+                         "flow": 1000, "flow_unit": d["flow_unit"]})
+    assert close(float(value(page, "#dose-feed-L-per-h")), want["product"]["feed_L_per_h"])
+    # typing another strength leaves the preset: the source line goes with it
+    page.fill("#dose-strength", "30")
+    expect(page.locator("#dose-product")).to_have_value("")
+    expect(details).to_be_hidden()
+    # other chemicals have their own products (hypochlorite, sulfuric acid 93 %)
+    page.select_option("#dose-chemical", "NaOCl")
+    expect(page.locator("#dose-product option", has_text="Sodium hypochlorite solution 12.5 %")).to_have_count(1)
+    page.select_option("#dose-chemical", "H2SO4")
+    page.select_option("#dose-product", "h2so4-93")
+    assert page.input_value("#dose-strength") == "93"
