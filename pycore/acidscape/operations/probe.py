@@ -189,6 +189,24 @@ def _structure(tab):
     return rows
 
 
+#: Per tableau (by identity) and set of present components: each species' (position, coefficient) pairs.
+_INDICES: dict = {}
+
+
+def _indices(tab, rows, present: tuple, pos: dict) -> list:
+    """Each species' (position in the present components, coefficient) pairs, found once per
+    tableau and set of present components."""
+    key = (id(tab), present)
+    hit = _INDICES.get(key)
+    if hit is not None and hit[0] is tab:
+        return hit[1]
+    out = [[(pos[j], a) for j, a in rest if j in pos] for _, rest in rows]
+    if len(_INDICES) > 256:
+        _INDICES.clear()
+    _INDICES[key] = (tab, out)
+    return out
+
+
 class Linearization:
     """The model's Hessian at a solution, over the present components, factorised once.
 
@@ -220,11 +238,12 @@ class Linearization:
         HH = 0.0
         live = []
         species = tab.species
+        idx_of = _indices(tab, rows, tuple(present), pos)
         for i, c in enumerate(conc):
             if not c:
                 continue
-            aH, rest = rows[i]
-            idx = [(pos[j], a) for j, a in rest if j in pos]
+            aH = rows[i][0]
+            idx = idx_of[i]
             live.append((i, species[i], c, idx, aH))
             if aH:
                 HH += c * aH * aH
@@ -367,23 +386,16 @@ class Linearization:
         if I <= 0.0:
             return 0.0, 0.0
         h = 1e-6 * I
-        cache = {}
-
-        def dlg(z, a):
-            if not z:
-                return 0.0
-            key = (z, a)
-            v = cache.get(key)
-            if v is None:
-                v = cache[key] = (gamma_of(z, a, I + h) - gamma_of(z, a, I - h)) / (2.0 * h)
-            return v
-
-        dlgc = [dlg(z, a) for z, a in zip(tab.charges, tab.ion_sizes)]
-        dxH = -LN10 * dlgc[0]
+        # one derivative per distinct (charge, ion size), one sum per distinct set of terms
+        # (the tableau's own grouping, acidscape.science.model.Tableau)
+        dk = [(gamma_of(z, a, I + h) - gamma_of(z, a, I - h)) / (2.0 * h) if z else 0.0 for z, a in tab.gamma_keys]
+        dshift = [sum(a * dk[k] for k, a in terms) for terms in tab.shift_terms]
+        sg, ss = tab.species_gkey, tab.species_shift
+        dxH = -LN10 * dk[tab.comp_gkey[0]]
         rhs = [0.0] * self.n
         es = []
         for i, sp, c, idx, aH in self.live:
-            e = LN10 * (sum(a * dlgc[j] for j, a in sp.stoich) - dlg(sp.charge, sp.ion_size_A)) + aH * dxH
+            e = LN10 * (dshift[ss[i]] - dk[sg[i]]) + aH * dxH
             es.append(e)
             for p, a in idx:
                 rhs[p] -= a * c * e

@@ -142,6 +142,11 @@ class Tableau:
         comp_gkey = tuple(keys.setdefault((z, a), len(keys)) for z, a in zip(self.charges, self.ion_sizes))
         species_gkey = tuple(keys.setdefault((sp.charge, sp.ion_size_A), len(keys)) for sp in self.species)
         object.__setattr__(self, "gamma_keys", tuple(keys))
+        terms: dict = {}
+        species_shift = tuple(terms.setdefault(tuple((comp_gkey[j], a) for j, a in sp.stoich), len(terms))
+                              for sp in self.species)
+        object.__setattr__(self, "shift_terms", tuple(terms))
+        object.__setattr__(self, "species_shift", species_shift)
         object.__setattr__(self, "comp_gkey", comp_gkey)
         object.__setattr__(self, "species_gkey", species_gkey)
 
@@ -372,7 +377,8 @@ class _Problem:
 
     def x_of(self, y):
         """The coupled x at the free coordinates y."""
-        return [a + sum(v * y[q] for q, v in row) for a, row in zip(self.x0, self.sk.N_rows)]
+        return [a + (sum([v * y[q] for q, v in row]) if len(row) != 1 else row[0][1] * y[row[0][0]])
+                for a, row in zip(self.x0, self.sk.N_rows)]
 
     def evaluate(self, y, want_hess=True):
         """F, gradient, Hessian (or None) and per-coordinate residual scale at y."""
@@ -959,7 +965,9 @@ def _constants_at(tab: Tableau, gamma_of, I: float):
     lg = [gamma_of(z, a, I) for z, a in tab.gamma_keys]
     lgc = [lg[k] for k in tab.comp_gkey]
     lgs = [lg[k] for k in tab.species_gkey]
-    lnKp = [LN10 * (logK + sum(a * lgc[j] for j, a in st) - lgi) for logK, st, lgi in zip(tab.log10_K, tab.stoichs, lgs)]
+    # sum_j a_ij lg_j is the same for every species with the same (activity key, coefficient) terms
+    shift = [sum(a * lg[k] for k, a in terms) for terms in tab.shift_terms]
+    lnKp = [LN10 * (logK + shift[t] - lgi) for logK, t, lgi in zip(tab.log10_K, tab.species_shift, lgs)]
     if len(cache) > 16:
         cache.clear()
     out = cache[key] = (lgc, lgs, lnKp)
