@@ -194,8 +194,12 @@ export function mountHardness({ py, view, plots, water }) {
     }
   });
   view.bindChange((id) => {
-    // the buffered pH moves the conditional plot's marker only: redraw it from the core again is cheap
-    run(DEBOUNCE_MS, id === "hardness-ph" ? [titration, conditional] : [titration]);
+    // the buffered pH moves the conditional plot's marker only (its curves do not depend on it)
+    if (id === "hardness-ph") {
+      const pH = parseNumber(view.read()["hardness-ph"], "").value;
+      if (Number.isFinite(pH) && pH >= 0 && pH <= 14 && drawn.conditional) plots.conditional.setMarker(pH);
+    }
+    run(DEBOUNCE_MS, [titration]);
   });
   onJobShown("hardness", () => {
     if (owed) run();

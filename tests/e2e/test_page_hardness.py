@@ -1,0 +1,150 @@
+"""End-to-end: the job "Hardness titration" (site/hardness.js, hardness-view.js) in headless Chromium.
+
+The oracle is the core's JSON entry (conftest.core_handle, the function the page's worker
+calls) run in this test process on the page's own water (read from the page's input-state
+registry). The example water (an invented hard well water) is only an input here; no chemistry
+value of it is asserted, only that the page shows the core's.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from conftest import core_handle, settled, show_job
+from playwright.sync_api import Page, expect
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 120_000
+STATE = "async () => (await import('./state.js')).collectState()"
+
+READ_PLOTS = """() => {
+  const get = (m) => (m.data instanceof Map ? Object.fromEntries(m.data) : m.data);
+  const out = {};
+  for (const doc of Bokeh.documents) {
+    const t = doc.get_model_by_name('edta_src');
+    if (t) {
+      const d = get(t), e = get(doc.get_model_by_name('edta_ep_src'));
+      out.titration = {xs: Array.from(d.xs, (a) => Array.from(a)), ys: Array.from(d.ys, (a) => Array.from(a)),
+                       metal: Array.from(d.metal), ex: Array.from(e.x), ey: Array.from(e.y)};
+    }
+    const c = doc.get_model_by_name('edtacond_src');
+    if (c) {
+      const d = get(c);
+      out.conditional = {xs: Array.from(d.xs, (a) => Array.from(a)), ys: Array.from(d.ys, (a) => Array.from(a)),
+                         metal: Array.from(d.metal), marker: doc.get_model_by_name('edtacond_marker').location};
+    }
+  }
+  return out;
+}"""
+
+
+def core(method: str, params: dict) -> dict:
+    reply = json.loads(core_handle(method, json.dumps(params)))
+    assert reply["ok"], reply
+    return reply["result"]
+
+
+def count(page: Page, block: str) -> int:
+    return int(page.evaluate(f"() => Number(document.querySelector('#job-hardness').dataset.{block}Drawn || 0)"))
+
+
+def redrawn(page: Page, block: str, before: int) -> None:
+    page.wait_for_function(
+        f"(n) => Number(document.querySelector('#job-hardness').dataset.{block}Drawn || 0) > n",
+        arg=before, timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+
+
+def open_hardness(page: Page, fragment: str = "preset=co2-well", wait: bool = True) -> None:
+    page.goto("/#" + fragment)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+    show_job(page, "hardness")
+    if wait:
+        redrawn(page, "titration", 0)
+        redrawn(page, "conditional", 0)
+
+
+def close(a, b, rel=1e-9) -> bool:
+    return math.isclose(float(a), float(b), rel_tol=rel, abs_tol=1e-12)
+
+
+def value(page: Page, selector: str) -> str:
+    return page.locator(selector).get_attribute("data-value") or ""
+
+
+def check_titration(page: Page, sample_mL: float, titrant_M: float, pH: float) -> None:
+    scenario = page.evaluate(STATE)["water"]["scenario"]
+    ref = core("titrate", {"scenario": scenario, "titrant": "EDTA", "titrant_M": titrant_M,
+                           "sample_mL": sample_mL, "fixed_pH": pH})
+    assert close(value(page, "#hardness-total"), ref["total_hardness_mg_per_L_as_CaCO3"])
+    assert close(value(page, "#hardness-composition"), ref["hardness_from_composition_mg_per_L_as_CaCO3"])
+    rows = page.locator("#hardness-endpoints tbody tr")
+    assert rows.count() == len(ref["end_points"])
+    for k, e in enumerate(ref["end_points"]):
+        row = rows.nth(k)
+        assert row.get_attribute("data-metal") == e["metal"]
+        got = row.locator("td[data-key='titrant_mL']").get_attribute("data-value")
+        if e["titrant_mL"] is None:
+            assert got == ""
+        else:
+            assert close(got, e["titrant_mL"])
+        assert close(row.locator("td[data-key='stoichiometric_mL']").get_attribute("data-value"), e["stoichiometric_mL"])
+    plots = page.evaluate(READ_PLOTS)
+    t = plots["titration"]
+    mL = [p["titrant_mL"] for p in ref["points"]]
+    for xs, ys, metal in zip(t["xs"], t["ys"], t["metal"]):
+        assert len(xs) == len(mL) and all(close(a, b) for a, b in zip(xs, mL))
+        assert all(close(a, p["pM"][metal]) for a, p in zip(ys, ref["points"]))
+    sharp = [e for e in ref["end_points"] if e["titrant_mL"] is not None and e["metal"] in ("calcium", "magnesium")]
+    assert len(t["ex"]) == len(sharp) and all(close(a, e["titrant_mL"]) for a, e in zip(t["ex"], sharp))
+
+
+def test_titration_and_conditional_constants_equal_the_core(page: Page, watch):
+    open_hardness(page)
+    check_titration(page, 50, 0.01, 10)
+    scenario = page.evaluate(STATE)["water"]["scenario"]
+    ref = core("conditional_constants", {"scenario": scenario, "metals": ["calcium", "magnesium"],
+                                         "pH_from": 6, "pH_to": 13, "points": 71})
+    c = page.evaluate(READ_PLOTS)["conditional"]
+    assert c["metal"] == ["calcium", "magnesium"] and c["marker"] == 10
+    for ys, m in zip(c["ys"], ref["metals"]):
+        assert all(close(a, b) for a, b in zip(ys, m["log10_K_conditional"]))
+    assert all(close(a, b) for a, b in zip(c["xs"][0], ref["pH"]))
+    # other inputs: 100 mL of sample, 0.02 mol/L EDTA, pH 9.5
+    for field, text in (("#hardness-sample", "100"), ("#hardness-edta", "0.02"), ("#hardness-ph", "9.5")):
+        before = count(page, "titration")
+        page.fill(field, text)
+        redrawn(page, "titration", before)
+    check_titration(page, 100, 0.02, 9.5)
+    page.wait_for_function("() => { for (const d of Bokeh.documents) { const m = d.get_model_by_name('edtacond_marker');"
+                           " if (m) return m.location === 9.5; } return false; }", timeout=BOOT_MS)
+
+
+@pytest.mark.parametrize("field, text, message", [
+    ("#hardness-sample", "0", "more than 0 mL"),
+    ("#hardness-ph", "15", "between 0 and 14"),
+    ("#hardness-edta", "x", "is not a number"),
+])
+def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watch, field, text, message):
+    open_hardness(page)
+    page.fill(field, text)
+    expect(page.locator(f"{field}-error")).to_contain_text(message, timeout=15_000)
+    expect(page.locator("#hardness-results")).to_have_attribute("data-state", "empty")
+    assert value(page, "#hardness-total") == ""
+    assert page.locator("#hardness-endpoints tbody tr").count() == 0
+    assert page.evaluate(READ_PLOTS)["titration"]["xs"] == []
+
+
+def test_water_without_calcium_or_magnesium_says_so(page: Page, watch):
+    # the page's own starting water holds neither
+    scenario_check = None
+    open_hardness(page, fragment="", wait=False)
+    scenario_check = page.evaluate(STATE)["water"]["scenario"]
+    assert not any(i.get("id") in ("calcium", "magnesium") for i in scenario_check.get("ions", []))
+    expect(page.locator("#hardness-water-error")).to_contain_text("neither calcium nor magnesium", timeout=BOOT_MS)
+    assert value(page, "#hardness-total") == ""
+    assert page.locator("#hardness-endpoints tbody tr").count() == 0

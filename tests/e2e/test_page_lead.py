@@ -1,0 +1,170 @@
+"""End-to-end: the job "Lead and copper" (site/lead.js, lead-view.js) in headless Chromium.
+
+The oracle is the core's JSON entry (conftest.core_handle, the function the page's worker
+calls) run in this test process on the page's own water (read from the page's input-state
+registry): the page runs the same package in Pyodide, so the numbers agree to round-off.
+The example water (an invented corrosion-control case with orthophosphate) is only an input
+here; no chemistry value of it is asserted, only that the page shows the core's.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from conftest import core_handle, settled, show_job
+from playwright.sync_api import Page, expect
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 120_000
+STATE = "async () => (await import('./state.js')).collectState()"
+
+READ_PLOT = """() => {
+  for (const doc of Bokeh.documents) {
+    const src = doc.get_model_by_name('lead_line_src');
+    if (!src) continue;
+    const get = (m) => (m.data instanceof Map ? Object.fromEntries(m.data) : m.data);
+    const d = get(src), b = get(doc.get_model_by_name('lead_band_src')), s = get(doc.get_model_by_name('lead_seg_src'));
+    return {xs: Array.from(d.xs, (a) => Array.from(a)), ys: Array.from(d.ys, (a) => Array.from(a)),
+            metal: Array.from(d.metal), solid: Array.from(d.solid), bands: Array.from(b.xs).length,
+            labels: Array.from(s.text), axis: doc.get_model_by_name('lead_xaxis').axis_label};
+  }
+  return null;
+}"""
+
+READ_TABLE = """() => Array.from(document.querySelectorAll('#lead-table tbody tr'), (tr) => {
+  const cell = (k) => tr.querySelector(`td[data-key="${k}"]`);
+  return {x: Number(tr.querySelector('th').dataset.value),
+          lead: cell('lead_ug_per_L').dataset.value, lead_solid: cell('lead_solid').textContent,
+          lead_low: cell('lead_band').dataset.low, lead_high: cell('lead_band').dataset.high,
+          copper: cell('copper_ug_per_L').dataset.value, copper_solid: cell('copper_solid').textContent};
+})"""
+
+
+def core(method: str, params: dict) -> dict:
+    reply = json.loads(core_handle(method, json.dumps(params)))
+    assert reply["ok"], reply
+    return reply["result"]
+
+
+def drawn(page: Page) -> int:
+    return int(page.evaluate("() => Number(document.querySelector('#job-lead').dataset.leadDrawn || 0)"))
+
+
+def redrawn(page: Page, before: int) -> None:
+    page.wait_for_function("(n) => Number(document.querySelector('#job-lead').dataset.leadDrawn || 0) > n",
+                           arg=before, timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+
+
+def open_lead(page: Page, fragment: str = "preset=orthophosphate-dose") -> None:
+    page.goto("/#" + fragment)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+    show_job(page, "lead")
+    redrawn(page, 0)
+
+
+def water_scenario(page: Page) -> dict:
+    return page.evaluate(STATE)["water"]["scenario"]
+
+
+def close(a, b, rel=1e-9) -> bool:
+    return math.isclose(float(a), float(b), rel_tol=rel, abs_tol=1e-12)
+
+
+def check_against_core(page: Page, params: dict) -> None:
+    """The table's rows and the plotted lines equal the core's curves for the same question."""
+    scenario = water_scenario(page)
+    ref = {m: core("solubility", {**params, "scenario": scenario, "metal": m}) for m in ("lead", "copper")}
+    names = {c["id"]: c["name"] for r in ref.values() for c in r["constants"]}
+    rows = page.evaluate(READ_TABLE)
+    assert len(rows) == 9
+    pts = {m: {round(p["x"], 9): p for p in r["points"]} for m, r in ref.items()}
+    for row in rows:
+        for m in ("lead", "copper"):
+            p = pts[m][round(row["x"], 9)]
+            assert close(row[m], p["dissolved_ug_per_L"]), (m, row, p["dissolved_ug_per_L"])
+            assert row[f"{m}_solid"] == names[p["controlling_solid"]]
+        p = pts["lead"][round(row["x"], 9)]
+        assert close(row["lead_low"], p["band_ug_per_L"]["low"]) and close(row["lead_high"], p["band_ug_per_L"]["high"])
+    plot = page.evaluate(READ_PLOT)
+    for m in ("lead", "copper"):
+        # each metal's segments, joined at their shared boundary points, are the core's whole curve
+        segs = [(xs, ys) for xs, ys, mm in zip(plot["xs"], plot["ys"], plot["metal"]) if mm == m]
+        xs = [x for k, (sx, _) in enumerate(segs) for x in (sx if k == 0 else sx[1:])]
+        ys = [y for k, (_, sy) in enumerate(segs) for y in (sy if k == 0 else sy[1:])]
+        curve = [p for p in ref[m]["points"] if p["dissolved_ug_per_L"] is not None]
+        assert len(xs) == len(curve) == params["points"]
+        assert all(close(a, p["x"]) for a, p in zip(xs, curve))
+        assert all(close(a, p["dissolved_ug_per_L"]) for a, p in zip(ys, curve))
+        # one segment per stretch controlled by one solid, each named on the plot
+        solids = [names[p["controlling_solid"]] for p in curve]
+        stretches = [s for k, s in enumerate(solids) if k == 0 or s != solids[k - 1]]
+        assert [s for s, mm in zip(plot["solid"], plot["metal"]) if mm == m] == stretches
+        assert set(stretches) <= set(plot["labels"])
+
+
+def test_lead_and_copper_against_ph_equal_the_core(page: Page, watch):
+    open_lead(page)
+    # a 200-point curve (201 points over pH 6.5..10.5) of each metal is drawn on a log axis
+    check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 0,
+                              "orthophosphate_dose_unit": "mg/L as P"})
+    plot = page.evaluate(READ_PLOT)
+    assert plot["axis"] == "pH" and plot["bands"] >= 1
+    # what it is, and what it is not
+    expect(page.locator("#lead-basis")).to_contain_text("not a prediction of lead or copper at a tap")
+    # the cautions for orthophosphate and pH adjustment sit beside the dose field
+    cautions = page.locator("#lead-form #lead-cautions")
+    expect(cautions).to_be_visible()
+    expect(cautions).to_contain_text("Orthophosphate overfeed")
+    expect(cautions).to_contain_text("jar or bench test")
+    # the published constants, with the spread of those whose sources disagree
+    page.locator("#lead-constants-box summary").click()
+    spread = page.locator("#lead-constants tbody tr[data-spread='true']")
+    assert spread.count() >= 1
+    expect(page.locator("#lead-constants tbody tr[data-id='hydrocerussite'] td[data-key='spread']")).to_contain_text("to")
+    expect(page.locator("#lead-water")).to_contain_text("DIC")
+
+
+def test_dose_and_reverse_curves_equal_the_core(page: Page, watch):
+    open_lead(page)
+    before = drawn(page)
+    page.fill("#lead-dose", "1.5")
+    redrawn(page, before)
+    check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 1.5,
+                              "orthophosphate_dose_unit": "mg/L as P"})
+    # against DIC at pH 8 (the dose still added)
+    before = drawn(page)
+    page.select_option("#lead-axis", "DIC")
+    redrawn(page, before)
+    before = drawn(page)
+    page.fill("#lead-fixed-ph", "8")
+    redrawn(page, before)
+    check_against_core(page, {"axis": "DIC", "from": 1, "to": 100, "unit": "mg/L as C", "points": 201,
+                              "fixed_pH": 8, "orthophosphate_dose": 1.5, "orthophosphate_dose_unit": "mg/L as P"})
+    assert page.evaluate(READ_PLOT)["axis"] == "DIC (mg/L as C)"
+    # against orthophosphate: the axis is the total, the dose field does not apply
+    before = drawn(page)
+    page.select_option("#lead-axis", "orthophosphate")
+    redrawn(page, before)
+    expect(page.locator("#lead-dose")).to_be_disabled()
+    check_against_core(page, {"axis": "orthophosphate", "from": 0, "to": 3, "unit": "mg/L as P", "points": 201,
+                              "fixed_pH": 8})
+
+
+@pytest.mark.parametrize("field, text, message", [
+    ("#lead-from", "abc", "is not a number"),
+    ("#lead-to", "15", "between 0 and 14"),
+    ("#lead-to", "6", "above its start"),
+    ("#lead-dose", "-1", "cannot be negative"),
+])
+def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watch, field, text, message):
+    open_lead(page)
+    page.fill(field, text)
+    expect(page.locator(f"{field}-error")).to_contain_text(message, timeout=15_000)
+    expect(page.locator("#lead-results")).to_have_attribute("data-state", "empty")
+    assert page.locator("#lead-table tbody tr").count() == 0
+    assert page.evaluate(READ_PLOT)["xs"] == []
