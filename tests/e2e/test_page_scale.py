@@ -1,0 +1,235 @@
+"""End-to-end: the "Scale and corrosion" job (site/scale.js, scale-view.js) in headless Chromium.
+
+The oracle is the core run in this test process (conftest.core_handle, the entry the page's
+worker calls) on the page's own water, read from the page's input-state registry: the page runs
+the same package in Pyodide, so the numbers agree to round-off. The waters are the invented
+examples of site/presets.json; no chemistry is checked against them here, only that the page
+shows what the core computes (the chemistry is checked in tests/test_indices.py and
+tests/test_scale_curves.py against an independent implementation).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from playwright.sync_api import Page, expect
+
+from conftest import core_handle, core_scenario, settled, show_job
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 120_000
+STATE = "async () => (await import('./state.js')).collectState()"
+READ_SOURCE = """(name) => {
+  for (const doc of Bokeh.documents) {
+    const m = doc.get_model_by_name(name);
+    if (!m) continue;
+    const d = m.data instanceof Map ? Object.fromEntries(m.data) : m.data;
+    return Object.fromEntries(Object.entries(d).map(([k, v]) => [k, Array.from(v)]));
+  }
+  return null;
+}"""
+
+
+def core(method: str, params: dict) -> dict:
+    reply = json.loads(core_handle(method, json.dumps(params)))
+    assert reply["ok"], reply
+    return reply["result"]
+
+
+def drawn(page: Page, block: str) -> int:
+    return int(page.evaluate(f"() => Number(document.getElementById('job-scale').dataset.{block}Drawn || 0)"))
+
+
+def wait_drawn(page: Page, block: str, before: int = 0) -> None:
+    page.wait_for_function(
+        f"(n) => Number(document.getElementById('job-scale').dataset.{block}Drawn || 0) > n", arg=before,
+        timeout=BOOT_MS)
+
+
+def open_scale(page: Page, hash_: str) -> dict:
+    page.goto("/" + hash_)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    show_job(page, "scale")
+    for block in ("indices", "curves", "dose", "steps"):
+        wait_drawn(page, block)
+    settled(page, BOOT_MS)
+    return core_scenario(page.evaluate(STATE)["water"]["scenario"])
+
+
+def num(page: Page, selector: str, attr: str = "data-value") -> float:
+    text = page.get_attribute(selector, attr)
+    assert text not in (None, ""), selector
+    return float(text)
+
+
+def close(a: float, b: float, rel: float = 1e-9, abs_: float = 1e-9) -> bool:
+    return math.isclose(a, b, rel_tol=rel, abs_tol=abs_)
+
+
+def test_indices_temperatures_and_plots_equal_the_core(page: Page, watch):
+    scenario = open_scale(page, "#preset=hard-well-scale")
+    before = drawn(page, "indices")
+    page.fill("#scale-temperatures", "60")
+    page.click(".scale-temp-preset[data-temp='100']")
+    expect(page.locator("#scale-temperatures")).to_have_value("60, 100")
+    page.fill("#scale-pco2", "0.00042")
+    wait_drawn(page, "indices", before)
+    settled(page, BOOT_MS)
+    want = core("solve", {**scenario, "uncertainty": True, "ccpp_temperatures_C": [60, 100],
+                          "ccpp_open_CO2_partial_pressure_atm": 0.00042})["calcium_carbonate"]
+    u = want["uncertainty"]
+    for key, value, rng in (("LSI", want["LSI"], u["LSI_range"]), ("pHs", want["pHs"], u["pHs_range"]),
+                            ("RSI", want["RSI"], u["RSI_range"]),
+                            ("CCPP", want["CCPP_mg_per_L_as_CaCO3"], u["CCPP_range_mg_per_L_as_CaCO3"]),
+                            ("CCPP_open", want["CCPP_open_mg_per_L_as_CaCO3"], u["CCPP_open_range_mg_per_L_as_CaCO3"])):
+        row = f"#scale-indices tr[data-key='{key}']"
+        assert close(num(page, f"{row} td[data-key='value']"), value), key
+        assert close(num(page, f"{row} td[data-key='range']", "data-low"), rng[0]), key
+        assert close(num(page, f"{row} td[data-key='range']", "data-high"), rng[1]), key
+    assert close(num(page, "#scale-indices tr[data-key='pH_after_CCPP'] td[data-key='value']"), want["pH_after_CCPP"])
+    # the method beside the numbers, units visible, the verdict in words
+    expect(page.locator("#scale-method")).to_contain_text(want["method_id"])
+    expect(page.locator("#scale-indices")).to_contain_text("mg/L as CaCO₃")
+    tendency = {"deposit": "will deposit", "dissolve": "will dissolve", "balanced": "at saturation"}[want["tendency"]]
+    expect(page.locator("#scale-verdict")).to_contain_text(tendency)
+    # the temperatures side by side, the water's own first
+    rows = page.eval_on_selector_all("#scale-temperature-table tbody tr", """trs => trs.map((tr) => [
+        Number(tr.dataset.temperature),
+        Object.fromEntries(Array.from(tr.querySelectorAll('td[data-value]'), (td) => [td.dataset.key, Number(td.dataset.value)]))])""")
+    assert [r[0] for r in rows] == pytest.approx([r["temperature_C"] for r in want["at_temperatures"]])
+    for (_, cells), ref in zip(rows, want["at_temperatures"]):
+        assert close(cells["CCPP"], ref["CCPP_mg_per_L_as_CaCO3"]) and close(cells["LSI"], ref["LSI"])
+    # both plots carry the core's curves and bands
+    curves = core("scale_curves", {"scenario": scenario, "temperature": {"from_C": 5, "to_C": 100, "points": 20}})
+    si = page.evaluate(READ_SOURCE, "scale_si_src")
+    ref = curves["saturation_against_pH"]
+    assert si["pH"] == pytest.approx(ref["pH"], rel=1e-12)
+    assert si["LSI"] == pytest.approx(ref["LSI"], rel=1e-9, abs=1e-9)
+    assert si["low"] == pytest.approx(ref["LSI_low"], rel=1e-9, abs=1e-9)
+    assert si["high"] == pytest.approx(ref["LSI_high"], rel=1e-9, abs=1e-9)
+    cc = page.evaluate(READ_SOURCE, "scale_ccpp_src")
+    ref = curves["ccpp_against_temperature"]
+    assert cc["ccpp"] == pytest.approx(ref["CCPP_mg_per_L_as_CaCO3"], rel=1e-9, abs=1e-9)
+    assert cc["high"] == pytest.approx(ref["CCPP_high"], rel=1e-9, abs=1e-9)
+    marks = page.evaluate(READ_SOURCE, "scale_ccpp_pts_src")
+    assert marks["t"] == pytest.approx([r["temperature_C"] for r in want["at_temperatures"]])
+    water = page.evaluate(READ_SOURCE, "scale_si_water_src")
+    assert water["LSI"] == pytest.approx([want["LSI"]], abs=1e-9)
+
+
+def test_bad_inputs_get_their_message_and_no_stale_figures(page: Page, watch):
+    open_scale(page, "#preset=hard-well-scale")
+    page.fill("#scale-temperatures", "60, 150")
+    expect(page.locator("#scale-temperatures-error")).to_contain_text("outside 0 to 100")
+    expect(page.locator("#scale-indices tbody tr")).to_have_count(0)
+    expect(page.locator("#scale-results")).to_have_attribute("data-state", "empty")
+    page.fill("#scale-temperatures", "")
+    page.fill("#scale-pco2", "-1")
+    expect(page.locator("#scale-pco2-error")).to_contain_text("above 0")
+    expect(page.locator("#scale-temperatures-error")).to_have_text("")
+    page.fill("#scale-pco2", "")
+    page.fill("#scale-dose-target", "x")
+    expect(page.locator("#scale-dose-target-error")).to_contain_text("not a number")
+    expect(page.locator("#scale-dose-mg")).to_have_attribute("data-value", "")
+    page.fill("#scale-step-0-value", "")
+    expect(page.locator("#scale-step-0-value-error")).to_contain_text("Enter a target pH")
+    expect(page.locator("#scale-steps-table tbody tr")).to_have_count(0)
+    settled(page, BOOT_MS)
+
+
+def test_dose_to_a_target_index_unreachable_and_no_dose_needed(page: Page, watch):
+    scenario = open_scale(page, "#preset=upland-conditioning")
+    before = drawn(page, "dose")
+    page.select_option("#scale-dose-chemical", "Ca(OH)2")
+    page.select_option("#scale-dose-target-kind", "CCPP")
+    page.fill("#scale-dose-target", "4")
+    page.fill("#scale-dose-flow", "9500")
+    wait_drawn(page, "dose", before)
+    settled(page, BOOT_MS)
+    want = core("dose", {"scenario": scenario, "chemical": "Ca(OH)2", "target_CCPP": 4, "flow": 9500, "flow_unit": "m3/d"})
+    assert close(num(page, "#scale-dose-mg"), want["dose_mg_per_L"])
+    assert close(num(page, "#scale-dose-mmol"), want["dose_mmol_per_L"])
+    assert close(num(page, "#scale-dose-kg-per-d"), want["pure_chemical_kg_per_d"])
+    assert close(num(page, "#scale-dose-reached", "data-ccpp"), want["reached"]["CCPP_mg_per_L_as_CaCO3"])
+    cautions = page.eval_on_selector_all("#scale-dose-cautions li", "lis => lis.map((li) => li.textContent)")
+    assert cautions == want["cautions"]
+    expect(page.locator("#scale-dose-precipitated")).not_to_have_text("—")
+    # a CCPP no amount of caustic reaches: which way and the best value, beside the field
+    page.select_option("#scale-dose-chemical", "NaOH")
+    page.fill("#scale-dose-target", "500")
+    err = json.loads(core_handle("dose", json.dumps({"scenario": scenario, "chemical": "NaOH", "target_CCPP": 500})))
+    assert not err["ok"] and err["error"]["type"] == "UnreachableError" and err["error"]["detail"]["direction"] == "above"
+    expect(page.locator("#scale-dose-target-error")).to_contain_text("above the highest CCPP")
+    tail = err["error"]["message"][len("target_CCPP"):]  # the best value and dose are in the core's words
+    expect(page.locator("#scale-dose-target-error")).to_contain_text(tail, timeout=BOOT_MS)
+    expect(page.locator("#scale-dose-mg")).to_have_attribute("data-value", "")
+    # CO2 cannot raise the LSI: already below the target is "no dose needed", not an error
+    before = drawn(page, "dose")
+    page.select_option("#scale-dose-chemical", "CO2")
+    page.select_option("#scale-dose-target-kind", "LSI")
+    page.fill("#scale-dose-target", "0")
+    wait_drawn(page, "dose", before)
+    expect(page.locator("#scale-dose-status")).to_have_attribute("data-status", "no dose needed")
+    expect(page.locator("#scale-dose-status")).to_contain_text("No dose needed")
+    assert num(page, "#scale-dose-mg") == 0
+    expect(page.locator("#scale-dose-target-error")).to_have_text("")
+    settled(page, BOOT_MS)
+
+
+def test_sequence_shows_the_water_after_each_step(page: Page, watch):
+    scenario = open_scale(page, "#preset=upland-conditioning")
+    before = drawn(page, "steps")
+    page.select_option("#scale-step-0-chemical", "Ca(OH)2")
+    page.select_option("#scale-step-0-kind", "target_CCPP")
+    page.fill("#scale-step-0-value", "6")
+    page.select_option("#scale-step-1-chemical", "CO2")
+    page.select_option("#scale-step-1-kind", "target_pH")
+    page.fill("#scale-step-1-value", "8.2")
+    wait_drawn(page, "steps", before)
+    settled(page, BOOT_MS)
+    want = core("treat", {"scenario": scenario, "steps": [{"chemical": "Ca(OH)2", "target_CCPP": 6},
+                                                          {"chemical": "CO2", "target_pH": 8.2}]})
+    rows = page.eval_on_selector_all("#scale-steps-table tbody tr", """trs => trs.map((tr) =>
+        Object.fromEntries(Array.from(tr.querySelectorAll('td[data-value]'), (td) => [td.dataset.key, td.dataset.value])))""")
+    assert len(rows) == 1 + len(want["steps"])
+    assert close(float(rows[0]["pH"]), want["water_before"]["pH"])
+    for row, step in zip(rows[1:], want["steps"]):
+        assert close(float(row["dose"]), step["dose_mg_per_L"])
+        assert close(float(row["pH"]), step["water_after"]["pH"])
+        assert close(float(row["CCPP"]), step["water_after"]["CCPP_mg_per_L_as_CaCO3"])
+        assert close(float(row["hardness"]), step["water_after"]["total_hardness_mg_per_L_as_CaCO3"])
+    cautions = page.eval_on_selector_all("#scale-steps-cautions li", "lis => lis.map((li) => li.textContent)")
+    assert cautions == want["cautions"] and any("Lime is caustic" in c for c in cautions)
+
+
+def test_a_water_without_calcium_says_what_is_missing(page: Page, watch):
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    assert core("solve", scenario)["calcium_carbonate"] is None  # the page's starting water
+    show_job(page, "scale")
+    expect(page.locator("#scale-error")).to_contain_text("need calcium and alkalinity", timeout=BOOT_MS)
+    expect(page.locator("#scale-indices tbody tr")).to_have_count(0)
+    settled(page, BOOT_MS)
+
+
+def test_a_shared_link_reproduces_the_indices(page: Page, context, watch):
+    open_scale(page, "#preset=hard-well-scale")
+    lsi = page.get_attribute("#scale-indices tr[data-key='LSI'] td[data-key='value']", "data-value")
+    ccpp = page.get_attribute("#scale-indices tr[data-key='CCPP'] td[data-key='value']", "data-value")
+    link = page.evaluate("""async () => (await import('./share.js')).encodeState(
+        (await import('./state.js')).collectState())""")
+    assert link.startswith("s=")
+    other = context.new_page()
+    other.goto("/#" + link)
+    expect(other.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    show_job(other, "scale")
+    other.wait_for_function("() => Number(document.getElementById('job-scale').dataset.indicesDrawn || 0) > 0",
+                            timeout=BOOT_MS)
+    assert other.get_attribute("#scale-indices tr[data-key='LSI'] td[data-key='value']", "data-value") == lsi
+    assert other.get_attribute("#scale-indices tr[data-key='CCPP'] td[data-key='value']", "data-value") == ccpp
+    settled(other, BOOT_MS)
+    other.close()
