@@ -17,7 +17,7 @@ import { mountShare, openingOf } from "./share-section.js";
 import { loadPresets } from "./presets.js";
 import { applyState } from "./state.js";
 import { onPendingChange } from "./section.js";
-import { setLimits } from "./parse.js";
+import { setFieldWords, setLimits } from "./parse.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
 import { embedConditionalConstantPlot, embedEdtaTitrationPlot, embedMetalSolubilityPlot } from "./plot.js";
@@ -65,6 +65,7 @@ try {
   ]);
   const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
   setLimits(waterLibrary.limits); // the core's input limits (one pH range) for every pH field
+  setFieldWords(waterLibrary.labels); // and its words for each input (notes about a link or file)
 
   // What the URL opens (a link or an example) is read before anything is computed, and each
   // section is filled from it before its first result: the defaults never flash first.

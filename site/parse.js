@@ -22,6 +22,55 @@ export function setLimits(fromCore) {
   limits = Array.isArray(pH) && pH.length === 2 && pH.every(Number.isFinite) ? { ...fromCore, pH: [...pH] } : null;
 }
 
+// The words of each input, also from the core (acidscape.checks.LABELS: key -> [words, unit], keys
+// with list positions written "[]" and "{0}" for the 1-based position), so a note about a value
+// of a link or a file names it as the page does ("the amount in acid-base system 2").
+let labels = null;
+
+/**
+ * Take the core's words for each input (the "labels" of the "systems" catalogue).
+ *
+ * @param {Record<string, [string, string]>|null|undefined} fromCore
+ */
+export function setFieldWords(fromCore) {
+  labels = fromCore && typeof fromCore === "object" ? fromCore : null;
+}
+
+function labelOf(tail) {
+  const positions = [...tail.matchAll(/\[(\d+)\]/g)].map((m) => Number(m[1]) + 1);
+  const entry = labels?.[tail.replace(/\[\d+\]/g, "[]")];
+  if (Array.isArray(entry) && typeof entry[0] === "string") {
+    return entry[0].replace(/\{(\d+)\}/g, (_, n) => String(positions[Number(n)] ?? ""));
+  }
+  const item = /^(.*\[\d+\])\.(.+)$/.exec(tail); // "steps[1].target_pH": the key in the list item
+  if (item) {
+    const inner = labelOf(item[2]);
+    const outer = labelOf(item[1]);
+    if (inner && outer) return `${inner} in ${outer}`;
+  }
+  return null;
+}
+
+/**
+ * An input named in words, from its path in a state, link or file.
+ *
+ * @param {string} path  e.g. "water.scenario.systems[1].total", "treatment.dose.density_kg_per_L"
+ * @returns {string}  e.g. "the amount in acid-base system 2", "the density of the product"
+ *
+ * @example fieldWords("water.scenario.temperature_C") === "the temperature"  // with the core's words
+ */
+export function fieldWords(path) {
+  const parts = String(path ?? "").split(".");
+  for (let k = 0; k < parts.length; k += 1) {
+    const words = labelOf(parts.slice(k).join("."));
+    if (words) return words;
+  }
+  // no word from the core (yet): the last key without its unit suffix and underscores
+  const last = (parts[parts.length - 1] ?? "").replace(/\[\d+\]/g, "")
+    .replace(/_(C|K|M|mL|pct|atm|mg_per_L.*|meq_per_L|kg_per_L|g_per_mol|uS_per_cm|L_per_d)$/, "").replace(/_/g, " ").trim();
+  return last ? `the ${last}` : "a value";
+}
+
 /** @returns {[number, number]|null}  the one pH range of every pH field, once the core has said it */
 export function phRange() {
   return limits ? [...limits.pH] : null;

@@ -23,6 +23,7 @@
 // the page as HTML: the sections' set() functions write into input values and textContent.
 
 import { STATE_VERSION } from "./state.js";
+import { fieldWords } from "./parse.js"; // inputs named in words in the notes about dropped values
 
 /** Longest fragment accepted [characters]. */
 export const MAX_LINK_CHARS = 16384;
@@ -175,25 +176,25 @@ export function sanitize(value, path, notes, depth = 0) {
   if (value === null || typeof value === "boolean") return value;
   if (typeof value === "number") {
     if (!Number.isFinite(value) || Math.abs(value) > LIMITS.magnitude) {
-      notes.push(`${path}: the number ${String(value).slice(0, 24)} is too large`);
+      notes.push(`${fieldWords(path)}: the number ${String(value).slice(0, 24)} is too large`);
       return undefined;
     }
     return value;
   }
   if (typeof value === "string") {
     if (value.length > LIMITS.stringLength) {
-      notes.push(`${path}: text of ${value.length} characters is too long (at most ${LIMITS.stringLength})`);
+      notes.push(`${fieldWords(path)}: text of ${value.length} characters is too long (at most ${LIMITS.stringLength})`);
       return undefined;
     }
     return value;
   }
   if (depth >= LIMITS.depth) {
-    notes.push(`${path}: nested too deeply`);
+    notes.push(`${fieldWords(path)}: nested too deeply`);
     return undefined;
   }
   if (Array.isArray(value)) {
     if (value.length > LIMITS.arrayLength) {
-      notes.push(`${path}: a list of ${value.length} items is too long (at most ${LIMITS.arrayLength})`);
+      notes.push(`${fieldWords(path)}: a list of ${value.length} items is too long (at most ${LIMITS.arrayLength})`);
       return undefined;
     }
     const out = [];
@@ -206,13 +207,13 @@ export function sanitize(value, path, notes, depth = 0) {
   if (typeof value === "object") {
     const keys = Object.keys(value);
     if (keys.length > LIMITS.keys) {
-      notes.push(`${path}: ${keys.length} entries is too many (at most ${LIMITS.keys})`);
+      notes.push(`${fieldWords(path)}: ${keys.length} entries is too many (at most ${LIMITS.keys})`);
       return undefined;
     }
     const out = {};
     for (const key of keys) {
       if (FORBIDDEN_KEYS.has(key)) {
-        notes.push(`${path}: the entry named "${key}" is not allowed`);
+        notes.push(`${fieldWords(path)}: the entry named "${key}" is not allowed`);
         continue;
       }
       const clean = sanitize(value[key], path ? `${path}.${key}` : key, notes, depth + 1);
@@ -220,7 +221,7 @@ export function sanitize(value, path, notes, depth = 0) {
     }
     return out;
   }
-  notes.push(`${path}: ${describe(value)} is not allowed`);
+  notes.push(`${fieldWords(path)}: ${describe(value)} is not allowed`);
   return undefined;
 }
 

@@ -105,3 +105,22 @@ test("every number form a user types reads the same as the plain number", () => 
   assert.equal(parseTemperature("12,5 °C", "t").value, 12.5);
   assert.ok(Math.abs(parseTemperature("285,65 K", "t").value - 12.5) < 1e-9); // 0 °C = 273.15 K (SI)
 });
+
+test("inputs named in words from their path, with the core's words or without them", async () => {
+  const { fieldWords, setFieldWords } = await import("../../site/parse.js");
+  setFieldWords(null);
+  assert.equal(fieldWords("water.scenario.temperature_C"), "the temperature");
+  assert.equal(fieldWords("treatment.dose.density_kg_per_L"), "the density");
+  // a few of the core's words (acidscape.checks.LABELS), in the catalogue's shape
+  setFieldWords({
+    "temperature_C": ["the temperature", "°C"], "density_kg_per_L": ["the density of the product", "kg/L"],
+    "systems[]": ["acid-base system {0}", ""], "total": ["the amount", ""], "measured.pH": ["the measured pH", ""],
+  });
+  assert.equal(fieldWords("water.scenario.systems[1].total"), "the amount in acid-base system 2");
+  assert.equal(fieldWords("treatment.dose.density_kg_per_L"), "the density of the product");
+  assert.equal(fieldWords("water.scenario.measured.pH"), "the measured pH");
+  for (const path of ["water.scenario.systems[1].total", "treatment.dose.density_kg_per_L", "x.brand_new_mg_per_L"]) {
+    assert.doesNotMatch(fieldWords(path), /_|\[\d+\]|\.\w/, path);
+  }
+  setFieldWords(null);
+});

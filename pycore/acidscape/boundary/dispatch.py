@@ -17,7 +17,7 @@ import functools
 import json
 from collections.abc import Callable
 
-from ..checks import LIMITS
+from ..checks import LABELS, LIMITS
 from ..data import library
 from ..errors import AcidscapeError, InputError, UnknownIdError
 from ..operations.dosing import chemicals
@@ -49,9 +49,9 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "buffer": api.buffer,
         "chemicals": lambda params: {"chemicals": [c.as_json() for c in chemicals().values()]},
         "products": api.products,  # product presets of strength and density (data/products.csv)
-        # the catalogues of the library, and the input limits the page shows in its hints (acidscape.checks)
+        # the catalogues of the library; the input limits and the words of each input (acidscape.checks)
         "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json(),
-                                   "limits": LIMITS},
+                                   "limits": LIMITS, "labels": LABELS},
         "solids": lambda params: {"solids": library.solids_as_json()},
     }
 
