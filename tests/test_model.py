@@ -226,3 +226,26 @@ def test_compiled_evaluation_is_the_same_arithmetic_as_the_loop(pH, solids):
                 prob._coupled(y, want_hess)
     assert sols[0].pH == sols[-1].pH and sols[0].conc == sols[-1].conc
     assert bool(sols[0].solids) == bool(solids)
+
+
+def test_compiled_cholesky_is_the_same_arithmetic_as_the_loops():
+    # model.Cholesky factors small matrices with straight-line code (model._compile_cholesky);
+    # it must give the very numbers of its own loops, and refuse the same matrices.
+    from acidscape.science.model import Cholesky
+
+    rnd = random.Random(7)
+    for n in range(1, 11):
+        B = [[rnd.uniform(-1, 1) * 10 ** rnd.uniform(-6, 0) for _ in range(n)] for _ in range(n + 2)]
+        A = [[sum(r[i] * r[j] for r in B) for j in range(n)] for i in range(n)]
+        b = [rnd.uniform(-1, 1) for _ in range(n)]
+        fast, loops = Cholesky(A), Cholesky(A, compiled=False)
+        assert fast.ok and loops.ok
+        assert fast.solve(b) == loops.solve(b)
+        x = fast.solve(b)
+        for i in range(n):  # and it solves the system (residual to rounding)
+            assert abs(sum(A[i][j] * x[j] for j in range(n)) - b[i]) <= 1e-8 * (1 + abs(b[i])) * max(
+                1.0, max(abs(v) for v in x) * max(abs(v) for v in A[i]))
+    indefinite = [[1.0, 2.0], [2.0, 1.0]]  # eigenvalues 3 and -1
+    assert not Cholesky(indefinite).ok and not Cholesky(indefinite, compiled=False).ok
+    with pytest.raises(ArithmeticError):
+        Cholesky(indefinite, strict=True)

@@ -146,6 +146,14 @@ class Tableau:
         species_shift = tuple(terms.setdefault(tuple((comp_gkey[j], a) for j, a in sp.stoich), len(terms))
                               for sp in self.species)
         object.__setattr__(self, "shift_terms", tuple(terms))
+        # per component: the species holding it once and otherwise only H+ (index, protons)
+        own: dict = {j: [] for j in range(m)}
+        for i, sp in enumerate(self.species):
+            st = dict(sp.stoich)
+            others = [j for j in st if j != 0]
+            if len(others) == 1 and st[others[0]] == 1:
+                own[others[0]].append((i, st.get(0, 0)))
+        object.__setattr__(self, "own_species", own)
         object.__setattr__(self, "species_shift", species_shift)
         object.__setattr__(self, "comp_gkey", comp_gkey)
         object.__setattr__(self, "species_gkey", species_gkey)
@@ -187,16 +195,26 @@ class Cholesky:
     ArithmeticError instead).
     """
 
-    __slots__ = ("n", "d", "L", "diag", "ok")
+    __slots__ = ("n", "d", "L", "diag", "ok", "flat", "code")
 
-    def __init__(self, A: list[list[float]], strict: bool = False):
+    def __init__(self, A: list[list[float]], strict: bool = False, compiled: bool = True):
         n = self.n = len(A)
         self.ok = True
         self.diag = None
+        self.flat = None
         if all(not v for i, row in enumerate(A) for k, v in enumerate(row) if k != i):
             if all(row[i] > 0.0 for i, row in enumerate(A)):
                 self.diag = [row[i] for i, row in enumerate(A)]
                 return
+        if compiled and n <= COMPILED_CHOLESKY_MAX:
+            # the same loops below, unrolled for this dimension (_compile_cholesky)
+            factor, self.code = _compile_cholesky(n)
+            self.flat = factor(A, strict)
+            if self.flat is None:
+                self.ok = False
+                if strict:
+                    raise ArithmeticError("the matrix is not positive definite")
+            return
         d = self.d = [math.sqrt(A[i][i]) if A[i][i] > 0 else 1.0 for i in range(n)]
         L = self.L = [[0.0] * n for _ in range(n)]
         for i in range(n):
@@ -222,6 +240,8 @@ class Cholesky:
         """x with A x = b."""
         if self.diag is not None:
             return [bi / di for bi, di in zip(b, self.diag)]
+        if self.flat is not None:
+            return self.code(self.flat, b)
         n, d, L = self.n, self.d, self.L
         y = [0.0] * n
         for i in range(n):
@@ -237,6 +257,57 @@ class Cholesky:
                 s -= L[p][i] * x[p]
             x[i] = s / L[i][i]
         return [x[i] / d[i] for i in range(n)]
+
+
+#: Largest dimension whose Cholesky factor is compiled to straight-line code.
+COMPILED_CHOLESKY_MAX = 16
+#: Compiled factor and solve of a dense Cholesky, by dimension (see :func:`_compile_cholesky`).
+_CHOLESKY_CODE: dict = {}
+
+
+def _compile_cholesky(n: int):
+    """Straight-line factor and solve of an n x n Jacobi-scaled Cholesky factor.
+
+    The same operations in the same order as the loops of :class:`Cholesky` (the same
+    numbers); the factor returns a flat list ``d_0..d_n-1, L_00, L_10, L_11, ...`` or None for
+    a matrix that is not positive semidefinite (a pivot below -1e-8, or below 1e-14 with
+    ``strict``).
+    """
+    hit = _CHOLESKY_CODE.get(n)
+    if hit is not None:
+        return hit
+    names = [f"d{i}" for i in range(n)] + [f"L{i}_{k}" for i in range(n) for k in range(i + 1)]
+    F = ["def _factor(A, strict):"]
+    F.append("    " + "".join(f"A{i}, " for i in range(n)) + "= A")
+    for i in range(n):
+        F.append(f"    a = A{i}[{i}]")
+        F.append(f"    d{i} = sqrt(a) if a > 0 else 1.0")
+    for i in range(n):
+        for k in range(i + 1):
+            expr = f"A{i}[{k}] / (d{i} * d{k})" + "".join(f" - L{i}_{p} * L{k}_{p}" for p in range(k))
+            F.append(f"    s = {expr}")
+            if i == k:
+                F.append("    if s <= 1e-14:")
+                F.append("        if s < -1e-8 or strict:")
+                F.append("            return None")
+                F.append("        s = 1e-14")
+                F.append(f"    L{i}_{i} = sqrt(s)")
+            else:
+                F.append(f"    L{i}_{k} = s / L{k}_{k}")
+    F.append("    return [" + ", ".join(names) + "]")
+    S = ["def _solve(f, b):"]
+    S.append("    " + "".join(f"{v}, " for v in names) + "= f")
+    for i in range(n):
+        expr = f"b[{i}] / d{i}" + "".join(f" - L{i}_{p} * y{p}" for p in range(i))
+        S.append(f"    y{i} = ({expr}) / L{i}_{i}")
+    for i in range(n - 1, -1, -1):
+        expr = f"y{i}" + "".join(f" - L{p}_{i} * x{p}" for p in range(i + 1, n))
+        S.append(f"    x{i} = ({expr}) / L{i}_{i}")
+    S.append("    return [" + ", ".join(f"x{i} / d{i}" for i in range(n)) + "]")
+    env = {"sqrt": math.sqrt}
+    exec(compile("\n".join(F + S) + "\n", "<acidscape.science.model cholesky>", "exec"), env)  # noqa: S102
+    hit = _CHOLESKY_CODE[n] = (env["_factor"], env["_solve"])
+    return hit
 
 
 def _cholesky_solve(H: list[list[float]], b: list[float]) -> list[float] | None:
@@ -299,7 +370,7 @@ class _Skeleton:
     structure and constraint pattern; the ionic strength only changes the numbers."""
 
     __slots__ = ("r", "N", "free", "nH", "P", "pivots", "N_cols", "N_rows", "cs_nz", "cs_abs", "cs_hess",
-                 "cs_x0", "nH_nz", "dependent", "calls", "compiled")
+                 "cs_x0", "cs_x0_nz", "nH_nz", "dependent", "calls", "compiled")
 
     def __init__(self, nc: int, C: list[list[float]], prefer: list[int], x_coeffs: list[list[float]]):
         self.dependent = False
@@ -330,6 +401,7 @@ class _Skeleton:
             # lower-triangle Hessian entries of this species: (flat index q*r+s, a_q a_s), s <= q
             self.cs_hess.append([(q * r + s, aq * as_) for q, aq in nz for s, as_ in nz if s <= q])
             self.cs_x0.append([(k, a[k]) for k in range(nc) if a[k] and k in pset])
+        self.cs_x0_nz = [(pos, ax) for pos, ax in enumerate(self.cs_x0) if ax]
         if r == 0 or not self.cs_nz:
             self.calls = None
 
@@ -362,13 +434,20 @@ class _Problem:
         self.sk = sk
         self.r, self.x0, self.N, self.free, self.nH, self.nH_nz = sk.r, x0, sk.N, sk.free, sk.nH, sk.nH_nz
         if sk.P:
-            self.cs_lnK = [lnK + sum(a * x0[k] for k, a in ax) if ax else lnK
-                           for lnK, ax in zip(lnK_cpl, sk.cs_x0)]
+            cs_lnK = list(lnK_cpl)
+            for pos, ax in sk.cs_x0_nz:
+                if len(ax) == 1:
+                    k, a = ax[0]
+                    cs_lnK[pos] += a * x0[k]
+                else:
+                    cs_lnK[pos] += sum([a * x0[k] for k, a in ax])
+            self.cs_lnK = cs_lnK
         else:
             self.cs_lnK = lnK_cpl
         self.cs_nz, self.cs_abs, self.cs_hess = sk.cs_nz, sk.cs_abs, sk.cs_hess
         self.ladders, self.T_simple = ladders, T_simple
-        self.Tr = [sum(T_cpl[k] * v for k, v in col) for col in sk.N_cols]
+        self.Tr = [T_cpl[col[0][0]] * col[0][1] if len(col) == 1 else sum([T_cpl[k] * v for k, v in col])
+                   for col in sk.N_cols]
         self.Tr_abs = [abs(t) for t in self.Tr]
         self.const = sum(T_cpl[pc] * x0[pc] for pc in sk.pivots)
 
@@ -978,20 +1057,20 @@ def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, l
     """Initial y: the last answer where known; else pH 7 (or the given pH) and each component
     spread over its own protonated forms at that pH, as if it formed no complex."""
     xH = x_state.get(0, LN10 * (-(pH if pH is not None else 7.0) - lgc[0]))
-    x_guess = []
-    for k, j in enumerate(coupled):
+    y = []
+    # y is x at the free coordinates (N holds an identity row there)
+    for k in prob.free:
+        j = coupled[k]
         if j in x_state:
-            x_guess.append(x_state[j])
+            y.append(x_state[j])
         elif j == 0:
-            x_guess.append(xH)
+            y.append(xH)
         else:
-            es = [lnKp[i] + dict(sp.stoich).get(0, 0) * xH for i, sp in enumerate(tab.species)
-                  if species_on[i] and dict(sp.stoich).get(j) == 1 and all(c in (0, j) for c, _ in sp.stoich)]
+            es = [lnKp[i] + h * xH for i, h in tab.own_species[j] if species_on[i]]
             top = max(es) if es else 0.0
             lnS = top + math.log(sum(math.exp(e - top) for e in es)) if es else 0.0
-            x_guess.append(math.log(max(totals[j], 1e-300)) - lnS)
-    # y is x at the free coordinates (N holds an identity row there)
-    return [x_guess[k] for k in prob.free]
+            y.append(math.log(max(totals[j], 1e-300)) - lnS)
+    return y
 
 
 def _assemble(tab, structure, totals, x, lnKp, open_comp, pH) -> dict:
