@@ -35,6 +35,13 @@ import { fixed, plainNumber, prettyFormula, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
 import { FLOW_UNITS } from "./treatment-view.js";
 
+/** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
+function signedFixed(x, d) {
+  if (x === null || x === undefined || !Number.isFinite(x)) return "—";
+  const r = Number(x.toFixed(d));
+  return (r > 0 ? "+" : "") + fixed(r === 0 ? 0 : x, d);
+}
+
 /** Quick temperatures a user adds with one click [°C] (common practice: what each stands for). */
 export const TEMPERATURE_PRESETS = [
   [5, "cold main 5 °C"],
@@ -407,7 +414,7 @@ export class ScaleView {
       const th = this.doc.createElement("th");
       th.scope = "row";
       th.textContent = fixed(row.temperature_C, 1);
-      const signed = (x, d) => (x > 0 ? "+" : "") + fixed(x, d);
+      const signed = (x, d) => signedFixed(x, d);
       tr.append(th,
         this.cell(fixed(row.pH, 2), row.pH, "pH"),
         this.cell(signed(row.LSI, 2), row.LSI, "LSI"),
@@ -452,7 +459,7 @@ export class ScaleView {
     reached.dataset.ph = w ? String(w.pH) : "";
     reached.dataset.lsi = w ? String(w.LSI ?? "") : "";
     reached.dataset.ccpp = w ? String(w.CCPP_mg_per_L_as_CaCO3 ?? "") : "";
-    const sign = (x, d) => (x > 0 ? "+" : "") + fixed(x, d);
+    const sign = (x, d) => signedFixed(x, d);
     reached.textContent = w
       ? `pH ${fixed(w.pH, 2)}, LSI ${sign(w.LSI, 2)}, CCPP ${sign(w.CCPP_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃`
       : "—";
@@ -484,7 +491,7 @@ export class ScaleView {
       body.replaceChildren();
       return;
     }
-    const sign = (x, d) => (x > 0 ? "+" : "") + fixed(x, d);
+    const sign = (x, d) => signedFixed(x, d);
     const rows = [];
     const start = r.water_before;
     const first = this.doc.createElement("tr");
@@ -543,6 +550,7 @@ export class ScaleView {
 
   /** @returns {boolean} whether the section is laid out (visible) now */
   isVisible() {
-    return this.section.getClientRects().length > 0 && !this.section.hidden;
+    // a job put away by the workbench keeps its box (visibility: hidden, inert): not visible
+    return this.section.getClientRects().length > 0 && !this.section.hidden && !this.section.closest("[inert]");
   }
 }

@@ -17,6 +17,13 @@ import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 import { relayoutPlots } from "./plot.js";
 
+/** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
+function signedFixed(x, d) {
+  if (x === null || x === undefined || !Number.isFinite(x)) return "—";
+  const r = Number(x.toFixed(d));
+  return (r > 0 ? "+" : "") + fixed(r === 0 ? 0 : x, d);
+}
+
 const DEBOUNCE_MS = 150;
 const JOB = "scale";
 /** Temperature grid of the CCPP curve [°C]: 5 to 100 in steps of 5. */
@@ -50,7 +57,7 @@ export function parseTemperatureList(text) {
 }
 
 function sign(x, d) {
-  return (x > 0 ? "+" : "") + fixed(x, d);
+  return signedFixed(x, d);
 }
 
 /** The verdict in words, and how sure it is. */

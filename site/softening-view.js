@@ -20,6 +20,13 @@ import { fixed, plainNumber, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
 import { FLOW_UNITS } from "./treatment-view.js";
 
+/** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
+function signedFixed(x, d) {
+  if (x === null || x === undefined || !Number.isFinite(x)) return "—";
+  const r = Number(x.toFixed(d));
+  return (r > 0 ? "+" : "") + fixed(r === 0 ? 0 : x, d);
+}
+
 function field(id, label, unit, { value = "", hint = "", select = false } = {}) {
   const control = select
     ? `<select id="${id}" aria-describedby="${id}-error"></select>`
@@ -163,7 +170,8 @@ export class SofteningView {
   }
 
   isVisible() {
-    return this.section.getClientRects().length > 0 && !this.section.hidden;
+    // a job put away by the workbench keeps its box (visibility: hidden, inert): not visible
+    return this.section.getClientRects().length > 0 && !this.section.hidden && !this.section.closest("[inert]");
   }
 
   isChoice(id) {
@@ -208,7 +216,7 @@ export class SofteningView {
       return;
     }
     const a = step.water_after ?? step.reached ?? {};
-    const sign = (x, d) => (x > 0 ? "+" : "") + fixed(x, d);
+    const sign = (x, d) => signedFixed(x, d);
     el.textContent = `${sciNumber(step.dose_mg_per_L, 4)} mg/L of CO₂` +
       (Number.isFinite(step.pure_chemical_kg_per_d) ? ` (${plainNumber(step.pure_chemical_kg_per_d)} kg/d)` : "") +
       ` — ${step.message}; then pH ${fixed(a.pH, 2)}, LSI ${sign(a.LSI, 2)}, CCPP ${sign(a.CCPP_mg_per_L_as_CaCO3, 1)} mg/L as CaCO₃`;
