@@ -6,7 +6,8 @@ import { exportNumber, fixed, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
 
 /** Input ids of the job, in form order; each has a #<id>-error beside it. */
-export const LEAD_INPUTS = ["lead-axis", "lead-from", "lead-to", "lead-dose", "lead-fixed-ph"];
+export const LEAD_INPUTS = ["lead-axis", "lead-from", "lead-to", "lead-dose", "lead-fixed-ph", "lead-lead-solids",
+  "lead-copper-solids"];
 
 const TEMPLATE = `
   <p id="lead-water" class="treat-water">Describe the water above; this job works on it.</p>
@@ -49,6 +50,22 @@ const TEMPLATE = `
         <input id="lead-fixed-ph" type="text" inputmode="decimal" spellcheck="false" value=""
                aria-describedby="lead-fixed-ph-error">
         <p id="lead-fixed-ph-error" class="error" aria-live="polite"></p>
+      </div>
+      <div class="field">
+        <label for="lead-lead-solids">Lead solids considered</label>
+        <select id="lead-lead-solids" aria-describedby="lead-lead-solids-error">
+          <option value="all" selected>Every lead solid of the database</option>
+          <option value="no-chloride">Without chloropyromorphite (hydroxypyromorphite for phosphate)</option>
+        </select>
+        <p id="lead-lead-solids-error" class="error" aria-live="polite"></p>
+      </div>
+      <div class="field">
+        <label for="lead-copper-solids">Copper solids considered</label>
+        <select id="lead-copper-solids" aria-describedby="lead-copper-solids-error">
+          <option value="all" selected>Every copper solid (aged scales included)</option>
+          <option value="fresh">Copper(II) hydroxide only (new plumbing)</option>
+        </select>
+        <p id="lead-copper-solids-error" class="error" aria-live="polite"></p>
       </div>
       <div id="lead-cautions" class="treat-warning" role="note" aria-label="Cautions for orthophosphate and pH adjustment" hidden></div>
       <p id="lead-error" class="error" aria-live="polite"></p>

@@ -20,6 +20,11 @@ export const LEAD_AXES = {
   orthophosphate: { from: "0", to: "3", unit: "mg/L as P", words: "mg/L as P", digits: 2 },
 };
 const METAL_LABEL = { lead: "Lead", copper: "Copper" };
+/** Candidate solids of each choice (ids of the core's solids database; null: every solid holding the metal). */
+export const SOLID_SETS = {
+  lead: { all: null, "no-chloride": ["cerussite", "hydrocerussite", "hydroxypyromorphite", "anglesite", "litharge"] },
+  copper: { all: null, fresh: ["copper-hydroxide"] },
+};
 /** Rows of the table: this many points spread evenly along the curve. */
 const TABLE_ROWS = 9;
 
@@ -86,6 +91,12 @@ export function mountLead({ py, view, plot, water }) {
       params.orthophosphate_dose_unit = "mg/L as P";
     }
     if (spec.unit) params.unit = spec.unit;
+    const solids = {};
+    for (const metal of ["lead", "copper"]) {
+      const set = SOLID_SETS[metal][raw[`lead-${metal}-solids`]];
+      if (set) solids[metal] = set;
+    }
+    if (Object.keys(solids).length) params.solids = solids;
     if (fixedPH !== null) params.fixed_pH = fixedPH;
     return { params, errors };
   }
@@ -153,10 +164,8 @@ export function mountLead({ py, view, plot, water }) {
 
   const block = computation({
     read,
-    call: (params) => Promise.all([
-      py.call("solubility", { ...params, metal: "lead" }),
-      py.call("solubility", { ...params, metal: "copper" }),
-    ]),
+    call: ({ solids = {}, ...params }) => Promise.all(["lead", "copper"].map((metal) => py.call("solubility",
+      solids[metal] ? { ...params, metal, solids: solids[metal] } : { ...params, metal }))),
     render,
     explain,
     show(messages) {

@@ -78,7 +78,9 @@ def close(a, b, rel=1e-9) -> bool:
 def check_against_core(page: Page, params: dict) -> None:
     """The table's rows and the plotted lines equal the core's curves for the same question."""
     scenario = water_scenario(page)
-    ref = {m: core("solubility", {**params, "scenario": scenario, "metal": m}) for m in ("lead", "copper")}
+    solids = params.pop("solids", {})
+    ref = {m: core("solubility", {**params, "scenario": scenario, "metal": m, **({"solids": solids[m]} if m in solids else {})})
+           for m in ("lead", "copper")}
     names = {c["id"]: c["name"] for r in ref.values() for c in r["constants"]}
     rows = page.evaluate(READ_TABLE)
     assert len(rows) == 9
@@ -168,3 +170,22 @@ def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watc
     expect(page.locator("#lead-results")).to_have_attribute("data-state", "empty")
     assert page.locator("#lead-table tbody tr").count() == 0
     assert page.evaluate(READ_PLOT)["xs"] == []
+
+
+def test_candidate_solids_chosen_on_the_page_equal_the_core(page: Page, watch):
+    open_lead(page)
+    before = drawn(page)
+    page.select_option("#lead-lead-solids", "no-chloride")
+    redrawn(page, before)
+    before = drawn(page)
+    page.select_option("#lead-copper-solids", "fresh")
+    redrawn(page, before)
+    check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 0,
+                              "orthophosphate_dose_unit": "mg/L as P",
+                              "solids": {"lead": ["cerussite", "hydrocerussite", "hydroxypyromorphite", "anglesite",
+                                                  "litharge"],
+                                         "copper": ["copper-hydroxide"]}})
+    solids = {t.strip() for t in page.locator("#lead-table td[data-key='lead_solid']").all_text_contents()}
+    assert "Chloropyromorphite" not in solids
+    assert {t.strip() for t in page.locator("#lead-table td[data-key='copper_solid']").all_text_contents()} == {
+        "Copper(II) hydroxide"}
