@@ -509,6 +509,9 @@ def test_command_line_batch(tmp_path):
     two = _cli("in.csv", "--mapping", "map.json", "--jobs", "2", "--out", "two.csv", cwd=tmp_path)
     assert two.returncode == 0, two.stderr
     assert (tmp_path / "two.csv").read_bytes() == (tmp_path / "one.csv").read_bytes()
+    every = _cli("in.csv", "--mapping", "map.json", "--jobs", "--out", "every.csv", cwd=tmp_path)  # one per core
+    assert every.returncode == 0, every.stderr
+    assert (tmp_path / "every.csv").read_bytes() == (tmp_path / "one.csv").read_bytes()
     want = batch_csv(semicolon_form(text), MAPPING)
     assert (tmp_path / "one.csv").read_text(encoding="utf-8") == want
     full = _cli("in.csv", "--mapping", "map.json", "--digits", "0", cwd=tmp_path)

@@ -906,8 +906,6 @@ def _row_model(parsed):
     model answers exactly as for ``acidscape.boundary.api.water_model(parsed)``
     (``tests/test_batch.py`` checks this row by row).
     """
-    import copy
-
     from .api import water_model
 
     key = (tuple((s.key, s.name, s.species, s.charges, s.pKa, s.ion_sizes, s.fixed_first_M is None)
@@ -919,7 +917,8 @@ def _row_model(parsed):
         if len(_MODELS) >= MAX_MODELS:
             _MODELS.clear()
         base = _MODELS[key] = water_model(parsed)
-    wm = copy.copy(base)
+    wm = object.__new__(type(base))  # a shallow copy: the tableau and the bookkeeping shared
+    wm.__dict__.update(base.__dict__)
     wm.systems, wm.ions, wm.I_fixed = list(parsed.components), list(parsed.ions), parsed.I_fixed
     # as WaterModel.__init__ lays them out: H+ (set by the solve), each system, each ion
     wm.totals = [0.0] + [0.0 if s.fixed_first_M is not None else s.total_M for s in parsed.components] \
