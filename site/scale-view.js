@@ -29,7 +29,9 @@
 //                                #scale-dose-precipitated, #scale-dose-cautions (li)
 //   #scale-step-<i>-chemical #scale-step-<i>-kind #scale-step-<i>-value #scale-step-<i>-remove,
 //   #scale-step-add; #scale-steps-table (tbody tr[data-step]: data-key cells), #scale-steps-cautions
-//   #<input-id>-error beside each input; #scale-error, #scale-dose-error, #scale-steps-error
+//   #scale-blend-with (an example water) #scale-blend-f1 #scale-blend-f2 (flow fractions);
+//   #scale-blend-table (tbody tr[data-key]: td[data-key] above / other / blend with data-value)
+//   #<input-id>-error beside each input; #scale-error, #scale-dose-error, #scale-steps-error, #scale-blend-error
 
 import { fixed, plainNumber, prettyFormula, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
@@ -183,6 +185,25 @@ const MARKUP = `
         <ul id="scale-steps-cautions"><li>Confirm any dose with a jar or bench test; guard against overfeed; local codes and licensed operators decide.</li></ul>
       </aside>
     </div>
+  </div>
+  <div class="treat-block" id="scale-blend-block">
+    <h3>Blend with another water</h3>
+    <form id="scale-blend-form" class="inputs" novalidate autocomplete="off">
+      ${field("scale-blend-with", "The other water", "an example water", { select: true })}
+      ${field("scale-blend-f1", "Flow fraction of the water above", "0 to 1", { value: "0.7" })}
+      ${field("scale-blend-f2", "Flow fraction of the other water", "0 to 1; the two add up to 1", { value: "0.3" })}
+      <p id="scale-blend-error" class="error" aria-live="polite"></p>
+    </form>
+    <div class="results" id="scale-blend-results" data-state="empty">
+      <div class="table-wrap" tabindex="0" role="region" aria-label="The blend">
+        <table id="scale-blend-table">
+          <caption>The two waters and their blend <span class="unit">(component totals mixed by flow; the blend's pH from its own equilibrium)</span></caption>
+          <thead><tr><th scope="col">Quantity</th><th scope="col" class="num">Water above</th><th scope="col" class="num">Other water</th><th scope="col" class="num">Blend</th></tr></thead>
+          <tbody></tbody>
+        </table>
+      </div>
+      <div id="scale-blend-warnings" class="treat-warning" role="status" hidden></div>
+    </div>
   </div>`;
 
 function byId(doc, id) {
@@ -191,6 +212,7 @@ function byId(doc, id) {
   return el;
 }
 
+const BLEND_INPUTS = ["scale-blend-with", "scale-blend-f1", "scale-blend-f2"];
 const DOSE_INPUTS = ["scale-dose-chemical", "scale-dose-target-kind", "scale-dose-target", "scale-dose-flow", "scale-dose-flow-unit"];
 const INDEX_INPUTS = ["scale-temperatures", "scale-pco2"];
 
@@ -205,16 +227,18 @@ export class ScaleView {
     Object.assign(box.style, { gridColumn: "1 / -1", display: "grid", gap: "0.9rem", minWidth: "0" });
     box.innerHTML = MARKUP; // static markup only; no user or core text
     this.section.append(box);
-    this.inputs = Object.fromEntries([...INDEX_INPUTS, ...DOSE_INPUTS].map((id) => [id, byId(doc, id)]));
+    this.inputs = Object.fromEntries([...INDEX_INPUTS, ...DOSE_INPUTS, ...BLEND_INPUTS].map((id) => [id, byId(doc, id)]));
     this.messages = {
       indices: new FieldMessages(doc, byId(doc, "scale-form"), "scale-error"),
       dose: new FieldMessages(doc, byId(doc, "scale-dose-form"), "scale-dose-error"),
       steps: new FieldMessages(doc, byId(doc, "scale-steps-form"), "scale-steps-error"),
+      blend: new FieldMessages(doc, byId(doc, "scale-blend-form"), "scale-blend-error"),
     };
     this.results = {
       indices: byId(doc, "scale-results"),
       dose: byId(doc, "scale-dose-results"),
       steps: byId(doc, "scale-steps-results"),
+      blend: byId(doc, "scale-blend-results"),
     };
     this.stepsBox = byId(doc, "scale-steps");
     this.stepCount = 0;
@@ -523,8 +547,57 @@ export class ScaleView {
     if (r.cautions?.length) this.setCautions("scale-steps-cautions", r.cautions);
   }
 
+  /** @param {{id: string, title: string}[]} waters  the example waters offered for a blend */
+  setBlendWaters(waters) {
+    this.fill(this.inputs["scale-blend-with"], waters.map((w) => [w.id, w.title]));
+  }
+
   /**
-   * @param {(block: "indices"|"dose"|"steps", id: string) => void} onChange  an input changed
+   * Show a blend, or clear it (null).
+   *
+   * @param {object|null} r  the core's blend result
+   */
+  renderBlend(r) {
+    const body = byId(this.doc, "scale-blend-table").tBodies[0];
+    const box = byId(this.doc, "scale-blend-warnings");
+    const warnings = r?.warnings ?? [];
+    box.replaceChildren(...warnings.map((t) => this.para(t)));
+    box.hidden = !warnings.length;
+    if (!r) {
+      body.replaceChildren();
+      return;
+    }
+    const quantities = [
+      ["fraction", "Flow fraction", "", (v) => fixed(v, 3)],
+      ["temperature_C", "Temperature", "°C", (v) => fixed(v, 1)],
+      ["pH", "pH", "", (v) => fixed(v, 2)],
+      ["total_alkalinity_mg_per_L_as_CaCO3", "Total alkalinity", "mg/L as CaCO₃", (v) => fixed(v, 1)],
+      ["total_hardness_mg_per_L_as_CaCO3", "Total hardness", "mg/L as CaCO₃", (v) => fixed(v, 1)],
+      ["calcium_mg_per_L", "Calcium", "mg/L", (v) => fixed(v, 1)],
+      ["LSI", "LSI", "", (v) => signedFixed(v, 2)],
+      ["CCPP_mg_per_L_as_CaCO3", "CCPP", "mg/L as CaCO₃", (v) => signedFixed(v, 1)],
+    ];
+    const cols = [["above", { ...r.waters[0], fraction: r.fractions[0] }], ["other", { ...r.waters[1], fraction: r.fractions[1] }],
+      ["blend", { ...r.blend, fraction: 1 }]];
+    body.replaceChildren(...quantities.map(([k, label, unit, fmt]) => {
+      const tr = this.doc.createElement("tr");
+      tr.dataset.key = k;
+      const th = this.doc.createElement("th");
+      th.scope = "row";
+      th.append(label);
+      if (unit) {
+        const u = this.doc.createElement("span");
+        u.className = "unit";
+        u.textContent = ` (${unit})`;
+        th.append(u);
+      }
+      tr.append(th, ...cols.map(([key, w]) => this.cell(fmt(w[k]), w[k], key)));
+      return tr;
+    }));
+  }
+
+  /**
+   * @param {(block: "indices"|"dose"|"steps"|"blend", id: string) => void} onChange  an input changed
    * @param {(temperature: number) => void} onPreset  a temperature button was pressed
    * @param {() => void} onAddStep
    * @param {(i: number) => void} onRemoveStep
@@ -534,6 +607,10 @@ export class ScaleView {
     for (const id of DOSE_INPUTS) {
       const el = this.inputs[id];
       el.addEventListener(el.tagName === "SELECT" ? "change" : "input", () => onChange("dose", id));
+    }
+    for (const id of BLEND_INPUTS) {
+      const el = this.inputs[id];
+      el.addEventListener(el.tagName === "SELECT" ? "change" : "input", () => onChange("blend", id));
     }
     for (const button of this.section.querySelectorAll(".scale-temp-preset")) {
       button.addEventListener("click", () => onPreset(Number(button.dataset.temp)));

@@ -7,6 +7,7 @@
 //             (api.scale_curves)
 //   dose      a dose to a target LSI or CCPP with what precipitates and the cautions (api.dose)
 //   steps     several chemicals in sequence, the water after each (api.treat)
+//   blend     the water above blended with an example water by flow fraction (api.blend)
 // The job computes only while it is shown (workbench.js); a water solved meanwhile is
 // computed when the job is next shown, and the plots are laid out again then.
 
@@ -16,6 +17,7 @@ import { parseNumber } from "./parse.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 import { relayoutPlots } from "./plot.js";
+import { loadPresets } from "./presets.js";
 
 /** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
 function signedFixed(x, d) {
@@ -296,6 +298,57 @@ export function mountScale({ py, view, plots, water, chemicals }) {
     busy: (flag) => view.setBusy("steps", flag),
   });
 
+  // -- blend with another water --------------------------------------------------------------
+  let blendWaters = new Map(); // example id -> its water scenario
+  loadPresets("./presets.json").then((presets) => {
+    const waters = presets.filter((p) => p.state?.water?.scenario);
+    blendWaters = new Map(waters.map((p) => [p.id, p.state.water.scenario]));
+    view.setBlendWaters(waters.map((p) => ({ id: p.id, title: p.title })));
+    if (shown()) blend.schedule(0);
+  });
+  const blend = computation({
+    read() {
+      const raw = view.read();
+      const errors = {};
+      const fractions = [];
+      for (const id of ["scale-blend-f1", "scale-blend-f2"]) {
+        const v = parseNumber(raw[id], "a flow fraction between 0 and 1, e.g. 0.3");
+        if (v.error) errors[id] = v.error;
+        else if (v.value < 0 || v.value > 1) errors[id] = `${v.value} is not a flow fraction; enter a number between 0 and 1.`;
+        else fractions.push(v.value);
+      }
+      if (fractions.length === 2 && Math.abs(fractions[0] + fractions[1] - 1) > 1e-6) {
+        errors["scale-blend-f2"] = `The fractions add up to ${Number((fractions[0] + fractions[1]).toPrecision(6))}; they must add up to 1 (e.g. ${fixed(1 - fractions[0], 3)} here).`;
+      }
+      const other = blendWaters.get(raw["scale-blend-with"]);
+      if (Object.keys(errors).length) return { params: null, errors };
+      if (!current.scenario || !other) return { params: null };
+      return { params: { waters: [current.scenario, other], fractions, names: ["the water above", raw["scale-blend-with"]] } };
+    },
+    call: (params) => py.call("blend", params),
+    render(r) {
+      view.showErrors("blend", {});
+      view.renderBlend(r);
+      settled("blend");
+      view.markDrawn("blend");
+    },
+    explain(error) {
+      if (error instanceof CoreError) {
+        if (error.field === "fractions") return { "scale-blend-f2": error.message };
+        if (/^fractions\[0\]/.test(error.field ?? "")) return { "scale-blend-f1": error.message };
+        if (/^fractions\[1\]/.test(error.field ?? "")) return { "scale-blend-f2": error.message };
+        if (/^waters\[1\]/.test(error.field ?? "")) return { "scale-blend-with": error.message };
+      }
+      return coreMessage(error, {}, "Blend");
+    },
+    show(messages) {
+      view.showErrors("blend", messages);
+      view.renderBlend(null);
+      view.setResultState("blend", "empty");
+    },
+    busy: (flag) => view.setBusy("blend", flag),
+  });
+
   function coreMessage(error, fields, block) {
     if (!(error instanceof CoreError)) return { block: String(error?.message || error) };
     const id = fields[error.field];
@@ -309,7 +362,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
     else view.setResultState(block, "current");
   }
 
-  const blocks = { indices, curves, dose, steps };
+  const blocks = { indices, curves, dose, steps, blend };
 
   async function refresh() {
     if (!shown()) {
@@ -317,7 +370,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       return;
     }
     dirty = false;
-    await Promise.all([indices.run(), dose.run(), steps.run(), curves.run()]);
+    await Promise.all([indices.run(), dose.run(), steps.run(), blend.run(), curves.run()]);
   }
 
   water.onSolved((scenario, result) => {
@@ -345,7 +398,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
 
   view.bind(
     (block, id) => {
-      const blockOf = { indices, dose, steps };
+      const blockOf = { indices, dose, steps, blend };
       blockOf[block].schedule(view.isChoice(id) ? 0 : DEBOUNCE_MS);
     },
     (t) => {

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 import math
+from pathlib import Path
 
 import pytest
 from playwright.sync_api import Page, expect
@@ -203,6 +204,24 @@ def test_sequence_shows_the_water_after_each_step(page: Page, watch):
         assert close(float(row["hardness"]), step["water_after"]["total_hardness_mg_per_L_as_CaCO3"])
     cautions = page.eval_on_selector_all("#scale-steps-cautions li", "lis => lis.map((li) => li.textContent)")
     assert cautions == want["cautions"] and any("Lime is caustic" in c for c in cautions)
+    # blending with another water: fractions that do not add up to 1 are refused beside the field
+    page.fill("#scale-blend-f2", "0.5")
+    expect(page.locator("#scale-blend-f2-error")).to_contain_text("must add up to 1")
+    expect(page.locator("#scale-blend-table tbody tr")).to_have_count(0)
+    before = drawn(page, "blend")
+    page.select_option("#scale-blend-with", "hard-well-scale")
+    page.fill("#scale-blend-f1", "0.6")
+    page.fill("#scale-blend-f2", "0.4")
+    wait_drawn(page, "blend", before)
+    settled(page, BOOT_MS)
+    presets = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))
+    other = next(p for p in presets["presets"] if p["id"] == "hard-well-scale")["state"]["water"]["scenario"]
+    want = core("blend", {"waters": [scenario, core_scenario(other)], "fractions": [0.6, 0.4]})
+    cells = page.eval_on_selector_all("#scale-blend-table tbody tr", """trs => Object.fromEntries(trs.map((tr) => [tr.dataset.key,
+        Object.fromEntries(Array.from(tr.querySelectorAll('td'), (td) => [td.dataset.key, Number(td.dataset.value)]))]))""")
+    for key in ("pH", "LSI", "CCPP_mg_per_L_as_CaCO3", "total_hardness_mg_per_L_as_CaCO3"):
+        assert close(cells[key]["blend"], want["blend"][key]), key
+    expect(page.locator("#scale-blend-f2-error")).to_have_text("")
 
 
 def test_a_water_without_calcium_says_what_is_missing(page: Page, watch):
