@@ -259,3 +259,5 @@ def test_limits_catalogue_for_the_page():
     assert reply["ok"], reply
     assert reply["result"]["limits"]["pH"] == list(checks.PH_RANGE)
     assert reply["result"]["limits"]["total_M"] == MAX_TOTAL_M
+    # and the words of each input, for notes about values dropped from a link or a file
+    assert reply["result"]["labels"]["measured.pH"] == ["the measured pH", ""]

@@ -69,7 +69,7 @@ LABELS: dict[str, tuple[str, str]] = {
     "ionic_strength_M": ("the ionic strength", "mol/L"),
     "tds_mg_per_L": ("the total dissolved solids", "mg/L"),
     "conductance_uS_per_cm": ("the specific conductance", "µS/cm"),
-    "pH": ("the fixed pH of the water", ""),
+    "pH": ("the pH", ""),  # a water's fixed pH, or the one-acid explorer's pH: the same words fit both
     "systems": ("the list of acid-base systems", ""),
     "ions": ("the list of ions", ""),
     "systems[]": ("acid-base system {0}", ""),
