@@ -2,7 +2,7 @@
 // shows (named for menus), a plot as PNG and the printed report. The pure part is export.js.
 // Text from the page or a file only ever goes in through textContent.
 
-import { REPORT_CAUTIONS, flatten } from "./export.js";
+import { REPORT_CAUTIONS, describeInputs } from "./export.js";
 
 /**
  * Offer a Blob as a download.
@@ -134,59 +134,162 @@ function el(doc, tag, text, className) {
   return node;
 }
 
+/** Every canvas inside an element (through open shadow roots), drawn or not on screen. */
+function allCanvases(root) {
+  const found = [];
+  const walk = (node) => {
+    if (node instanceof HTMLCanvasElement) found.push(node);
+    if (node.shadowRoot) walk(node.shadowRoot);
+    for (const child of node.children || []) walk(child);
+  };
+  walk(root);
+  return found.filter((c) => c.width > 0 && c.height > 0);
+}
+
 /**
- * Fill the hidden report block with everything a printout needs (it is shown only in print).
+ * A plot as a PNG data URL for the report: its canvas layers on white, or null when it has
+ * not been drawn. A plot on screen keeps its layout; one in a job put away is drawn at the
+ * size its canvases last had.
+ *
+ * @param {Element} host  the plot's host element
+ * @returns {string|null}
+ */
+export function plotDataUrl(host) {
+  const layers = allCanvases(host);
+  if (!layers.length) return null;
+  const box = host.getBoundingClientRect();
+  const onScreen = box.width > 0 && box.height > 0 && layers[0].getBoundingClientRect().width > 0;
+  const scale = onScreen ? layers[0].width / layers[0].getBoundingClientRect().width : 1;
+  const out = host.ownerDocument.createElement("canvas");
+  out.width = onScreen ? Math.round(box.width * scale) : Math.max(...layers.map((c) => c.width));
+  out.height = onScreen ? Math.round(box.height * scale) : Math.max(...layers.map((c) => c.height));
+  if (!out.width || !out.height) return null;
+  const ctx = out.getContext("2d");
+  ctx.fillStyle = "#ffffff";
+  ctx.fillRect(0, 0, out.width, out.height);
+  for (const layer of layers) {
+    if (onScreen) {
+      const r = layer.getBoundingClientRect();
+      if (!r.width || !r.height) continue;
+      ctx.drawImage(layer, (r.left - box.left) * scale, (r.top - box.top) * scale, r.width * scale, r.height * scale);
+    } else {
+      ctx.drawImage(layer, 0, 0);
+    }
+  }
+  return out.toDataURL("image/png");
+}
+
+/** The page's words for an id in one of its drop-downs (e.g. a chemical's option text). */
+function namer(doc) {
+  const SELECTS = {
+    system: "water-system-0-id", ion: "water-ion-0-id", chemical: "titrant-select", product: "dose-product",
+    "flow-unit": "dose-flow-unit", acid: "acid-select",
+  };
+  return (kind, id) => {
+    const select = doc.getElementById(SELECTS[kind] ?? "");
+    const option = select ? [...select.options].find((o) => o.value === id) : null;
+    return option ? option.textContent.trim() : null;
+  };
+}
+
+/** The heading of a block of results: its own, or the one of the block or section around it. */
+function resultsTitle(results) {
+  const own = results.querySelector("h2, h3");
+  if (own) return own.textContent.trim();
+  const block = results.closest(".treat-block, section, .panel");
+  return block?.querySelector("h3, h2")?.textContent.trim() || results.id;
+}
+
+/**
+ * Fill the hidden report block with everything a printout needs (it is shown only in print):
+ * date and versions, the short link, the inputs in words, every block of results that belongs
+ * to the inputs on screen (its figures with their units, its tables, its plots as images), and
+ * the cautions.
  *
  * @param {Document} doc  the page
  * @param {HTMLElement} report  the #report element
- * @param {{state: object, link: string, versions: object, manifest: object|null,
- *          notes?: string[]}} info  inputs, the link, versions and the build manifest
+ * @param {{state: object, link: string, versions: object, manifest: object|null}} info
+ *        inputs, the link, versions and the build manifest
+ * @returns {Promise<void>}
  */
-export function fillReport(doc, report, { state, link, versions, manifest }) {
+export async function fillReport(doc, report, { state, link, versions, manifest }) {
   const parts = [];
+  const now = new Date();
   parts.push(el(doc, "h2", "Acidscape report"));
+  parts.push(el(doc, "p", "Acid–base calculation of a water, computed in the browser from the inputs below.", "report-lead"));
   const meta = el(doc, "dl", undefined, "report-meta");
   const v = { ...(manifest?.versions || {}), ...(versions || {}) };
   const wheel = manifest?.wheel && manifest?.files?.[manifest.wheel];
   const metaRows = [
-    ["Printed", new Date().toLocaleString()],
-    ["Tool version", `Acidscape ${v.acidscape ?? "?"} (Python ${v.python ?? "?"} on Pyodide ${v.pyodide ?? "?"})`],
+    ["Printed", `${now.toLocaleString()} (${now.toISOString().slice(0, 16).replace("T", " ")} UTC)`],
+    ["Tool version", `Acidscape ${v.acidscape ?? "?"} (Python ${v.python ?? "?"} on Pyodide ${v.pyodide ?? "?"}, BokehJS ${v.bokeh ?? v.bokehjs ?? "?"})`],
     ["Constants version", manifest?.constants?.sha256
       ? `cited data tables and constants, sha256 ${manifest.constants.sha256.slice(0, 16)}`
       : wheel ? `core package with its cited data tables, sha256 ${wheel.slice(0, 16)} (${manifest.wheel})` : "unknown (no build manifest)"],
     ["Scenario link", link],
   ];
-  for (const [k, text] of metaRows) meta.append(el(doc, "dt", k), el(doc, "dd", text));
+  for (const [k, text] of metaRows) {
+    const dd = el(doc, "dd", text);
+    if (k === "Scenario link") dd.className = "report-link";
+    meta.append(el(doc, "dt", k), dd);
+  }
   parts.push(meta);
 
   parts.push(el(doc, "h3", "Inputs"));
-  for (const [section, value] of Object.entries(state)) {
-    if (section === "v") continue;
+  for (const group of describeInputs(state, namer(doc))) {
     const table = el(doc, "table", undefined, "report-inputs");
-    table.append(el(doc, "caption", section));
+    table.append(el(doc, "caption", group.title));
     const body = el(doc, "tbody");
-    for (const [path, text] of flatten(value, "", [])) {
+    for (const [label, text] of group.rows) {
       const tr = el(doc, "tr");
-      tr.append(el(doc, "th", path), el(doc, "td", text));
+      const th = el(doc, "th", label);
+      th.scope = "row";
+      tr.append(th, el(doc, "td", text));
       body.append(tr);
     }
     table.append(body);
     parts.push(table);
   }
 
-  parts.push(el(doc, "h3", "Results and calculation trail"));
-  for (const summary of doc.querySelectorAll("main .water-summary, main [data-report-summary]")) {
-    const copy = summary.cloneNode(true);
-    for (const node of copy.querySelectorAll("[id]")) node.removeAttribute("id");
-    parts.push(copy);
+  parts.push(el(doc, "h3", "Results"));
+  const leftOut = [];
+  for (const results of doc.querySelectorAll("main .results")) {
+    if (report.contains(results)) continue;
+    const title = resultsTitle(results);
+    if (results.dataset.state !== "current") {
+      if (results.dataset.state === "stale") leftOut.push(title);
+      continue;
+    }
+    const block = el(doc, "section", undefined, "report-block");
+    block.append(el(doc, "h4", title));
+    const copy = results.cloneNode(true);
+    const hosts = [...results.querySelectorAll(".plot")];
+    [...copy.querySelectorAll(".plot")].forEach((clone, i) => {
+      const url = plotDataUrl(hosts[i]);
+      const figure = clone.closest("figure");
+      if (!url) {
+        (figure && copy.contains(figure) ? figure : clone).remove();
+        return;
+      }
+      const img = el(doc, "img", undefined, "report-plot");
+      img.src = url;
+      img.alt = figure?.querySelector("figcaption")?.textContent.trim().replace(/\s+/g, " ") || "plot";
+      clone.replaceWith(img);
+    });
+    for (const node of copy.querySelectorAll("input, select, button, textarea, form, .visually-hidden, [hidden], .stale-note, .cautions")) node.remove();
+    for (const node of [copy, ...copy.querySelectorAll("[id]")]) node.removeAttribute("id");
+    for (const node of copy.querySelectorAll("[aria-live], [role='status'], [role='region'], [tabindex]")) {
+      node.removeAttribute("aria-live");
+      node.removeAttribute("role");
+      node.removeAttribute("tabindex");
+    }
+    copy.removeAttribute("aria-live");
+    if (!copy.textContent.trim() && !copy.querySelector("img")) continue;
+    block.append(copy);
+    parts.push(block);
   }
-  for (const { name, table } of pageTables(doc)) {
-    if (report.contains(table)) continue;
-    const copy = table.cloneNode(true);
-    copy.removeAttribute("id");
-    for (const node of copy.querySelectorAll("[id]")) node.removeAttribute("id");
-    if (!copy.caption) copy.createCaption().textContent = name;
-    parts.push(copy);
+  if (leftOut.length) {
+    parts.push(el(doc, "p", `Left out, because their figures belong to earlier inputs: ${leftOut.join("; ")}.`, "report-note"));
   }
 
   parts.push(el(doc, "h3", "Cautions"));
@@ -197,5 +300,5 @@ export function fillReport(doc, report, { state, link, versions, manifest }) {
   for (const text of [...new Set(onPage), ...REPORT_CAUTIONS]) cautions.append(el(doc, "li", text));
   parts.push(cautions);
   report.replaceChildren(...parts);
-  report.dataset.filled = new Date().toISOString();
+  report.dataset.filled = now.toISOString();
 }

@@ -104,16 +104,6 @@ export async function curveRows(py, state) {
   return rows;
 }
 
-export function flatten(value, path, out) {
-  if (value !== null && typeof value === "object") {
-    const entries = Array.isArray(value) ? value.map((v, i) => [`[${i}]`, v]) : Object.entries(value);
-    for (const [k, v] of entries) flatten(v, Array.isArray(value) ? `${path}${k}` : path ? `${path}.${k}` : k, out);
-  } else {
-    out.push([path, value === null ? "—" : String(value)]);
-  }
-  return out;
-}
-
 /** Cautions printed on every report, whatever the page shows. */
 export const REPORT_CAUTIONS = [
   "Doses computed here are estimates from an equilibrium model of the water as described; check them by jar test or a measured trial before changing a plant.",
@@ -121,3 +111,153 @@ export const REPORT_CAUTIONS = [
   "Local regulations and the licensed operator in charge decide what is dosed; this report does not replace their judgement.",
 ];
 
+
+// -- the report's inputs in words ---------------------------------------------------------------
+
+/** Unit suffixes of state keys (the core's naming: the unit is in the key) -> the unit shown. */
+const KEY_UNITS = [
+  ["_mg_per_L_as_CaCO3", "mg/L as CaCO₃"], ["_uS_per_cm", "µS/cm"], ["_kg_per_L", "kg/L"], ["_mg_per_L", "mg/L"],
+  ["_per_L", "per L"], ["_pct", "%"], ["_atm", "atm"], ["_mL", "mL"], ["_M", "mol/L"], ["_N", "eq/L"],
+  ["_C", "°C"], ["_F", "°F"],
+];
+/** Words for keys whose plain form reads badly. */
+const KEY_WORDS = {
+  pH: "pH", pKa: "pKa", to_pH: "to pH", from_pH: "from pH", target_pH: "target pH", pCO2: "CO₂ partial pressure",
+  CO2_partial_pressure_atm: "CO₂ partial pressure", total_M: "total concentration", log_scale: "logarithmic axis",
+  plot_system: "system plotted", charge: "charge of the most protonated form",
+};
+
+/** "target_pH" -> "Target pH"; "strength_pct" -> "Strength"; with the unit the key carries. */
+export function keyWords(key) {
+  let unit = "";
+  let base = String(key);
+  if (!Object.hasOwn(KEY_WORDS, base)) {
+    for (const [suffix, u] of KEY_UNITS) {
+      if (base.endsWith(suffix) && base.length > suffix.length) {
+        unit = u;
+        base = base.slice(0, -suffix.length);
+        break;
+      }
+    }
+  }
+  const words = KEY_WORDS[base] ?? base.replace(/_/g, " ").replace(/([a-z])([A-Z])/g, "$1 $2").toLowerCase()
+    .replace(/\bph\b/g, "pH").replace(/\bco2\b/g, "CO₂").replace(/\b(lsi|ccpp|rsi|dic|tds|edta)\b/g, (w) => w.toUpperCase());
+  return { label: words.charAt(0).toUpperCase() + words.slice(1), unit };
+}
+
+function plain(value) {
+  if (value === null || value === undefined || value === "") return null;
+  if (typeof value === "boolean") return value ? "yes" : "no";
+  if (typeof value === "number") return String(Number(value.toPrecision(6)));
+  if (Array.isArray(value)) return value.every((v) => typeof v !== "object" || v === null) ? value.map(plain).join(", ") : null;
+  return typeof value === "object" ? null : String(value);
+}
+
+/** Rows [label, text] for any object, keys turned into words (for sections without a describer). */
+function genericRows(obj, prefix = "") {
+  const rows = [];
+  for (const [key, value] of Object.entries(obj ?? {})) {
+    const { label, unit } = keyWords(key);
+    const name = prefix ? `${prefix}, ${label.charAt(0).toLowerCase()}${label.slice(1)}` : label;
+    const text = plain(value);
+    if (text !== null) rows.push([name, unit ? `${text} ${unit}` : text]);
+    else if (Array.isArray(value)) value.forEach((v, i) => rows.push(...genericRows(v, `${name} ${i + 1}`)));
+    else if (value && typeof value === "object") rows.push(...genericRows(value, name));
+  }
+  return rows;
+}
+
+const ACTIVITY_WORDS = {
+  ideal: "ideal (activities equal concentrations)", davies: "Davies equation",
+  "extended-debye-huckel": "extended Debye–Hückel (Kielland ion sizes)",
+};
+
+const capital = (s) => String(s).charAt(0).toUpperCase() + String(s).slice(1);
+
+/**
+ * The report's inputs in words, one group per section of the state.
+ *
+ * @param {object} state  from collectState()
+ * @param {(kind: string, id: string) => string|null} [nameOf]  the page's words for an id
+ *        ("system", "ion", "chemical", "product", "flow-unit", "acid", "axis"), null if unknown
+ * @returns {{title: string, rows: [string, string][]}[]}
+ */
+export function describeInputs(state, nameOf = () => null) {
+  const name = (kind, id) => nameOf(kind, id) ?? capital(id);
+  const groups = [];
+  const num = (v) => (typeof v === "number" ? String(Number(v.toPrecision(6))) : v === null || v === undefined ? null : String(v));
+  const push = (rows, label, value, unit = "") => {
+    const text = num(value);
+    if (text !== null && text !== "") rows.push([label, unit ? `${text} ${unit}` : text]);
+  };
+  for (const [section, value] of Object.entries(state ?? {})) {
+    if (section === "v" || !value || typeof value !== "object") continue;
+    if (section === "water" && value.scenario && typeof value.scenario === "object") {
+      const s = value.scenario;
+      const rows = [];
+      push(rows, "Temperature", s.temperature_C, "°C");
+      if (s.activity) rows.push(["Activity model", ACTIVITY_WORDS[s.activity] ?? String(s.activity)]);
+      const m = s.measured;
+      if (m && typeof m === "object") {
+        push(rows, "Measured pH", m.pH);
+        const a = m.alkalinity;
+        if (a && typeof a === "object") push(rows, "Total alkalinity", a.value, a.unit ?? "");
+        else push(rows, "Total alkalinity", a, "mg/L as CaCO₃");
+      }
+      push(rows, "pH (given)", s.pH);
+      push(rows, "Ionic strength (given)", s.ionic_strength_M, "mol/L");
+      push(rows, "Total dissolved solids", s.tds_mg_per_L, "mg/L");
+      push(rows, "Specific conductance", s.conductance_uS_per_cm, "µS/cm at 25 °C");
+      push(rows, "Open to CO₂ at a partial pressure of", s.gas?.CO2_partial_pressure_atm, "atm");
+      for (const [list, kind] of [[s.systems, "system"], [s.ions, "ion"]]) {
+        for (const item of Array.isArray(list) ? list : []) {
+          if (!item || typeof item !== "object") continue;
+          const label = item.custom ? `${item.custom.name ?? "Own " + kind}${Array.isArray(item.custom.pKa) ? ` (pKa ${item.custom.pKa.join(", ")})` : ""}` : name(kind, item.id);
+          push(rows, label, item.total, item.unit ?? "mol/L");
+        }
+      }
+      if (typeof s.complexes === "boolean") rows.push(["Ion pairs and complexes", s.complexes ? "included" : "left out"]);
+      if (Array.isArray(s.precipitate) && s.precipitate.length) rows.push(["Solids allowed to form", s.precipitate.join(", ")]);
+      const known = new Set(["temperature_C", "activity", "measured", "pH", "ionic_strength_M", "tds_mg_per_L",
+        "conductance_uS_per_cm", "gas", "systems", "ions", "complexes", "precipitate"]);
+      rows.push(...genericRows(Object.fromEntries(Object.entries(s).filter(([k]) => !known.has(k)))));
+      groups.push({ title: "The water", rows });
+    } else if (section === "treatment") {
+      const t = value.titration ?? {};
+      const d = value.dose ?? {};
+      const b = value.buffer ?? {};
+      const titration = [];
+      if (t.titrant) titration.push(["Titrant", name("chemical", t.titrant)]);
+      if (t.titrant_N !== undefined && t.titrant_N !== null) push(titration, "Titrant normality", t.titrant_N, "eq/L");
+      else push(titration, "Titrant concentration", t.titrant_M, "mol/L");
+      push(titration, "Sample volume", t.sample_mL, "mL");
+      titration.push(["Titrated to", t.to_pH === null || t.to_pH === undefined ? "automatic end (pH 3.5 with an acid, 11 with a base)" : `pH ${num(t.to_pH)}`]);
+      if (t.axis) titration.push(["Amount shown as", t.axis === "dose" ? "dose, mg/L of pure chemical" : "titrant volume, mL"]);
+      const dose = [];
+      if (d.chemical) dose.push(["Chemical", name("chemical", d.chemical)]);
+      if (d.product) dose.push(["Product", name("product", d.product)]);
+      push(dose, "Target pH", d.target_pH);
+      push(dose, "Product strength", d.strength_pct, "% w/w");
+      push(dose, "Product density", d.density_kg_per_L, "kg/L");
+      if (d.flow !== null && d.flow !== undefined) push(dose, "Plant flow", d.flow, name("flow-unit", d.flow_unit ?? ""));
+      const buffer = [];
+      if (b.from_pH !== null && b.from_pH !== undefined && b.to_pH !== null && b.to_pH !== undefined) {
+        buffer.push(["Buffer capacity between", `pH ${num(b.from_pH)} and pH ${num(b.to_pH)}`]);
+      }
+      if (typeof b.log_scale === "boolean") buffer.push(["Buffer intensity axis", b.log_scale ? "logarithmic" : "linear"]);
+      groups.push({ title: "Titration", rows: titration }, { title: "Dose to a target pH", rows: dose });
+      if (buffer.length) groups.push({ title: "Buffer intensity", rows: buffer });
+    } else if (section === "distribution") {
+      const rows = [];
+      if (value.acid && value.acid !== "custom") rows.push(["Acid", name("acid", value.acid)]);
+      else if (Array.isArray(value.pKa)) rows.push(["Acid", `own acid, pKa ${value.pKa.join(", ")}, charge of the most protonated form ${num(value.charge)}`]);
+      push(rows, "Total concentration", value.total_M, "mol/L");
+      push(rows, "pH of the species table", value.pH);
+      groups.push({ title: "One-acid explorer", rows });
+    } else {
+      groups.push({ title: capital(keyWords(section).label), rows: genericRows(value) });
+    }
+  }
+  const order = (g) => (g.title === "The water" ? 0 : g.title === "One-acid explorer" ? 2 : 1);
+  return groups.filter((g) => g.rows.length).sort((a, b) => order(a) - order(b));
+}

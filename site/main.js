@@ -69,7 +69,7 @@ try {
 
   // What the URL opens (a link or an example) is read before anything is computed, and each
   // section is filled from it before its first result: the defaults never flash first.
-  const opening = openingOf(window.location.hash, presets, SECTIONS);
+  const opening = await openingOf(window.location.hash, presets, SECTIONS);
   const opened = opening.state ?? {};
   const messages = [...(opening.notes ?? [])];
 

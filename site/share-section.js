@@ -8,7 +8,7 @@
 // dropping what cannot be used, and report() says what was opened and what was dropped.
 
 import { applyState, collectState, onInputChange, sectionNames } from "./state.js";
-import { encodeState, readFragment, readStateJson } from "./share.js";
+import { encodeState, encodeStateShort, readFragment, readFragmentAsync, readStateJson } from "./share.js";
 import { RecentStore, describeState, findPreset } from "./presets.js";
 import { curveRows, scenarioBlob, stamp, toCsv } from "./export.js";
 
@@ -25,8 +25,8 @@ const RECENT_DEBOUNCE_MS = 2500;
  *           {kind: "state", state: object, notes: string[]} |
  *           {kind: "preset", preset: object, state: object, notes: string[]}}
  */
-export function openingOf(hash, presets, sections) {
-  const found = readFragment(hash, sections);
+export async function openingOf(hash, presets, sections) {
+  const found = await readFragmentAsync(hash, sections);
   if (found.kind !== "preset") return found;
   const preset = findPreset(presets, found.id);
   if (!preset) {
@@ -77,6 +77,14 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
     view.setLink(pageUrl(fragment));
   }
 
+  // The short link (z=, compressed) is made asynchronously: only the newest one is written.
+  let linkSerial = 0;
+  async function writeCurrentLink() {
+    const serial = ++linkSerial;
+    const fragment = await encodeStateShort(collectState());
+    if (serial === linkSerial) writeLink(fragment);
+  }
+
   function remember() {
     clearTimeout(recentTimer);
     recentTimer = setTimeout(() => {
@@ -91,7 +99,7 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
     currentPreset = null;
     view.showPreset(null);
     clearTimeout(urlTimer);
-    urlTimer = setTimeout(() => writeLink(encodeState(collectState())), URL_DEBOUNCE_MS);
+    urlTimer = setTimeout(writeCurrentLink, URL_DEBOUNCE_MS);
     remember();
   });
 
@@ -115,12 +123,15 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
   function report(opening, messages, source, quiet = false) {
     view.markOpened();
     if (opening.kind === "none") {
-      view.setLink(pageUrl(encodeState(collectState())));
+      const serial = ++linkSerial;
+      encodeStateShort(collectState()).then((fragment) => {
+        if (serial === linkSerial) view.setLink(pageUrl(fragment));
+      });
       return;
     }
     if (opening.kind === "error") {
       view.message("error", `This link could not be used: ${opening.reason}. The page shows its defaults instead.`);
-      writeLink(encodeState(collectState()));
+      writeCurrentLink();
       return;
     }
     if (opening.kind === "preset") {
@@ -138,7 +149,7 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
     } else {
       currentPreset = null;
       view.showPreset(null);
-      writeLink(encodeState(collectState()));
+      writeCurrentLink();
       if (messages.length) {
         view.message("warning", `Opened the scenario from ${source}. Some of it was left out and the rest computed:`, messages);
       } else {
@@ -149,7 +160,7 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
   }
 
   async function open(hash) {
-    const opening = openingOf(hash, presets, sectionNames());
+    const opening = await openingOf(hash, presets, sectionNames());
     const messages = opening.state ? await apply(opening.state, opening.notes) : [];
     report(opening, messages, "the link", true);
   }
@@ -177,6 +188,7 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
   });
 
   view.on("recent-clear", () => {
+    clearTimeout(recentTimer); // a scenario waiting to be kept is not added back after the clear
     recent.clear();
     view.setRecent([]);
     view.message("info", "Your recent scenarios were removed from this browser.");
@@ -184,7 +196,10 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
 
   view.on("share-copy", async () => {
     clearTimeout(urlTimer);
-    if (!currentPreset) writeLink(encodeState(collectState()));
+    if (!currentPreset) {
+      linkSerial += 1; // an older link still being made must not overwrite this one
+      writeLink(await encodeStateShort(collectState()));
+    }
     const url = view.value("share-url");
     try {
       if (!win.navigator.clipboard) throw new Error("no clipboard");
@@ -244,7 +259,8 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
 
   view.on("print-report", async () => {
     const state = collectState();
-    view.fillReport({ state, link: pageUrl(encodeState(state)), versions, manifest: await manifest });
+    const link = currentPreset ? pageUrl(`preset=${currentPreset.id}`) : pageUrl(await encodeStateShort(state));
+    await view.fillReport({ state, link, versions, manifest: await manifest });
     win.print();
   });
 

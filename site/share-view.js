@@ -172,9 +172,9 @@ export class ShareView {
     downloadBlob(this.doc, blob, filename);
   }
 
-  /** @param {object} info  fill #report for printing (export-view.js fillReport) */
+  /** @param {object} info  fill #report for printing (export-view.js fillReport) @returns {Promise<void>} */
   fillReport(info) {
-    fillReport(this.doc, this.el.report, info);
+    return fillReport(this.doc, this.el.report, info);
   }
 
   /** Count one opened link, example, file or recent scenario on body[data-opened]. */

@@ -13,6 +13,11 @@
 //                           Version 0 (the first, single-section format, still read): a flat
 //                           object {version: 0, acid, pka: "2.15, 7.2", z, c, ph} for the
 //                           species section only; migrate() turns it into version 1.
+//   z=<version>.<payload>   the same scenario, shorter: <payload> is base64url of the raw DEFLATE
+//                           (RFC 1951, no zlib header) of the same UTF-8 JSON. This is what the
+//                           page writes (encodeStateShort); s= links are still read, and written
+//                           where a browser lacks CompressionStream. Reading inflates at most
+//                           MAX_JSON_BYTES, so a small link cannot expand into a huge one.
 //   preset=<id>             one of the worked examples in presets.json.
 // Anything else after "#" is left alone (e.g. an in-page anchor).
 //
@@ -27,6 +32,8 @@ import { fieldWords } from "./parse.js"; // inputs named in words in the notes a
 
 /** Longest fragment accepted [characters]. */
 export const MAX_LINK_CHARS = 16384;
+/** Longest scenario JSON a compressed link may inflate to [bytes]. */
+export const MAX_JSON_BYTES = MAX_LINK_CHARS * 4;
 /** Bounds applied to every value in a state object read from outside. */
 export const LIMITS = Object.freeze({
   depth: 8,
@@ -304,14 +311,29 @@ export function readFragment(hash, sections) {
     if (!/^[a-z0-9-]{1,60}$/.test(id)) return { kind: "error", reason: "the example it names is not a valid name" };
     return { kind: "preset", id };
   }
+  if (text.startsWith("z=")) {
+    return { kind: "error", reason: "it is a compressed link; this page reads those with readFragmentAsync" };
+  }
   if (!text.startsWith("s=")) return { kind: "none" };
-  const body = text.slice(2);
+  return readPayload(text.slice(2), (payload) => fromBase64Url(payload), sections);
+}
+
+/**
+ * The part of reading a link after its kind: version prefix, bytes, UTF-8, JSON, version marks,
+ * migrate, validate.
+ *
+ * @param {string} body  "<version>.<payload>"
+ * @param {(payload: string) => Uint8Array} bytesOf  the payload's bytes (throws with a reason)
+ * @param {string[]} sections  the registered section names
+ * @returns {{kind: "state", state: object, notes: string[]} | {kind: "error", reason: string}}
+ */
+function readPayload(body, bytesOf, sections) {
   const dot = body.indexOf(".");
   if (dot < 1) return { kind: "error", reason: "it has no format version (expected s=<version>.<data>)" };
   const prefix = body.slice(0, dot);
   if (!/^\d{1,3}$/.test(prefix)) return { kind: "error", reason: "its format version is not a number" };
   try {
-    const bytes = fromBase64Url(body.slice(dot + 1));
+    const bytes = bytesOf(body.slice(dot + 1));
     let json;
     try {
       json = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
@@ -337,4 +359,74 @@ export function readFragment(hash, sections) {
   } catch (error) {
     return { kind: "error", reason: String(error?.message || error) };
   }
+}
+
+/** Bytes through a (De)CompressionStream, stopping past `limit` bytes of output. */
+async function pipeBytes(bytes, stream, limit = Infinity) {
+  const out = new Blob([bytes]).stream().pipeThrough(stream);
+  const reader = out.getReader();
+  const chunks = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.length;
+    if (total > limit) {
+      await reader.cancel();
+      throw new Error(`it holds more than ${limit.toLocaleString("en")} bytes of scenario`);
+    }
+    chunks.push(value);
+  }
+  const joined = new Uint8Array(total);
+  let at = 0;
+  for (const c of chunks) {
+    joined.set(c, at);
+    at += c.length;
+  }
+  return joined;
+}
+
+/**
+ * The short fragment text (without "#") for a state object: z=<version>.<base64url of raw
+ * DEFLATE of the JSON>. Falls back to encodeState (s=) where the browser has no
+ * CompressionStream.
+ *
+ * @param {object} state  as from collectState()
+ * @returns {Promise<string>}  e.g. "z=2.q1YqU7IyNNJRKs..."
+ */
+export async function encodeStateShort(state) {
+  if (typeof CompressionStream !== "function") return encodeState(state);
+  const version = Number.isInteger(state?.v) ? state.v : STATE_VERSION;
+  const json = new TextEncoder().encode(JSON.stringify({ ...state, v: version }));
+  const packed = await pipeBytes(json, new CompressionStream("deflate-raw"));
+  return `z=${version}.${toBase64Url(packed)}`;
+}
+
+/**
+ * Read a URL fragment of any kind, the compressed one included (readFragment reads the rest).
+ *
+ * @param {string} hash  location.hash (with or without the leading "#")
+ * @param {string[]} sections  the registered section names
+ * @returns {Promise<ReturnType<typeof readFragment>>}
+ */
+export async function readFragmentAsync(hash, sections) {
+  const text = String(hash || "").replace(/^#/, "");
+  if (!text.startsWith("z=") || text.length > MAX_LINK_CHARS) return readFragment(hash, sections);
+  if (typeof DecompressionStream !== "function") {
+    return { kind: "error", reason: "it is a compressed link, and this browser cannot decompress (it lacks DecompressionStream)" };
+  }
+  const body = text.slice(2);
+  const dot = body.indexOf(".");
+  let inflated = null;
+  let failure = null;
+  if (dot >= 1) {
+    try {
+      inflated = await pipeBytes(fromBase64Url(body.slice(dot + 1)), new DecompressionStream("deflate-raw"), MAX_JSON_BYTES);
+    } catch (error) {
+      failure = /bytes of scenario|characters|cut short/.test(String(error?.message))
+        ? String(error.message) : "it is damaged (it could not be decompressed; it may be cut short)";
+    }
+  }
+  if (failure) return { kind: "error", reason: failure };
+  return readPayload(body, () => inflated, sections);
 }

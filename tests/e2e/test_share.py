@@ -10,6 +10,7 @@ from __future__ import annotations
 import base64
 import json
 import math
+import zlib
 from pathlib import Path
 
 import pytest
@@ -49,9 +50,18 @@ def water_ph(page: Page, want: float) -> float:
 
 
 def state_of(fragment: str) -> dict:
-    assert fragment.startswith("#s=2."), fragment[:40]
+    """The state in a fragment the page wrote: #z=2.<base64url of raw DEFLATE (RFC 1951) of the
+    JSON> (the short link), or #s=2.<base64url of the JSON>."""
+    assert fragment.startswith(("#z=2.", "#s=2.")), fragment[:40]
     payload = fragment[5:]
-    return json.loads(base64.urlsafe_b64decode(payload + "=" * (-len(payload) % 4)).decode("utf-8"))
+    raw = base64.urlsafe_b64decode(payload + "=" * (-len(payload) % 4))
+    return json.loads((zlib.decompress(raw, wbits=-15) if fragment.startswith("#z=") else raw).decode("utf-8"))
+
+
+# The page's own reader of a fragment, for waiting on what the URL holds.
+HASH_STATE = """async () => { const m = await import('./share.js');
+  const r = await m.readFragmentAsync(location.hash, ['distribution', 'water', 'treatment']);
+  return r.kind === 'state' ? r.state : null; }"""
 
 
 def link_for(state) -> str:
@@ -82,11 +92,7 @@ def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, 
     water_ph(page, api.solve(core_scenario(PRESETS[-1]["state"]["water"]["scenario"]))["pH"])
     show_job(page, "explorer")
     page.fill("#ph-input", "6.85")
-    page.wait_for_function("""() => {
-        if (!location.hash.startsWith('#s=2.')) return false;
-        const b64 = location.hash.slice(5).replace(/-/g, '+').replace(/_/g, '/');
-        return JSON.parse(new TextDecoder().decode(Uint8Array.from(atob(b64), (c) => c.charCodeAt(0))))
-          .distribution.pH === 6.85; }""")
+    page.wait_for_function(f"async () => ((await ({HASH_STATE})()) || {{distribution: {{}}}}).distribution.pH === 6.85")
     settled(page)
     first = state_of(page.evaluate("location.hash"))
     assert first["distribution"]["pH"] == 6.85
@@ -132,6 +138,10 @@ HOSTILE = [
     (link_for(b"[1,2,3]"), "does not hold a scenario"),
     ("s=1.%3Cscript%3E", "characters"),
     (link_for({"v": 1, "spreadsheet": {"a": 1}}), "not a part of this page"),
+    # short (compressed) links: damaged, cut, or inflating far past any scenario
+    ("z=2.AAAA", "damaged"),
+    ("z=2." + base64.urlsafe_b64encode(zlib.compress(b'{"v":2,"x":"' + b" " * 200_000 + b'"}')[2:-4]).decode().rstrip("="),
+     "more than"),
 ]
 
 
@@ -170,7 +180,7 @@ def test_a_format_0_link_opens_migrated(page: Page, watch):
     expect(page.locator("#share-message")).to_contain_text("an older link (format 0) was brought up to date")
     page.wait_for_function("() => document.getElementById('pka-input').value === '4.76'")
     assert page.input_value("#total-input") == "0.01" and page.input_value("#ph-input") == "5"
-    page.wait_for_function("() => location.hash.startsWith('#s=2.')")
+    page.wait_for_function("() => location.hash.startsWith('#z=2.') || location.hash.startsWith('#s=2.')")
     assert state_of(page.evaluate("location.hash"))["distribution"] == {
         "acid": "custom", "pKa": [4.76], "charge": 0, "total_M": 0.01, "pH": 5}
 
@@ -218,7 +228,7 @@ def test_copy_file_recent_list_and_report(page: Page, context, watch, tmp_path):
     page.wait_for_function("() => window.__printed === 1")
     report = page.locator("#report")
     for words in ("Acidscape report", "Tool version", "Acidscape 0.", "Constants version", "sha256",
-                  "Cautions", "never pour water into acid", "temperature_C"):
+                  "Cautions", "never pour water into acid", "Temperature"):
         expect(report).to_contain_text(words)
     assert report.locator("table").count() >= 3
     assert page.locator("#report [id]").count() == 0  # copies carry no duplicate ids

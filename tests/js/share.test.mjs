@@ -3,7 +3,9 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
-import { ION_WORDS, encodeState, migrate, readFragment, readStateJson, toBase64Url } from "../../site/share.js";
+import {
+  ION_WORDS, MAX_JSON_BYTES, encodeState, encodeStateShort, migrate, readFragment, readFragmentAsync, readStateJson, toBase64Url,
+} from "../../site/share.js";
 import { STATE_VERSION } from "../../site/state.js";
 
 const fixture = (name) => JSON.parse(readFileSync(new URL(`./fixtures/${name}`, import.meta.url), "utf8"));
@@ -50,4 +52,49 @@ test("a link from a newer page is refused with the reason", () => {
   const r = readFragment(`#s=3.${toBase64Url(new TextEncoder().encode('{"v":3}'))}`, SECTIONS);
   assert.equal(r.kind, "error");
   assert.match(r.reason, /newer Acidscape \(format 3\)/);
+});
+
+// -- the short (compressed) link: z=<version>.<base64url of raw DEFLATE>, RFC 1951 ------------
+
+const PRESETS = JSON.parse(readFileSync(new URL("../../site/presets.json", import.meta.url), "utf8")).presets;
+
+test("a short link round-trips every example and is much shorter than the plain one", async () => {
+  for (const preset of PRESETS) {
+    const state = readStateJson(JSON.stringify(preset.state), SECTIONS).state;
+    const short = await encodeStateShort(state);
+    const plain = encodeState(state);
+    assert.ok(short.startsWith(`z=${STATE_VERSION}.`), short.slice(0, 10));
+    assert.ok(short.length < 0.6 * plain.length, `${preset.id}: ${short.length} vs ${plain.length} characters`);
+    const back = await readFragmentAsync(`#${short}`, SECTIONS);
+    assert.equal(back.kind, "state");
+    assert.deepEqual(back.state, state);
+    assert.deepEqual(back.notes, []);
+  }
+});
+
+test("plain s= links still open through the same reader", async () => {
+  const state = readStateJson(JSON.stringify(PRESETS[0].state), SECTIONS).state;
+  const back = await readFragmentAsync(`#${encodeState(state)}`, SECTIONS);
+  assert.equal(back.kind, "state");
+  assert.deepEqual(back.state, state);
+});
+
+test("a damaged, cut or oversized short link is refused with a reason", async () => {
+  const state = readStateJson(JSON.stringify(PRESETS[0].state), SECTIONS).state;
+  const short = await encodeStateShort(state);
+  const cut = await readFragmentAsync(`#${short.slice(0, short.length - 12)}`, SECTIONS);
+  assert.equal(cut.kind, "error");
+  assert.match(cut.reason, /damaged|cut short/);
+  const bad = await readFragmentAsync("#z=2.AAAA", SECTIONS);
+  assert.equal(bad.kind, "error");
+  const marks = await readFragmentAsync(`#z=1.${short.slice(4)}`, SECTIONS);
+  assert.match(marks.reason, /version marks disagree/);
+  // a few hundred characters that would inflate past MAX_JSON_BYTES: stopped, not expanded
+  const bomb = new TextEncoder().encode(`{"v":2,"x":"${" ".repeat(MAX_JSON_BYTES * 2)}"}`);
+  const packed = new Uint8Array(await new Response(new Blob([bomb]).stream()
+    .pipeThrough(new CompressionStream("deflate-raw"))).arrayBuffer());
+  assert.ok(packed.length < 2000);
+  const boom = await readFragmentAsync(`#z=2.${toBase64Url(packed)}`, SECTIONS);
+  assert.equal(boom.kind, "error");
+  assert.match(boom.reason, /more than/);
 });
