@@ -18,10 +18,17 @@ Usage:  .venv/bin/python build_scripts/bench.py [--repeats N] [--chromium PATH]
   ``booted_from_snapshot`` and ``boot_stages_median_ms``: how the worker started and when
   (page clock) it had the manifest, the snapshot, the runtime, the wheel and was ready.
   Returning visit (``warm_*``): a new tab in a context whose service worker holds the site.
+  ``page_headline_ms`` / ``preset_link_headline_ms``: navigation to the water's headline
+  drawn (pH, alkalinity, indices, tables: the first part of its answer), and
+  ``page_water_plotted_ms``: to the water's plots drawn (#water-section[data-drawn]), each with
+  its ratio over the bare boot.
 - ``warm_recompute_ms``: median of 20 pH edits, from the keystroke to the redrawn result.
 - ``water6_recompute_ms``: median of 20 edits of a six-system water in the water section, from
-  the input event to the drawn result (with the 120 ms debounce); ``water6_core_call_ms`` and
-  ``water6_draw_ms`` split the work after the debounce into the core round trip and the redraw.
+  the input event to the drawn result, plots included (``water6_headline_ms``: to the headline and
+  tables drawn, the first part of the one request; ``_to_frame``: to the next animation frame
+  after it); ``water6_core_call_ms`` and ``water6_draw_ms`` split the work into the core round
+  trip and the redraw (``water6_core_headline_ms`` / ``water6_draw_headline_ms`` for the first
+  part); ``water6_worker_calls_per_edit``: requests sent to the worker per edit.
 
 Needs a built dist/ (python build_scripts/build.py) and /usr/bin/chromium.
 """
@@ -76,12 +83,24 @@ def serve(folder: Path):
     return server, f"http://{host}:{port}/"
 
 
+# The water's headline has been drawn (water.js marks it after the first part of its answer).
+HEADLINE_JS = "() => performance.getEntriesByName('water:headline').length > 0"
+
 BOOT_INFO = """() => import('./py.js').then((m) => m.sharedPython().boot).then((b) => {
   const offset = b.origin - performance.timeOrigin;
   const start = performance.getEntriesByName('py:worker-start')[0];
   const steps = Object.fromEntries(Object.entries(b.ms).map(([k, v]) => [k, v + offset]));
   return {snapshot: b.snapshot, worker_created: start ? start.startTime : null, worker_started: offset, ...steps};
 })"""
+
+
+def show_job(page, name: str) -> None:
+    """Bring a job of the workbench into view (site/workbench.js), if the page has a switcher."""
+    tab = page.locator(f"#job-tab-{name}")
+    if tab.count():
+        tab.click()
+        page.wait_for_function("(n) => document.body.dataset.job === n", arg=name, timeout=60_000)
+    page.wait_for_function("() => document.body.dataset.pending === '0'", timeout=120_000)
 
 
 def first_preset(dist: Path) -> str | None:
@@ -115,18 +134,26 @@ def browser_timings(chromium: str, runs: int) -> dict:
         page_ms, drawn_ms, bare_ms, preset_ms, preset_drawn_ms, boots = [], [], [], [], [], []
         warm_ms, warm_drawn_ms, warm_bare_ms, warm_boots = [], [], [], []
         recompute_ms = []
+        headline_ms, plotted_ms, preset_headline_ms = [], [], []
         try:
             with sync_playwright() as p:
                 browser = p.chromium.launch(executable_path=chromium, args=["--disable-gpu"])
 
-                def time_to_ready(url: str, context=None, drawn: list | None = None, first="body[data-drawn]"):
+                def time_to_ready(url: str, context=None, drawn: list | None = None, first="body[data-drawn]",
+                                  headline: list | None = None, plotted: list | None = None):
                     context = context or browser.new_context(service_workers="block")
                     page = context.new_page()
                     t0 = time.perf_counter()
                     page.goto(url)
+                    if headline is not None:  # the water's headline (performance mark "water:headline")
+                        page.wait_for_function(HEADLINE_JS, timeout=120_000, polling="raf")
+                        headline.append((time.perf_counter() - t0) * 1e3)
                     if drawn is not None:  # the first drawn result (``first``)
                         page.wait_for_selector(first, state="attached", timeout=120_000)
                         drawn.append((time.perf_counter() - t0) * 1e3)
+                    if plotted is not None:  # the water's plots
+                        page.wait_for_selector("#water-section[data-drawn]", state="attached", timeout=120_000)
+                        plotted.append((time.perf_counter() - t0) * 1e3)
                     page.wait_for_selector("body[data-ready]", state="attached", timeout=120_000)
                     elapsed = (time.perf_counter() - t0) * 1e3
                     return elapsed, context, page
@@ -138,13 +165,15 @@ def browser_timings(chromium: str, runs: int) -> dict:
                     ms, context, _page = time_to_ready(bare_url)
                     bare_ms.append(ms)
                     context.close()
-                    ms, context, page = time_to_ready(site_url, drawn=drawn_ms)
+                    ms, context, page = time_to_ready(site_url, drawn=drawn_ms, headline=headline_ms,
+                                                      plotted=plotted_ms)
                     page_ms.append(ms)
                     boots.append(page.evaluate(BOOT_INFO))
                     context.close()
                     if preset:
                         ms, context, _page = time_to_ready(f"{site_url}#preset={preset}", drawn=preset_drawn_ms,
-                                                           first="#water-section[data-drawn]")
+                                                           first="#water-section[data-drawn]",
+                                                           headline=preset_headline_ms)
                         preset_ms.append(ms)
                         context.close()
 
@@ -172,6 +201,7 @@ def browser_timings(chromium: str, runs: int) -> dict:
                 site_context.close()
 
                 _, context, page = time_to_ready(site_url)
+                show_job(page, "explorer")  # the one-acid explorer is one job of the workbench
                 for i in range(20):
                     before = int(page.get_attribute("body", "data-drawn"))
                     text = f"{5 + 0.1 * (i + 1):.1f}"
@@ -179,6 +209,7 @@ def browser_timings(chromium: str, runs: int) -> dict:
                     page.fill("#ph-input", text)
                     page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=before)
                     recompute_ms.append((time.perf_counter() - t0) * 1e3)
+                show_job(page, "water")
                 water_figures = water_recompute_timings(page)
                 context.close()
                 browser.close()
@@ -212,7 +243,13 @@ def browser_timings(chromium: str, runs: int) -> dict:
                      "return visit uses the HTTP cache; ratio over the first-visit bare boot",
         "warm_boot_stages_median_ms": {k: _median([b.get(k) for b in warm_boots]) for k in stages},
         "warm_recompute_ms": round(statistics.median(recompute_ms), 1),
-        "warm_recompute_note": "includes the page's input debounce (120 ms) and the plot/table redraw",
+        "warm_recompute_note": "one-acid explorer: from the keystroke to the redrawn table and plots",
+        "page_headline_ms": _median(headline_ms),
+        "page_headline_runs_ms": _spread(headline_ms),
+        "page_headline_over_bare_boot": round(_median(headline_ms) / bare_med, 3) if headline_ms else None,
+        "page_water_plotted_ms": _median(plotted_ms),
+        "page_water_plotted_runs_ms": _spread(plotted_ms),
+        "page_water_plotted_over_bare_boot": round(_median(plotted_ms) / bare_med, 3) if plotted_ms else None,
         **water_figures,
     }
     if preset_ms:
@@ -224,6 +261,9 @@ def browser_timings(chromium: str, runs: int) -> dict:
             "preset_link_first_drawn_ms": _median(preset_drawn_ms),
             "preset_link_first_drawn_runs_ms": _spread(preset_drawn_ms),
             "preset_link_first_drawn_over_bare_boot": round(_median(preset_drawn_ms) / bare_med, 3),
+            "preset_link_headline_ms": _median(preset_headline_ms),
+            "preset_link_headline_over_bare_boot": round(_median(preset_headline_ms) / bare_med, 3)
+            if preset_headline_ms else None,
             "preset_link_note": f"first visit of #preset={preset}: navigation to body[data-ready] (every section "
                                 "computed), and to the example's water drawn (#water-section[data-drawn])",
         })
@@ -245,23 +285,36 @@ WATER_6 = {
 }
 
 # One edit of the first system's total, timed inside the page: from the input event to the
-# section's data-drawn change (the result drawn), and to the next animation frame after it.
+# headline drawn (performance mark "water:headline", the first part of the answer) and to the
+# section's data-drawn change (the plots drawn), each also to the next animation frame after it.
 WATER_EDIT_JS = """async (text) => {
   const section = document.querySelector('#water-section');
   const input = document.querySelector('#water-system-0-total');
   const before = section.dataset.drawn;
+  const marks = performance.getEntriesByName('water:headline').length;
+  const frame = () => new Promise((resolve) => requestAnimationFrame(() => resolve(performance.now())));
+  const headline = new Promise((resolve) => {
+    const watch = new PerformanceObserver(() => {
+      if (performance.getEntriesByName('water:headline').length > marks) {
+        watch.disconnect();
+        resolve(performance.now());
+      }
+    });
+    watch.observe({type: 'mark', buffered: false});
+  }).then(async (t) => [t, await frame()]);
   const drawn = new Promise((resolve) => {
     const watch = new MutationObserver(() => {
       if (section.dataset.drawn !== before) { watch.disconnect(); resolve(performance.now()); }
     });
     watch.observe(section, {attributes: true, attributeFilter: ['data-drawn']});
-  });
+  }).then(async (t) => [t, await frame()]);
+  const calls = window.__acidscapeCalls ? window.__acidscapeCalls.total : null;
   const t0 = performance.now();
   input.value = text;
   input.dispatchEvent(new Event('input', {bubbles: true}));
-  const t1 = await drawn;
-  await new Promise((resolve) => requestAnimationFrame(() => resolve()));
-  return [t1 - t0, performance.now() - t0];
+  const [[h1, h2], [d1, d2]] = await Promise.all([headline, drawn]);
+  const sent = window.__acidscapeCalls ? window.__acidscapeCalls.total - calls : null;
+  return [d1 - t0, d2 - t0, h1 - t0, h2 - t0, sent];
 }"""
 
 
@@ -269,7 +322,7 @@ def water_recompute_timings(page, edits: int = 20) -> dict:
     """Median time from an edit of a six-system water to its drawn result [ms].
 
     The page must be booted. Between edits the page is left idle (1.5 s) so the sections
-    that follow the water (treatment) finish their own work first.
+    that follow the water finish their own work first.
     """
     page.evaluate(
         "(sc) => import('./state.js').then((m) => m.applyState({v: 1, water: {scenario: sc, display: {unit: 'mmol/L'}}}))",
@@ -277,23 +330,34 @@ def water_recompute_timings(page, edits: int = 20) -> dict:
     )
     page.wait_for_timeout(2000)
     page.evaluate("() => performance.clearMeasures()")
-    drawn, framed = [], []
+    drawn, framed, headline, headline_framed, calls = [], [], [], [], []
     for i in range(edits):
-        t_drawn, t_frame = page.evaluate(WATER_EDIT_JS, f"{2 + 0.05 * (i + 1):.2f}")
+        t_drawn, t_frame, t_head, t_head_frame, sent = page.evaluate(WATER_EDIT_JS, f"{2 + 0.05 * (i + 1):.2f}")
         drawn.append(t_drawn)
         framed.append(t_frame)
+        headline.append(t_head)
+        headline_framed.append(t_head_frame)
+        calls.append(sent)
         page.wait_for_timeout(1500)
-    split = page.evaluate(
-        "() => ['water:core', 'water:draw'].map((n) => performance.getEntriesByName(n).map((e) => e.duration))"
-    )
+    names = ["water:core", "water:draw", "water:core-curves", "water:draw-headline"]
+    split = page.evaluate("(names) => names.map((n) => performance.getEntriesByName(n).map((e) => e.duration))", names)
+    med = lambda values: round(statistics.median(values[-edits:]), 1) if values else None  # noqa: E731
     return {
-        "water6_core_call_ms": round(statistics.median(split[0][-edits:]), 1),
-        "water6_draw_ms": round(statistics.median(split[1][-edits:]), 1),
+        "water6_core_call_ms": med(split[2]),
+        "water6_draw_ms": med(split[1]),
+        "water6_core_headline_ms": med(split[0]),
+        "water6_draw_headline_ms": med(split[3]),
         "water6_recompute_ms": round(statistics.median(drawn), 1),
         "water6_recompute_to_frame_ms": round(statistics.median(framed), 1),
         "water6_recompute_runs_ms": [round(v, 1) for v in drawn],
-        "water6_recompute_note": "6 systems + 3 ions, Davies, 281-point curves; from the input event to "
-                                 "the drawn result (table, both plots), including the 120 ms input debounce",
+        "water6_headline_ms": round(statistics.median(headline), 1),
+        "water6_headline_to_frame_ms": round(statistics.median(headline_framed), 1),
+        "water6_headline_runs_ms": [round(v, 1) for v in headline],
+        "water6_worker_calls_per_edit": calls,
+        "water6_recompute_note": "6 systems + 3 ions, Davies, 281-point curves, the water job in view; from the "
+                                 "input event to the drawn result, plots included (water6_headline_ms: to the "
+                                 "headline and tables, the first part of the one request); no input debounce "
+                                 "(the edit is computed at the next frame)",
     }
 
 

@@ -9,7 +9,6 @@ import { parseInteger, parseNumber, parseNumberList } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { computation } from "./section.js";
 
-const DEBOUNCE_MS = 120;
 // What an input goes back to when a link or file holds a value the page cannot use.
 const DEFAULTS = { "pka-input": "2.15, 7.20, 12.35", "charge-input": "0", "total-input": "0.001", "ph-input": "7" };
 const INPUT_WORD = {
@@ -173,7 +172,7 @@ export function mountDistribution({ py, view, plots, status, systems }) {
   view.bindChange((what) => {
     if (what === "acid") fillFromLibrary(view.read().acid);
     if (what === "values" && view.read().acid !== "custom") view.setAcid("custom");
-    block.schedule(what === "acid" ? 0 : DEBOUNCE_MS);
+    block.schedule(); // at the next frame: no fixed delay; changes of one frame share a request
     notifyInputChange("distribution");
   });
 

@@ -2,21 +2,30 @@
 // result on screen. No DOM here: the section's view does the drawing through the hooks.
 //
 //   const block = computation({
-//     name: "water",
 //     read()             -> {params, errors}    errors: input id -> message; params null = nothing to ask
 //     call(params)       -> Promise<result>     the core request (py.call)
+//       or stream(params, onPart) -> Promise    a request answered in parts (py.stream): the first
+//                                              part is drawn by render(), each later one by more()
 //     render(result, params)                   draw it; the result belongs to the inputs on screen
+//     more(part, params)                       draw a later part (stream only): curves after the headline
 //     invalid(errors)                          inputs cannot be used: show the messages, mark the
 //                                              result on screen as belonging to the last valid inputs
 //     failed(error, params)                    the core refused: show its message (CoreError.field)
 //     busy(flag)                               a request is on its way
+//     active()           -> boolean            false while nobody can see the block (a hidden job):
+//                                              it reads and checks its inputs but asks the core
+//                                              nothing; resume() computes what was put off
 //   });
-//   block.schedule(delayMs)   debounced run (typing)
-//   block.run()               run now -> "drawn" | "invalid" | "failed" | "idle" | "superseded"
+//   block.schedule()          run at the next frame (typing): every change made before it is
+//                             drawn in one request, and no fixed delay is added
+//   block.run()               run now -> "drawn" | "invalid" | "failed" | "idle" | "superseded" | "deferred"
 //
 // Latest only: while a request is with the core, newer ones wait; only the newest waiting one
 // is sent when the core is free (the ones in between are dropped before they are computed),
-// and an answer that is no longer the newest is never rendered.
+// and an answer that is no longer the newest is never rendered. A stream frees the core for the
+// next request as soon as its first part is in; its later parts are drawn only while it is the
+// newest (the worker stops computing them when a newer request arrives). The same inputs are
+// not asked twice: a run whose inputs equal the ones on screen (or on their way) draws nothing new.
 
 const SUPERSEDED = Symbol("superseded");
 /** Core error types that say the question has no answer, not that a value is unusable. */
@@ -58,10 +67,28 @@ export function holdPending() {
 /**
  * A caller that sends one request at a time and keeps only the newest waiting one.
  *
- * @param {(params: any) => Promise<any>} send  the request
+ * @param {(params: any, isNewest: () => boolean) => Promise<any>} send  the request;
+ *        isNewest() tells whether it is still the newest (no newer request or cancel since)
  * @returns {{request: (params: any) => Promise<any>, cancel: () => void}}  request resolves with
  *          the answer, or with SUPERSEDED when a newer request (or cancel) overtook it
  */
+/**
+ * The next frame of the page, or soon when there are no frames (Node, a hidden tab): whichever
+ * comes first of requestAnimationFrame and a short timer, so a tab in the background still
+ * settles.
+ *
+ * @param {() => void} fn
+ */
+export function nextFrame(fn) {
+  let done = false;
+  const once = () => {
+    if (!done) fn();
+    done = true;
+  };
+  if (typeof requestAnimationFrame === "function") requestAnimationFrame(once);
+  setTimeout(once, 50);
+}
+
 export function latestOnly(send) {
   let newest = 0;
   let running = false;
@@ -80,7 +107,7 @@ export function latestOnly(send) {
     };
     let sent;
     try {
-      sent = Promise.resolve(send(job.params));
+      sent = Promise.resolve(send(job.params, () => job.ticket === newest));
     } catch (error) {
       sent = Promise.reject(error);
     }
@@ -114,36 +141,107 @@ export function latestOnly(send) {
  *
  * @param {object} hooks
  * @param {() => {params: any, errors?: Record<string, string>}} hooks.read  the inputs
- * @param {(params: any) => Promise<any>} hooks.call  the core request
- * @param {(result: any, params: any) => void} hooks.render  draw a result
+ * @param {(params: any) => Promise<any>} [hooks.call]  the core request
+ * @param {(params: any, onPart: (part: any) => void) => Promise<any>} [hooks.stream]  the core
+ *        request answered in parts (instead of call): settles after the last part
+ * @param {(result: any, params: any) => void} hooks.render  draw a result (a stream's first part)
+ * @param {(part: any, params: any) => void} [hooks.more]  draw a stream's later part
  * @param {(error: Error) => Record<string, string>} [hooks.explain]  a failed request's messages,
  *        keyed by input id ("block" for the block as a whole)
  * @param {(messages: Record<string, string>, kind: "invalid"|"failed") => void} [hooks.show]
  *        show messages instead of a result: "invalid" = inputs that cannot be read,
  *        "failed" = the core refused them
  * @param {(flag: boolean) => void} [hooks.busy]  a request is on its way
- * @returns {{run: () => Promise<string>, schedule: (delayMs?: number) => void, cancel: () => void,
+ * @param {() => boolean} [hooks.active]  false while the block need not compute (hidden)
+ * @param {(fn: () => void) => void} [hooks.frame]  when schedule() runs (default nextFrame)
+ * @returns {{run: () => Promise<string>, schedule: () => void, cancel: () => void,
+ *            resume: () => Promise<string>,
  *            settle: (reset: (problems: Record<string, string>) => string[]) => Promise<string[]>}}
  */
 export function computation(hooks) {
-  const { read, call, render } = hooks;
+  const { read, render } = hooks;
   const explain = hooks.explain ?? ((error) => ({ block: String(error?.message || error) }));
   const show = hooks.show ?? (() => {});
   const busy = hooks.busy ?? (() => {});
-  const caller = latestOnly((params) => call(params));
-  let timer = null;
-  let releaseTimer = null;
+  const active = hooks.active ?? (() => true);
+  const frame = hooks.frame ?? nextFrame;
+  const more = hooks.more ?? (() => {});
+  const caller = latestOnly((params, isNewest) => (hooks.stream ? streamed(params, isNewest) : hooks.call(params)));
+  let scheduled = false;
+  let releaseScheduled = null;
   let inFlight = 0;
   let problems = {};
   let resettable = false; // whether settle() may put the inputs of `problems` back to defaults
+  let deferred = false; // a run was put off while the block was inactive
+  // The inputs of the result on screen (JSON) and of the newest run on its way, so the same
+  // question is not asked twice (e.g. a section computed by a solve of the water it follows and
+  // again when a link is settled).
+  let drawnKey = null;
+  let asked = null; // {key, outcome: Promise<string>}
+
+  /**
+   * A stream: resolves with {first, later} at the first part; the later parts are drawn by
+   * more() once the first is drawn (ask() calls later.drawn()), and only while it is the newest.
+   * later.finished resolves when the stream is over: "drawn" (every part drawn) or "superseded".
+   */
+  function streamed(params, isNewest) {
+    const release = holdPending(); // until the last part is in (or the rest is dropped)
+    const waiting = [];
+    let finish;
+    const later = {
+      ready: false,
+      finished: new Promise((resolve) => {
+        finish = resolve;
+      }),
+      drawn() {
+        later.ready = true;
+        for (const part of waiting.splice(0)) if (isNewest()) more(part, params);
+      },
+    };
+    return new Promise((resolve, reject) => {
+      let first = true;
+      const onPart = (part) => {
+        if (first) {
+          first = false;
+          resolve({ first: part, later });
+        } else if (!isNewest()) {
+          // a newer request took over: this part belongs to inputs no longer on screen
+        } else if (later.ready) {
+          more(part, params);
+        } else {
+          waiting.push(part);
+        }
+      };
+      Promise.resolve(hooks.stream(params, onPart)).then(
+        (end) => {
+          release();
+          if (first) reject(new Error("the core sent no answer"));
+          // after the waiting parts are drawn (later.drawn() runs before this in ask())
+          Promise.resolve().then(() => finish(end !== "dropped" && isNewest() ? "drawn" : "superseded"));
+        },
+        (error) => {
+          release();
+          if (first) reject(error);
+          else if (isNewest()) console.error("a later part of the answer failed:", error);
+          finish("superseded");
+        },
+      );
+    });
+  }
+
+  function forget() {
+    drawnKey = null;
+    asked = null;
+  }
 
   async function run() {
-    clearTimeout(timer);
-    releaseTimer?.();
-    releaseTimer = null;
+    scheduled = false;
+    releaseScheduled?.();
+    releaseScheduled = null;
     const { params, errors } = read();
     if (errors && Object.keys(errors).length) {
       caller.cancel(); // an answer for older inputs must not be drawn now
+      forget();
       problems = errors;
       resettable = true;
       show(errors, "invalid");
@@ -151,22 +249,47 @@ export function computation(hooks) {
     }
     if (params === null || params === undefined) {
       caller.cancel();
+      forget();
       problems = {};
       return "idle";
     }
+    if (!active()) {
+      deferred = true; // computed when shown (resume)
+      return "deferred";
+    }
+    deferred = false;
+    const key = JSON.stringify(params);
+    if (asked && asked.key === key) return asked.outcome; // the same question is on its way
+    if (!asked && drawnKey === key) return "drawn"; // and already answered on screen
+    const outcome = ask(params);
+    asked = { key, outcome };
+    outcome.finally(() => {
+      if (asked?.outcome === outcome) asked = null;
+    });
+    return outcome;
+  }
+
+  async function ask(params) {
     const release = holdPending();
+    const key = JSON.stringify(params);
     inFlight += 1;
     busy(true);
     try {
-      const result = await caller.request(params);
-      if (result === SUPERSEDED) return "superseded";
+      const answer = await caller.request(params);
+      if (answer === SUPERSEDED) return "superseded";
       problems = {};
-      render(result, params);
-      return "drawn";
+      render(hooks.stream ? answer.first : answer, params);
+      drawnKey = key;
+      if (!hooks.stream) return "drawn";
+      // A stream's run is over when its last part is drawn (a newer edit need not wait for
+      // that: the core took it as soon as the first part was in).
+      answer.later.drawn();
+      return await answer.later.finished;
     } catch (error) {
       // A refusal of the core (CoreError) is the user's to fix; anything else is a bug of the
       // page: it is logged as an error (the e2e tests fail on it) and shown like a refusal.
       if (error?.name !== "CoreError") console.error(error);
+      drawnKey = null;
       problems = explain(error);
       // A value out of range or of the wrong kind can be dropped; a question the chemistry
       // cannot answer (a dose that cannot reach its target) is the user's to change.
@@ -204,17 +327,25 @@ export function computation(hooks) {
   return {
     run,
     settle,
-    schedule(delayMs = 120) {
-      clearTimeout(timer);
-      if (!releaseTimer) releaseTimer = holdPending();
-      timer = setTimeout(() => {
+    /** Run at the next frame; changes made before it share one request. */
+    schedule() {
+      if (!releaseScheduled) releaseScheduled = holdPending();
+      if (scheduled) return;
+      scheduled = true;
+      frame(() => {
+        if (!scheduled) return; // run() or cancel() came first
         run().catch((error) => console.error(error));
-      }, delayMs);
+      });
+    },
+    /** Compute what was put off while the block was inactive (call when it is shown). */
+    resume() {
+      return deferred ? run() : Promise.resolve("idle");
     },
     cancel() {
-      clearTimeout(timer);
-      releaseTimer?.();
-      releaseTimer = null;
+      scheduled = false;
+      releaseScheduled?.();
+      releaseScheduled = null;
+      forget();
       caller.cancel();
     },
   };

@@ -15,8 +15,12 @@ import { FLOW_UNITS } from "./treatment-view.js";
 import { parseNumber, stateNumber } from "./parse.js";
 import { computation } from "./section.js";
 import { totalAlkalinity } from "./water.js";
+import { isJobShown, onJobShown } from "./workbench.js";
 
-const DEBOUNCE_MS = 120;
+/** The workbench job each block belongs to: a block computes only while its job is shown. */
+const JOB_OF = { titration: "titrate", buffer: "titrate", dose: "treat" };
+/** Blocks that have drawn a result at least once (so a deferred one has figures to mark). */
+const drawnBlocks = new Set();
 const BUFFER_RANGE = { pH_min: 2, pH_max: 12, points: 241 };
 
 // Core error fields -> input ids, per block.
@@ -171,6 +175,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
 
   /** Mark a block current, or stale while the water above cannot be used. */
   function settled(block) {
+    drawnBlocks.add(block);
     if (waterNote) view.setResultState(block, "stale", waterNote);
     else view.setResultState(block, "current");
   }
@@ -264,6 +269,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       return collectTitration();
     },
     call: (params) => py.call("titrate", params),
+    active: () => isJobShown(JOB_OF.titration),
     render(result) {
       view.showErrors("titration", {});
       lastTitration = result;
@@ -293,6 +299,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
   const buffer = computation({
     read: collectCapacity,
     call: (params) => py.call("buffer", params),
+    active: () => isJobShown(JOB_OF.buffer),
     render(r) {
       view.showErrors("buffer", {});
       plots.buffer.setCurve(r.pH, r.beta_mmol_per_L_per_pH, r.water_pH);
@@ -401,6 +408,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       return collectDose();
     },
     call: (params) => py.call("dose", params),
+    active: () => isJobShown(JOB_OF.dose),
     render(r) {
       view.showErrors("dose", {});
       view.renderDose(withPageAlkalinity(r));
@@ -428,8 +436,20 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       `${fixed(result.temperature_C, 1)} °C.`;
   }
 
+  // A block whose job is hidden asks nothing (one request per edit of the water while the
+  // water is the job in view); its figures say they are for an earlier water until it is shown.
+  const DEFERRED_NOTE = "Not updated yet: these figures are for an earlier water; they are worked out when this job is shown.";
+
   async function refresh() {
-    await Promise.all([titration.run(), buffer.run(), dose.run()]);
+    await Promise.all(Object.entries(blocks).map(async ([name, block]) => {
+      if ((await block.run()) === "deferred" && drawnBlocks.has(name)) view.setResultState(name, "stale", DEFERRED_NOTE);
+    }));
+  }
+
+  for (const job of new Set(Object.values(JOB_OF))) {
+    onJobShown(job, () => {
+      for (const [name, block] of Object.entries(blocks)) if (JOB_OF[name] === job) block.resume();
+    });
   }
 
   water.onSolved((scenario, result) => {
@@ -464,8 +484,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       drawTitration(lastTitration); // same curve, other unit: no need to ask the core again
       return;
     }
-    const immediate = view.isChoice(id);
-    blocks[block].schedule(immediate ? 0 : DEBOUNCE_MS);
+    blocks[block].schedule(); // at the next frame, for choices and typing alike
   });
 
   /** Put the inputs named in `problems` back to their defaults (see section.js settle). */

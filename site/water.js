@@ -18,7 +18,6 @@ import { parseInteger, parseNumber, parseNumberList, parseTemperature } from "./
 import { computation } from "./section.js";
 import { ION_WORDS } from "./share.js";
 
-const DEBOUNCE_MS = 120;
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
 const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
 /** Units of the species table: molar, mass of the species, or mass as each system's basis. */
@@ -302,7 +301,7 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
   }
 
   function drawFraction() {
-    if (!last) return;
+    if (!last?.curves) return;
     const { curves, result } = last;
     const index = Number(view.readConditions().plotSystem) || 0;
     const system = curves.systems[index];
@@ -316,6 +315,7 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
   }
 
   function drawLogc() {
+    if (!last?.curves) return;
     const { curves, result } = last;
     const names = systemNames(result);
     const formulas = curves.log_concentration.map((line) => prettyFormula(line.name));
@@ -423,15 +423,31 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
     view.renderResult(last.result, { unit, activityUnit, rows, ...summary }, palette, systemNames(last.result));
   }
 
-  function draw(out, scenario) {
-    const previous = last;
-    last = { ...out, scenario };
-    const chosen = Number(view.readConditions().plotSystem) || 0;
-    const sameSystems =
-      previous && previous.curves.systems.map((s) => s.id).join() === out.curves.systems.map((s) => s.id).join();
-    view.setPlotSystems(out.curves.systems, wantedPlotSystem ?? (sameSystems ? chosen : 0));
-    wantedPlotSystem = null;
+  /** The headline and tables of a solved water (its curves follow in drawCurves). */
+  function draw(result, scenario) {
+    // The curves of the water before stay until this water's arrive (the table's colour
+    // slots come from them while the systems are the same).
+    const keep = last?.curves && sameSystems(last.curves, result) ? last.curves : null;
+    last = { result, curves: keep, scenario };
     drawTable();
+  }
+
+  function sameSystems(curves, result) {
+    return curves.systems.map((s) => s.id).join() === result.systems.map((s) => s.id).join();
+  }
+
+  /** The curves of the water drawn last (the second part of its answer). */
+  function drawCurves(curves) {
+    if (!last) return;
+    const previous = last.curves;
+    last = { ...last, curves };
+    const chosen = Number(view.readConditions().plotSystem) || 0;
+    const same = previous && previous.systems.map((s) => s.id).join() === curves.systems.map((s) => s.id).join();
+    view.setPlotSystems(curves.systems, wantedPlotSystem ?? (same ? chosen : 0));
+    wantedPlotSystem = null;
+    // The table's colour slots come from the curves' lines: draw it again when they changed.
+    const lines = (c) => (c?.log_concentration || []).map((l) => `${l.system}|${l.name}`).join();
+    if (lines(previous) !== lines(curves)) drawTable();
     drawFraction();
     drawLogc();
     view.markDrawn();
@@ -456,20 +472,24 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
       placing = { systemRow };
       return { params: scenario, errors };
     },
-    call: (scenario) => {
+    // One request per edit, answered in parts (dispatch.stages "water_view"): the solved water
+    // (headline, tables) first, its curves after; curves of an edit overtaken by a newer one
+    // are not computed.
+    stream: (scenario, onPart) => {
       const t0 = performance.now();
-      return py.call("water", { ...scenario, curve: CURVE }).then((out) => {
-        performance.measure("water:core", { start: t0, end: performance.now() });
-        return out;
+      return py.stream("water_view", { ...scenario, curve: CURVE }, (part, index) => {
+        performance.measure(index ? "water:core-curves" : "water:core", { start: t0, end: performance.now() });
+        onPart(part);
       });
     },
     render(out, scenario) {
       const t1 = performance.now();
       view.showErrors({});
-      draw(out, scenario);
+      draw(out.result, scenario);
       view.setResultState("current");
-      // Timings for build_scripts/bench.py: the table and plots.
-      performance.measure("water:draw", { start: t1, end: performance.now() });
+      // Timings for build_scripts/bench.py: the headline and tables, then the plots.
+      performance.measure("water:draw-headline", { start: t1, end: performance.now() });
+      performance.mark("water:headline");
       lastScenario = JSON.parse(JSON.stringify(scenario));
       for (const cb of solvedListeners) {
         try {
@@ -478,6 +498,11 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
           console.error("a listener of the water section failed:", error);
         }
       }
+    },
+    more(out) {
+      const t1 = performance.now();
+      drawCurves(out.curves);
+      performance.measure("water:draw", { start: t1, end: performance.now() });
     },
     explain(error) {
       if (!(error instanceof CoreError)) return { "water-error": String(error?.message || error) };
@@ -531,7 +556,7 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
       return;
     }
     notifyInputChange("water");
-    block.schedule(what === "value" ? DEBOUNCE_MS : 0);
+    block.schedule(); // at the next frame: no fixed delay; keystrokes of one frame share a request
   });
 
   // -- state (share links, presets, saved files) -------------------------------------------

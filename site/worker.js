@@ -198,10 +198,12 @@ async function boot() {
   progress("import", 0.95, "Importing the Acidscape core…");
   const dispatch = pyodide.pyimport("acidscape.boundary.dispatch");
   const handle = dispatch.handle; // kept for the worker's lifetime, like the module proxy
+  const stages = dispatch.stages; // answers in parts (see answerInParts below)
   const version = JSON.parse(handle("version", "{}"));
   mark("ready");
   return {
     handle,
+    stages,
     versions: { ...(manifest.versions || {}), ...(version.ok ? version.result : {}), protocol: PROTOCOL_VERSION },
     boot: { snapshot: fromSnapshot, origin: performance.timeOrigin, ms: timings },
   };
@@ -227,23 +229,97 @@ const ready = withTimeout(boot(), BOOT_TIMEOUT_MS).then(
 );
 ready.catch(() => {}); // reported above; keep the console free of an unhandled rejection
 
-self.onmessage = async (event) => {
-  const { v, id, method, params } = event.data || {};
-  if (v !== PROTOCOL_VERSION) {
-    post({ id, ok: false, error: { type: "ProtocolError", message: `unsupported protocol version ${v}`, field: null } });
-    return;
-  }
-  let core;
-  try {
-    core = await ready;
-  } catch (error) {
-    post({ id, ok: false, error: { type: "BootError", message: String(error?.message || error), field: null } });
-    return;
-  }
+// Requests are answered one at a time, in the order they came. A request for parts (py.js
+// stream) pauses where the core's generator pauses (acidscape.boundary.dispatch.stages): there
+// the worker lets the messages that have arrived in; when a newer request for the same method
+// is among them, it stops and answers "dropped" instead of computing the rest, and requests of
+// one answer that are waiting are answered first (the rest of a stream, e.g. curves, should not
+// hold up another section's figures).
+const queue = [];
+let working = false;
+
+/** Let messages that have arrived be queued (a task boundary). */
+const letMessagesIn = () => new Promise((resolve) => setTimeout(resolve, 0));
+
+/** A request of one answer. */
+function answer(core, { id, method, params }) {
   try {
     const reply = JSON.parse(core.handle(String(method), JSON.stringify(params ?? {})));
     post({ id, ok: reply.ok, result: reply.result, error: reply.error });
   } catch (error) {
     post({ id, ok: false, error: { type: "WorkerError", message: String(error?.message || error), field: null } });
   }
+}
+
+async function answerInParts(core, { id, method, params }) {
+  const parts = core.stages(String(method), JSON.stringify(params ?? {}));
+  try {
+    let sent = 0;
+    for (;;) {
+      const step = parts.next();
+      if (step.done) break;
+      if (typeof step.value === "string") {
+        const reply = JSON.parse(step.value);
+        if (!reply.ok) {
+          post({ id, ok: false, error: reply.error });
+          return;
+        }
+        post({ id, ok: true, part: sent, result: reply.result });
+        sent += 1;
+      } else if (sent) {
+        await letMessagesIn();
+        if (queue.some((next) => next.parts && next.method === method)) {
+          post({ id, ok: true, dropped: true });
+          return;
+        }
+        for (let i = 0; i < queue.length; ) {
+          if (queue[i].parts) i += 1;
+          else answer(core, queue.splice(i, 1)[0]);
+        }
+      }
+    }
+    post({ id, ok: true, done: true });
+  } finally {
+    parts.destroy?.();
+  }
+}
+
+async function work() {
+  if (working) return;
+  working = true;
+  try {
+    let core;
+    try {
+      core = await ready;
+    } catch (error) {
+      for (const { id } of queue.splice(0)) {
+        post({ id, ok: false, error: { type: "BootError", message: String(error?.message || error), field: null } });
+      }
+      return;
+    }
+    while (queue.length) {
+      const request = queue.shift();
+      if (request.parts) {
+        try {
+          await answerInParts(core, request);
+        } catch (error) {
+          post({ id: request.id, ok: false, error: { type: "WorkerError", message: String(error?.message || error), field: null } });
+        }
+      } else {
+        answer(core, request);
+      }
+    }
+  } finally {
+    working = false;
+  }
+}
+
+self.onmessage = (event) => {
+  const request = event.data || {};
+  if (request.v !== PROTOCOL_VERSION) {
+    post({ id: request.id, ok: false, error: { type: "ProtocolError", message: `unsupported protocol version ${request.v}`, field: null } });
+    return;
+  }
+  queue.push(request);
+  work();
 };

@@ -113,3 +113,196 @@ test("settle leaves a question the chemistry cannot answer to the user", async (
   assert.deepEqual(notes, []);
   assert.equal(resets, 0);
 });
+
+// -- scheduling: one request per frame, latest only, the same question not asked twice ------------
+
+/** A page whose frames run when the test says so. */
+function frames() {
+  const queue = [];
+  return {
+    frame: (fn) => queue.push(fn),
+    run: () => queue.splice(0).forEach((fn) => fn()),
+    get size() {
+      return queue.length;
+    },
+  };
+}
+
+const tick = () => new Promise((resolve) => setTimeout(resolve, 0));
+
+test("edits made before a frame are computed in one request at that frame (no fixed delay)", async () => {
+  const page = frames();
+  const sent = [];
+  let value = "1";
+  const drawn = [];
+  const block = computation({
+    read: () => ({ params: { total: value }, errors: {} }),
+    call: async (p) => {
+      sent.push(p.total);
+      return `for ${p.total}`;
+    },
+    render: (result) => drawn.push(result),
+    frame: page.frame,
+  });
+  for (const key of "1234567890") {
+    value += key;
+    block.schedule();
+  }
+  assert.equal(page.size, 1); // one frame asked for, whatever the number of edits
+  assert.deepEqual(sent, []); // nothing before the frame
+  page.run();
+  await tick();
+  assert.deepEqual(sent, ["11234567890"]);
+  assert.deepEqual(drawn, ["for 11234567890"]);
+});
+
+test("a burst of 10 keystrokes while a request is with the core computes 2 requests, the last input's drawn", async () => {
+  const page = frames();
+  const gates = [];
+  const drawn = [];
+  let value = "2";
+  const block = computation({
+    read: () => ({ params: { total: value }, errors: {} }),
+    call: (p) => {
+      const d = deferred();
+      gates.push({ total: p.total, d });
+      return d.promise;
+    },
+    render: (result, params) => drawn.push([result, params.total]),
+    frame: page.frame,
+  });
+  value = "2.";
+  block.schedule();
+  page.run(); // the first keystroke goes to the core
+  assert.equal(gates.length, 1);
+  for (const key of "051234567") {
+    value += key; // the rest of the burst, each in a frame of its own
+    block.schedule();
+    page.run();
+  }
+  assert.equal(gates.length, 1); // they wait; each newer one drops the one before
+  gates[0].d.resolve("first");
+  await tick();
+  assert.equal(gates.length, 2);
+  assert.equal(gates[1].total, "2.051234567"); // the last input, nothing in between
+  gates[1].d.resolve("last");
+  await tick();
+  assert.deepEqual(drawn, [["last", "2.051234567"]]); // the first answer was never drawn
+});
+
+test("a stream's first part is drawn at once, its later parts only while it is the newest", async () => {
+  const page = frames();
+  const streams = [];
+  const drawn = [];
+  let value = 1;
+  const block = computation({
+    read: () => ({ params: { v: value }, errors: {} }),
+    stream: (p, onPart) => {
+      const d = deferred();
+      streams.push({ v: p.v, onPart, d });
+      return d.promise;
+    },
+    render: (part, p) => drawn.push(`headline ${part} (${p.v})`),
+    more: (part, p) => drawn.push(`curves ${part} (${p.v})`),
+    frame: page.frame,
+  });
+  const first = block.run();
+  streams[0].onPart("A");
+  await tick();
+  assert.deepEqual(drawn, ["headline A (1)"]);
+  streams[0].onPart("A-curves");
+  streams[0].d.resolve("done");
+  assert.equal(await first, "drawn"); // the run is over when its last part is drawn
+  assert.deepEqual(drawn, ["headline A (1)", "curves A-curves (1)"]);
+
+  // A newer edit after the headline: the core is free for it at once, and the older curves are
+  // not drawn when they come (the worker stops computing them).
+  value = 2;
+  const second = block.run();
+  streams[1].onPart("B");
+  await tick();
+  value = 3;
+  const third = block.run();
+  await tick();
+  assert.equal(streams.length, 3); // sent without waiting for B's curves
+  streams[1].onPart("B-curves");
+  streams[1].d.resolve("dropped");
+  assert.equal(await second, "superseded");
+  streams[2].onPart("C");
+  streams[2].onPart("C-curves");
+  streams[2].d.resolve("done");
+  assert.equal(await third, "drawn");
+  assert.deepEqual(drawn.slice(2), ["headline B (2)", "headline C (3)", "curves C-curves (3)"]);
+});
+
+test("the pending count holds until a stream's last part is in", async () => {
+  const counts = [];
+  const stop = onPendingChange((n) => counts.push(n));
+  let onPart;
+  const last = deferred();
+  const block = computation({
+    read: () => ({ params: { v: 1 }, errors: {} }),
+    stream: (p, part) => {
+      onPart = part;
+      return last.promise;
+    },
+    render: () => {},
+    more: () => {},
+  });
+  const outcome = block.run();
+  onPart("headline");
+  await tick();
+  assert.ok(counts.at(-1) > 0); // the curves are still to come
+  onPart("curves");
+  last.resolve("done");
+  assert.equal(await outcome, "drawn");
+  stop();
+  assert.equal(counts.at(-1), 0);
+});
+
+test("the same inputs are not asked twice; after a message they are", async () => {
+  const sent = [];
+  let value = "7";
+  const block = computation({
+    read: () => ({ params: { pH: value }, errors: Number.isNaN(Number(value)) ? { ph: "not a number" } : {} }),
+    call: async (p) => {
+      sent.push(p.pH);
+      return p.pH;
+    },
+    render: () => {},
+  });
+  const [a, b] = await Promise.all([block.run(), block.run()]); // e.g. a solve of the water, then a link's settle
+  assert.deepEqual([a, b], ["drawn", "drawn"]);
+  assert.equal(await block.run(), "drawn");
+  assert.deepEqual(sent, ["7"]);
+  value = "x";
+  assert.equal(await block.run(), "invalid"); // the result on screen is marked stale now
+  value = "7";
+  assert.equal(await block.run(), "drawn");
+  assert.deepEqual(sent, ["7", "7"]); // drawn again, so it is current again
+  block.cancel();
+  await block.run();
+  assert.deepEqual(sent, ["7", "7", "7"]);
+});
+
+test("a block nobody can see asks nothing until it is shown", async () => {
+  const sent = [];
+  let shown = false;
+  const block = computation({
+    read: () => ({ params: { v: 1 }, errors: {} }),
+    call: async (p) => {
+      sent.push(p.v);
+      return p.v;
+    },
+    render: () => {},
+    active: () => shown,
+  });
+  assert.equal(await block.run(), "deferred");
+  assert.equal(await block.run(), "deferred");
+  assert.deepEqual(sent, []);
+  assert.equal(await block.resume(), "deferred");
+  shown = true;
+  assert.equal(await block.resume(), "drawn");
+  assert.equal(await block.resume(), "idle"); // nothing was put off since
+  assert.deepEqual(sent, [1]);
+});

@@ -6,9 +6,16 @@ never lets a traceback cross into JavaScript: errors come back as
 ``{"ok": false, "error": {"type", "message", "field"}}``. It sits above ``api`` and ``batch``
 (batch calls api's methods per row), so neither imports the other in a circle.
 
+The water section asks for its answer in parts (:func:`stages`): the solved water first (pH,
+alkalinity, indices, species: the headline the page draws at once), then its curves, computed in
+chunks of :data:`CURVE_CHUNK` pH values. Between chunks the generator pauses, so the worker can
+drop the rest when a newer request for the same water has arrived (site/worker.js): one request
+per edit, and curves nobody will see are never finished.
+
 Functions
 ---------
 handle(method, params_json) -> str     JSON dispatcher used by the page's worker
+stages(method, params_json) -> iterator of str or None     the same, answered in parts
 """
 
 from __future__ import annotations
@@ -100,3 +107,161 @@ def handle(method: str, params_json: str) -> str:
         return json.dumps(
             {"ok": False, "error": {"type": type(exc).__name__, "message": str(exc), "field": None}}
         )
+
+
+#: pH values of a curve computed between two pauses of :func:`stages` (a newer request waits at
+#: most this long for the worker; about 1.5 ms a value for a six-system water with complexes in
+#: Chromium here, see build_scripts/bench.py).
+CURVE_CHUNK = 16
+
+
+def _chunked_curves(wm, sol, grid: list[float], size: int = CURVE_CHUNK):
+    """:func:`acidscape.operations.curves.water_curves` over ``grid`` in chunks of ``size`` values.
+
+    A generator: yields None after each chunk (a point where the caller may stop) and returns
+    the curves of the whole grid, shaped as ``water_curves`` shapes them. Each chunk starts
+    from the solved water (the warm start of the one-call version carries over from the
+    previous pH value instead), so values agree with it to the solver's tolerance.
+    A complex that is absent from every value of a chunk is None there, as ``water_curves``
+    reports an absent species; the lines keep ``water_curves``' order (complexes by their
+    place in the tableau).
+
+    Parameters
+    ----------
+    wm : acidscape.science.tableau.WaterModel
+        The water's tableau
+    sol : acidscape.science.model.Solution
+        Its solution
+    grid : list of float
+        pH values [-]
+    size : int
+        pH values per chunk [-]
+
+    Examples
+    --------
+    >>> from acidscape.operations.curves import water_curves
+    >>> from acidscape.science.tableau import SystemInput, WaterModel
+    >>> wm = WaterModel([SystemInput("a", "acid", ("HA", "A-"), (0, -1), (7.0,), 1e-3)], [], T=298.15,
+    ...                 pKw=14.0, model="ideal", complexes=False)
+    >>> sol = wm.solve()
+    >>> run = _chunked_curves(wm, sol, [5.0, 6.0, 7.0, 8.0, 9.0], size=2)
+    >>> pauses = 0
+    >>> while True:
+    ...     try:
+    ...         next(run)
+    ...         pauses += 1
+    ...     except StopIteration as done:
+    ...         curves = done.value
+    ...         break
+    >>> pauses, curves["pH"]
+    (3, [5.0, 6.0, 7.0, 8.0, 9.0])
+    >>> whole = water_curves(wm, sol, [5.0, 6.0, 7.0, 8.0, 9.0])
+    >>> all(abs(a - b) < 1e-12 for a, b in zip(curves["systems"][0]["fractions"][1], whole["systems"][0]["fractions"][1]))
+    True
+    """
+    from ..operations.curves import water_curves
+
+    parts = []
+    for start in range(0, len(grid), size):
+        parts.append((len(grid[start:start + size]), water_curves(wm, sol, grid[start:start + size])))
+        yield None
+    out = dict(parts[0][1])
+    out["pH"] = list(grid)
+    for key in ("systems", "ions"):
+        out[key] = [dict(group, fractions=[[f for _, part in parts for f in part[key][g]["fractions"][s]]
+                                           for s in range(len(group["fractions"]))])
+                    for g, group in enumerate(parts[0][1][key])]
+    place = {}  # a line's key -> its species' place in the tableau (complexes are ordered by it)
+    for i, sp in enumerate(wm.tab.species):
+        place.setdefault((sp.name, "water" if sp.kind == "water" else sp.system, sp.kind), i)
+    lines: dict = {}
+    for n, part in parts:
+        for line in part["log_concentration"]:
+            lines.setdefault((line["name"], line["system"], line["kind"]), dict(line, values=[]))
+    for n, part in parts:
+        seen = {(line["name"], line["system"], line["kind"]): line["values"] for line in part["log_concentration"]}
+        for key, line in lines.items():
+            line["values"].extend(seen.get(key, [None] * n))
+    fixed = [(line["name"], line["system"], line["kind"]) for line in parts[0][1]["log_concentration"]
+             if line["kind"] != "complex"]
+    complexes = sorted((key for key in lines if key[2] == "complex"), key=lambda key: place.get(key, len(place)))
+    out["log_concentration"] = [lines[key] for key in fixed + complexes]
+    return out
+
+
+def _water_view(params: dict):
+    """The water section's request in parts: ``{"result": <solve result>}`` first, then
+    ``{"curves": <water_curves>}`` (same parameters as :func:`acidscape.boundary.api.water`).
+    Yields dicts for parts and None at pauses."""
+    from ..operations.curves import pH_grid
+
+    if not isinstance(params, dict):
+        raise InputError("parameters must be a JSON object", field=None)
+    curve = params.get("curve") or {}
+    if not isinstance(curve, dict):
+        raise InputError("curve must be an object {pH_min, pH_max, points}", field="curve")
+    scenario = {k: v for k, v in params.items() if k != "curve"}
+    grid = pH_grid(
+        api._number(curve, "pH_min", 0.0, lo=-1.0, hi=15.0, field="curve.pH_min"),
+        api._number(curve, "pH_max", 14.0, lo=-1.0, hi=15.0, field="curve.pH_max"),
+        api._integer(curve, "points", 281, lo=2, hi=api.MAX_POINTS),
+    )
+    state: dict = {}
+    yield {"result": api.solve(scenario, state)}
+    yield None  # the headline is out: a newer request may take over here
+    curves = yield from _chunked_curves(state["model"], state["solution"], grid)
+    yield {"curves": curves}
+
+
+#: Methods answered in parts by :func:`stages` (every other method is one part).
+_STAGED = {"water_view": _water_view}
+
+
+def _failure(exc: Exception) -> str:
+    if isinstance(exc, AcidscapeError):
+        return json.dumps({"ok": False, "error": exc.to_dict()})
+    return json.dumps({"ok": False, "error": {"type": type(exc).__name__, "message": str(exc), "field": None}})
+
+
+def stages(method: str, params_json: str):
+    """Answer one request in parts: a generator of JSON strings (one per part, shaped as
+    :func:`handle` answers) and None (a pause where the caller may stop asking for more).
+
+    ``"water_view"`` (a scenario plus optional ``curve``, as ``"water"``) answers
+    ``{"result": <solve result>}`` and then ``{"curves": ...}``, pausing after the first part
+    and after every :data:`CURVE_CHUNK` pH values of the curves. Any other method is answered
+    in one part by :func:`handle`. After a part that is an error nothing more comes.
+
+    Parameters
+    ----------
+    method : str
+        Name of the call [-]
+    params_json : str
+        Its parameters as a JSON object [-]
+
+    Examples
+    --------
+    >>> parts = [p for p in stages("water_view", json.dumps({"systems": [{"id": "acetic", "total": 1}],
+    ...                                                   "curve": {"points": 3}})) if p is not None]
+    >>> [sorted(json.loads(p)["result"]) for p in parts]
+    [['result'], ['curves']]
+    >>> json.loads(parts[1])["result"]["curves"]["pH"]
+    [0.0, 7.0, 14.0]
+    >>> [json.loads(p)["ok"] for p in stages("water_view", '{"systems": 3}') if p is not None]
+    [False]
+    >>> [json.loads(p)["result"]["pKa"] for p in stages("distribution", '{"pKa": [4.756], "points": 3}')]
+    [[4.756]]
+    """
+    staged = _STAGED.get(method)
+    if staged is None:
+        yield handle(method, params_json)
+        return
+    try:
+        try:
+            params = json.loads(params_json) if params_json else {}
+        except (TypeError, ValueError) as exc:
+            raise InputError(f"request parameters are not valid JSON: {exc}", field=None) from None
+        for part in staged(params):
+            yield None if part is None else json.dumps({"ok": True, "result": part}, allow_nan=False)
+    except (AcidscapeError, ValueError, OverflowError, ZeroDivisionError, TypeError, KeyError) as exc:
+        yield _failure(exc)

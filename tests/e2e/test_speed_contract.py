@@ -1,0 +1,136 @@
+"""End-to-end: the page's request contract for speed (issue 10, "Speed").
+
+- One request to the worker per edit of the water while the water job is in view
+  (dispatch.stages "water_view": the solved water first, its curves after); the jobs that are
+  hidden ask nothing.
+- A burst of 10 keystrokes computes at most 2 requests (the one with the core and the newest;
+  the ones between are dropped before they are computed), and the result on screen is the
+  core's answer for the last input.
+- Opening the page or a link computes each hidden job's blocks once, when the job is shown,
+  not twice (once on the water's solve and again when the link is settled).
+
+Requests are counted by the page itself (py.js: window.__acidscapeCalls). No timings here:
+speed is measured by build_scripts/bench.py. The oracle for the numbers is
+``acidscape.boundary.api.solve`` run in this process on the scenario the page holds; the waters
+are the page's invented defaults, only checked for agreement with the core.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+from conftest import core_scenario, settled, show_job
+from playwright.sync_api import Page, expect
+
+from acidscape.boundary import api
+
+pytestmark = pytest.mark.e2e
+
+BOOT_MS = 90_000
+
+CALLS = "() => JSON.parse(JSON.stringify(window.__acidscapeCalls))"
+
+
+def open_page(page: Page, fragment: str = "") -> None:
+    page.goto("/" + (f"#{fragment}" if fragment else ""))
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+
+
+def calls(page: Page) -> dict:
+    return page.evaluate(CALLS)
+
+
+def sent_since(before: dict, after: dict) -> dict:
+    """Requests per method between two counts (methods with none left out)."""
+    out = {m: n - before["byMethod"].get(m, 0) for m, n in after["byMethod"].items()}
+    return {m: n for m, n in out.items() if n}
+
+
+def page_scenario(page: Page) -> dict:
+    return page.evaluate("() => import('./state.js').then((m) => m.collectState().water.scenario)")
+
+
+def shown_pH(page: Page) -> float:
+    return float(page.get_attribute("#water-ph", "data-value"))
+
+
+def edit(page: Page, selector: str, text: str) -> dict:
+    """Type a new value into a water input as a user does; the requests it caused."""
+    before = calls(page)
+    page.fill(selector, text)
+    settled(page)
+    return sent_since(before, calls(page))
+
+
+def test_one_request_per_edit_of_the_water_while_the_water_job_is_shown(page: Page, watch):
+    open_page(page)
+    show_job(page, "water")
+    for selector, text in (("#water-system-0-total", "3"), ("#water-temperature", "12"),
+                           ("#water-ion-0-total", "2.5"), ("#water-system-0-total", "1.2")):
+        assert edit(page, selector, text) == {"water_view": 1}, selector
+        # the answer on screen is the core's for what is typed now
+        assert math.isclose(shown_pH(page), api.solve(core_scenario(page_scenario(page)))["pH"], rel_tol=1e-9)
+    assert page.get_attribute("#water-results", "data-state") == "current"
+
+
+def test_a_burst_of_keystrokes_computes_at_most_two_requests_and_shows_the_last(page: Page, watch):
+    open_page(page)
+    show_job(page, "water")
+    before = calls(page)
+    # The first keystroke reaches the core at the next frame; the other nine come while it is
+    # there (in one go, so none of them can be answered in between): they wait, each newer one
+    # replacing the one before, and only the last is sent.
+    burst = page.evaluate("""async () => {
+      const input = document.querySelector('#water-system-0-total');
+      const sent = window.__acidscapeCalls.total;
+      const type = (text) => {
+        input.value = text;
+        input.dispatchEvent(new Event('input', {bubbles: true}));
+      };
+      let text = '1';
+      type(text);
+      while (window.__acidscapeCalls.total === sent) {
+        await new Promise((resolve) => requestAnimationFrame(resolve));
+      }
+      for (const key of '.72503125') {
+        text += key;
+        type(text);
+      }
+      return text;
+    }""")
+    settled(page)
+    sent = sent_since(before, calls(page))
+    assert burst == "1.72503125"
+    assert set(sent) == {"water_view"}
+    assert 1 <= sent["water_view"] <= 2, sent
+    scenario = page_scenario(page)
+    assert float(scenario["systems"][0]["total"]) == 1.72503125
+    assert math.isclose(shown_pH(page), api.solve(core_scenario(scenario))["pH"], rel_tol=1e-9)
+    assert page.get_attribute("#water-results", "data-state") == "current"
+
+
+def test_hidden_jobs_ask_nothing_and_are_computed_once_when_shown(page: Page, watch):
+    open_page(page)
+    at_ready = calls(page)["byMethod"]
+    # titration, buffer and dose wait for their jobs: the page did not compute them on load
+    # (and not twice: once on the water's solve and again when the state was settled)
+    assert {m: at_ready.get(m, 0) for m in ("titrate", "buffer", "dose")} == {"titrate": 0, "buffer": 0, "dose": 0}
+    before = calls(page)
+    show_job(page, "titrate")
+    page.wait_for_function(
+        "() => Number(document.querySelector('#treatment-section').dataset.bufferDrawn || 0) > 0 &&"
+        " Number(document.querySelector('#treatment-section').dataset.titrationDrawn || 0) > 0",
+        timeout=BOOT_MS)
+    settled(page)
+    assert sent_since(before, calls(page)) == {"titrate": 1, "buffer": 1}
+    # back and forth without a change: nothing is asked again
+    before = calls(page)
+    show_job(page, "water")
+    show_job(page, "titrate")
+    settled(page)
+    assert sent_since(before, calls(page)) == {}
+    # an edit of the water with the titration job in view: the water and that job's blocks only
+    sent = edit(page, "#water-system-0-total", "2.5")
+    assert sent == {"water_view": 1, "titrate": 1, "buffer": 1}, sent
