@@ -76,6 +76,9 @@ const TEMPLATE = `
           along each curve, dots mark where it changes; shaded: the spread of published constants)</span></figcaption>
         <div id="plot-lead" class="plot"></div>
       </figure>
+    </div>
+  </div>
+  <div class="results" id="lead-details" data-state="empty">
       <div class="table-wrap" tabindex="0" role="region" aria-label="Dissolved lead and copper at a few points">
         <table id="lead-table">
           <caption id="lead-table-caption">Dissolved lead and copper</caption>
@@ -84,10 +87,10 @@ const TEMPLATE = `
               <th scope="col" id="lead-table-x">pH</th>
               <th scope="col" class="num">Lead <span class="unit">(µg/L)</span></th>
               <th scope="col">Lead solid</th>
-              <th scope="col" class="num">Lead, spread <span class="unit">(µg/L)</span></th>
+              <th scope="col" class="num">Lead, spread of constants <span class="unit">(µg/L)</span></th>
               <th scope="col" class="num">Copper <span class="unit">(µg/L)</span></th>
               <th scope="col">Copper solid</th>
-              <th scope="col" class="num">Copper, spread <span class="unit">(µg/L)</span></th>
+              <th scope="col" class="num">Copper, spread of constants <span class="unit">(µg/L)</span></th>
             </tr>
           </thead>
           <tbody></tbody>
@@ -111,7 +114,6 @@ const TEMPLATE = `
           </table>
         </div>
       </details>
-    </div>
   </div>
 `;
 
@@ -135,6 +137,7 @@ export class LeadView {
     this.messages = new FieldMessages(doc, byId(doc, "lead-form"), "lead-error");
     this.waterLine = byId(doc, "lead-water");
     this.results = byId(doc, "lead-results");
+    this.details = byId(doc, "lead-details");
     this.table = byId(doc, "lead-table");
     this.tableX = byId(doc, "lead-table-x");
     this.caption = byId(doc, "lead-table-caption");
@@ -175,11 +178,13 @@ export class LeadView {
 
   setBusy(flag) {
     this.results.setAttribute("aria-busy", flag ? "true" : "false");
+    this.details.setAttribute("aria-busy", flag ? "true" : "false");
   }
 
   /** @param {"current"|"stale"|"empty"} state @param {string} [note] */
   setResultState(state, note) {
     markResults(this.results, state, note);
+    markResults(this.details, state, note);
   }
 
   /** Count one drawn result on the section (data-lead-drawn). */
@@ -241,7 +246,7 @@ export class LeadView {
     this.caption.textContent = caption;
     const body = this.table.tBodies[0];
     const ug = (v) => (v === null || v === undefined ? "—" : sciNumber(v, 3));
-    const spread = (m) => (m && m.low !== null && m.high !== null ? `${ug(m.low)} to ${ug(m.high)}` : "—");
+    const spread = (m) => (m && m.low !== null && m.high !== null ? `${ug(m.low)}–${ug(m.high)}` : "—");
     body.replaceChildren(...rows.map((row) => {
       const tr = this.doc.createElement("tr");
       const th = this.doc.createElement("th");

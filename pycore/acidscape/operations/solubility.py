@@ -864,8 +864,8 @@ def with_orthophosphate(parsed, dose_M: float):
     Returns
     -------
     (object, list of str)
-        The water (a shallow copy; ``parsed`` is unchanged) and notes: what the water held
-        before and what the curve uses
+        The water (a shallow copy; ``parsed`` is unchanged; ``parsed`` itself for a zero dose)
+        and notes: what the water held before and what the curve uses
 
     Examples
     --------
@@ -879,6 +879,8 @@ def with_orthophosphate(parsed, dose_M: float):
 
     if not (dose_M >= 0.0 and math.isfinite(dose_M)):
         raise InputError(f"the orthophosphate dose must be 0 or more, got {dose_M!r}", field="orthophosphate_dose")
+    if dose_M == 0.0:
+        return parsed, []
     out = copy.copy(parsed)
     comps = list(parsed.components)
     notes: list[str] = []
@@ -893,8 +895,7 @@ def with_orthophosphate(parsed, dose_M: float):
             break
     else:
         comps.append(_system_input("phosphate", dose_M, parsed.T, notes))
-        if dose_M > 0:
-            notes.append(f"orthophosphate: a dose of {dose_M * 1e3:.4g} mmol/L (the water held none)")
+        notes.append(f"orthophosphate: a dose of {dose_M * 1e3:.4g} mmol/L (the water held none)")
     out.components = comps
     return out, notes
 
