@@ -128,3 +128,23 @@ def test_measured_hard_water_with_ion_pairs_against_the_reference_solver(definit
                        - here["species_holds"][n].get("H+", 0)) for n, c in here["species"].items())
     assert got == pytest.approx(alk, rel=1e-9)
     assert solve(ordinary)["pH"] == pytest.approx(7.9, abs=1e-8)
+
+
+def test_warm_start_of_a_closed_water_gives_the_same_answer():
+    # The closing settles the ionic strength at the measured pH; started there (closure.warm_start)
+    # the model solves the ordinary water once, to the same answer as from a cold start.
+    from acidscape.boundary.api import water_model
+    from acidscape.operations.closure import warm_start
+
+    sc, info = resolve_measured({"temperature_C": 12, "systems": [{"id": "phosphate", "total": 1.0, "unit": "mg/L as P"}],
+                                 "ions": [{"id": "calcium", "total": 60, "unit": "mg/L"}],
+                                 "measured": {"pH": 7.3, "alkalinity": {"value": 120, "unit": "mg/L as CaCO3"}}})
+    wm = water_model(read_scenario(sc))
+    cold = wm.solve()
+    warm = wm.solve(guess=warm_start(wm, info))
+    assert warm.pH == pytest.approx(7.3, abs=1e-11) and cold.pH == pytest.approx(warm.pH, abs=1e-12)
+    assert warm.I == pytest.approx(cold.I, rel=1e-10)
+    for a, b in zip(cold.conc, warm.conc):
+        assert b == pytest.approx(a, rel=1e-9, abs=1e-30)
+    assert warm.iterations < cold.iterations
+    assert warm_start(wm, None) is None

@@ -60,7 +60,7 @@ import math
 from dataclasses import dataclass, field
 
 from ..checks import PH_RANGE, fmt, number, shown
-from ..constants import ATOMIC_WEIGHT
+from ..constants import ATOMIC_WEIGHT, LN10
 from ..errors import ConvergenceError, InputError
 from ..science.model import I_RTOL
 from ..science.tableau import IonInput
@@ -323,6 +323,32 @@ def _close(parsed, pH: float, *, measured: Measured | None = None, systems=None)
         q, C, I = q_next, Cn, I_next
     raise ConvergenceError("The water could not be matched to the measured pH and alkalinity; check the "
                            "measurements and the amounts.", field=None)
+
+
+def warm_start(wm, inferred: dict | None) -> dict | None:
+    """A warm start for solving the ordinary water :func:`resolve_measured` returned.
+
+    That water's pH is the measured one and its ionic strength the one the closing settled,
+    so the model's solve (``guess`` of :func:`acidscape.science.model.equilibrium`) starts at
+    its answer; the answer does not depend on the start.
+
+    Parameters
+    ----------
+    wm : acidscape.science.tableau.WaterModel
+        The ordinary water's tableau (component 0 is H+)
+    inferred : dict or None
+        What :func:`resolve_measured` inferred (``pH``, ``ionic_strength_M``); None gives None
+
+    Returns
+    -------
+    dict or None
+        ``{"I": ionic strength [mol/L], "I_settled": True, "x": {0: ln [H+]}}``
+    """
+    if not inferred:
+        return None
+    I = inferred["ionic_strength_M"]
+    return {"I": I, "I_settled": True,
+            "x": {0: LN10 * (-inferred["pH"] - wm.gamma_of(1, wm.tab.ion_sizes[0], I))}}
 
 
 def _balance_entry(q: float) -> dict | None:

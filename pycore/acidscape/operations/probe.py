@@ -339,7 +339,10 @@ class Linearization:
         dx = self._solve(rhs)
         dT_H = dI = 0.0
         for i, sp, c, idx, aH in self.live:
-            dc = c * sum(a * dx[p] for p, a in idx)
+            t = 0
+            for p, a in idx:
+                t += a * dx[p]
+            dc = c * t
             dT_H += aH * dc
             dI += sp.charge * sp.charge * dc
         for i, u in new_species:
@@ -402,9 +405,13 @@ class Linearization:
         dx = self._solve(rhs)
         dR = dI = 0.0
         for (i, sp, c, idx, aH), e in zip(self.live, es):
-            dc = c * (e + sum(a * dx[p] for p, a in idx))
-            dR += sp.charge * dc
-            dI += sp.charge * sp.charge * dc
+            t = 0
+            for p, a in idx:
+                t += a * dx[p]
+            dc = c * (e + t)
+            z = sp.charge
+            dR += z * dc
+            dI += z * z * dc
         return dR, 0.5 * dI
 
 

@@ -746,7 +746,9 @@ def equilibrium(
     I_fixed : float, optional
         Ionic strength held fixed [mol/L]
     guess : dict, optional
-        ``Solution.state`` of an earlier, similar solve (warm start)
+        ``Solution.state`` of an earlier, similar solve (warm start): ``x`` (component index ->
+        ln free concentration), ``I`` [mol/L], ``active`` (solid indices); with
+        ``I_settled`` true the first solve is already a tight one at ``I``
 
     Returns
     -------
@@ -880,7 +882,11 @@ def equilibrium(
     if I_fixed is None and not Imodel_ideal:
         # Substitution, accelerated by secant steps on h(I) = I_computed(I) - I once two points
         # are known; the inner solves are loose until I has settled, then one tight solve.
-        st = solve_at(I, LOOSE_RTOL)
+        # a warm start whose ionic strength is known to be the answer's ("I_settled", e.g. a
+        # measured water closed at its pH) is solved tight at once: one solve when it is settled
+        # (the loop goes on as usual when it is not)
+        warm = guess is not None and guess.get("I") is not None and bool(guess.get("I_settled"))
+        st = solve_at(I, MASS_RTOL if warm else LOOSE_RTOL)
         settled = False
         prev = None
         for _ in range(60):
