@@ -75,7 +75,7 @@ try {
 
   // The water first (its headline is the first thing on screen): mount it and draw what the URL
   // opened before anything else is mounted.
-  const water = mountWater({
+  const waterSection = mountWater({
     py,
     view: new WaterView(document),
     plots: await embedWaterPlots(),
@@ -84,7 +84,23 @@ try {
     ions: waterLibrary.ions,
     co2MolarMass: chemicalList.find((c) => c.id === "CO2")?.molar_mass_g_per_mol ?? null,
   });
-  water.onSolved((_scenario, result) => headline.render(result));
+  // The jobs are mounted after the water's first result: the water handle they get hands a new
+  // listener the last solved water (after its mount has returned), as if it had been there.
+  let lastSolved = null;
+  waterSection.onSolved((scenario, result) => {
+    lastSolved = [scenario, result];
+    headline.render(result);
+  });
+  waterSection.onStale?.(() => { lastSolved = null; }); // never replay a water the screen no longer shows
+  const water = {
+    ...waterSection,
+    onSolved(cb) {
+      const off = waterSection.onSolved(cb);
+      const replay = lastSolved;
+      if (replay) queueMicrotask(() => { if (lastSolved === replay) cb(...replay); });
+      return off;
+    },
+  };
   messages.push(...(await applyState(opened, ["water"])));
 
   // Then the jobs on it. The one-acid explorer (distribution.js) is one job among them.

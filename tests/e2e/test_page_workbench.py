@@ -185,6 +185,7 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
     open_at(page)
     good_pH = page.get_attribute("#water-ph", "data-value")
     expect(page.locator("#water-results")).to_have_attribute("data-state", "current")
+    show_job(page, "treat")  # a job computes when it is shown
     expect(page.locator("#treatment-water")).to_contain_text("Working on the water above")
 
     page.fill("#water-temperature", "warm")
@@ -222,8 +223,10 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
     scenario = page_scenario(page)
     assert math.isclose(scenario["temperature_C"], 15.5, rel_tol=1e-12)  # (59.9 - 32) x 5/9
     assert math.isclose(value(page, "#water-ph"), solve(scenario)["pH"], rel_tol=1e-9)
-    for block in ("titration", "buffer", "dose"):
-        expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current")
+    for job, blocks in (("treat", ("dose",)), ("titrate", ("titration", "buffer"))):
+        show_job(page, job)  # a job put away is worked out when it is shown
+        for block in blocks:
+            expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current")
     dose = page.evaluate("() => import('./state.js').then((m) => m.collectState().treatment.dose)")
     assert dose["target_pH"] == 8.4
     want = api.dose({"scenario": core_scenario(scenario), "chemical": "Ca(OH)2", "target_pH": 8.4})
@@ -254,12 +257,14 @@ def test_one_alkalinity_one_free_co2_strong_ions_in_mass_units_and_plain_feeds(p
     alk = result["alkalinity"]["fixed_end_point"]["total_mg_per_L_as_CaCO3"]
     assert round(alk, 1) == entered
     assert math.isclose(value(page, "#water-alk-total"), alk, rel_tol=1e-9)
+    show_job(page, "treat")  # a job computes when it is shown
     expect(page.locator("#treatment-water")).to_contain_text(f"total alkalinity (to pH 4.5) {alk:.1f} mg/L as CaCO₃")
     before = page.locator("#dose-before-after tr[data-key='total_alkalinity_mg_per_L_as_CaCO3'] td[data-key='before']")
     assert math.isclose(float(before.get_attribute("data-value")), alk, rel_tol=1e-9)
     expect(page.locator("#dose-before-after tr[data-key='total_alkalinity_mg_per_L_as_CaCO3'] th")).to_contain_text("to pH 4.5")
 
     # Free CO2: the species table in mg/L shows H2CO3* as CO2, the figure of the dose table.
+    show_job(page, "water")
     page.select_option("#water-display-unit", "mg/L")
     co2_row = page.locator("#water-species-table tr[data-species='H2CO3*'] td[data-key='concentration']")
     expect(co2_row).to_contain_text("as CO₂")
