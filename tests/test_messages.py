@@ -261,3 +261,65 @@ def test_limits_catalogue_for_the_page():
     assert reply["result"]["limits"]["total_M"] == MAX_TOTAL_M
     # and the words of each input, for notes about values dropped from a link or a file
     assert reply["result"]["labels"]["measured.pH"] == ["the measured pH", ""]
+
+
+# Every top-level and nested input of each method, given values of the wrong kind or out of
+# range: the reply is a refusal in words (one of the core's error types), or an answer.
+WRONG = [None, True, "abc", "", -1, 0, 1e300, float("inf"), [], {}, [1, 2], {"a": 1}, 99, -99]
+SWEEP = [
+    ("solve", WATER, [], ["temperature_C", "activity", "ionic_strength_M", "tds_mg_per_L", "conductance_uS_per_cm",
+                          "pH", "systems", "ions", "gas", "complexes", "precipitate", "uncertainty", "measured",
+                          "ccpp_open_CO2_partial_pressure_atm", "ccpp_temperatures_C"]),
+    ("solve", WATER, ["systems", 0], ["id", "total", "unit", "custom"]),
+    ("solve", WATER, ["ions", 0], ["id", "total", "unit", "custom"]),
+    ("solve", _with(WATER, systems=[{"custom": {"name": "x", "pKa": [4.2]}, "total": 1, "unit": "mmol/L"}]),
+     ["systems", 0, "custom"], ["name", "pKa", "charge_most_protonated", "molar_mass_g_per_mol"]),
+    ("solve", MEASURED, ["measured"], ["pH", "alkalinity"]),
+    ("solve", MEASURED, ["measured", "alkalinity"], ["value", "unit", "definition", "end_point_pH"]),
+    ("dose", {"scenario": WATER, "chemical": "NaOH", "target_pH": 8.5}, [],
+     ["chemical", "target_pH", "strength_pct", "density_kg_per_L", "flow", "flow_unit", "precipitate", "target_LSI"]),
+    ("titrate", {"scenario": WATER, "titrant": "HCl", "titrant_M": 0.02}, [],
+     ["titrant", "titrant_M", "sample_mL", "to_pH", "points"]),
+    ("buffer", {"scenario": WATER, "capacity": {"from_pH": 5, "to_pH": 7}}, ["capacity"], ["from_pH", "to_pH"]),
+    ("distribution", {"pKa": [4.76]}, [], ["pKa", "pH", "total_M", "pH_min", "pH_max", "points", "system", "name"]),
+    ("treat", {"scenario": WATER, "steps": [{"chemical": "NaOH", "target_pH": 8}]}, ["steps", 0],
+     ["chemical", "target_pH", "strength_pct", "density_kg_per_L", "precipitate"]),
+    ("blend", {"waters": [WATER, WATER], "fractions": [0.5, 0.5]}, [], ["waters", "fractions", "names", "flow"]),
+    ("soften", {"scenario": WATER}, [], ["softening_pH", "lime_mg_per_L", "soda_ash_mg_per_L", "remove_magnesium",
+                                         "target_hardness_mg_per_L_as_CaCO3", "excess_lime_meq_per_L", "recarbonation"]),
+    ("soften", {"scenario": WATER, "recarbonation": {"target_LSI": 0}}, ["recarbonation"], ["target_LSI", "precipitate"]),
+    ("solubility", {"scenario": WATER, "metal": "lead"}, [], ["metal", "axis", "from", "to", "points", "solids"]),
+    ("conditional_constants", {"metals": ["calcium"]}, [], ["metals", "pH_from", "pH_to", "points"]),
+]
+REFUSALS = {"InputError", "UnknownIdError", "UnreachableError", "ConvergenceError"}
+
+
+@pytest.mark.sweep
+@pytest.mark.parametrize("method, base, path, keys", SWEEP, ids=[f"{m}-{'.'.join(map(str, p)) or 'top'}"
+                                                                  for m, _, p, _ in SWEEP])
+def test_every_input_given_anything_is_refused_in_words(method, base, path, keys):
+    for key in keys:
+        for wrong in WRONG:
+            params = json.loads(json.dumps(base))
+            target = params
+            for step in path:
+                target = target[step]
+            target[key] = wrong
+            reply = json.loads(dispatch.handle(method, json.dumps(params, allow_nan=True)))
+            if reply["ok"]:
+                continue
+            err = reply["error"]
+            assert err["type"] in REFUSALS, (method, path, key, wrong, err)
+            assert words_problems(err["message"]) == [], (method, path, key, wrong, err["message"])
+
+
+def test_found_by_the_sweep():
+    """Inputs the sweep above once found answered with a Python error or a repr."""
+    ok = json.loads(dispatch.handle("soften", json.dumps({"scenario": WATER, "lime_mg_per_L": 0})))
+    assert ok["ok"] or ok["error"]["type"] in REFUSALS, ok
+    err = _error("solubility", {"scenario": WATER, "metal": "lead", "axis": []})
+    assert err["field"] == "axis" and words_problems(err["message"]) == [], err
+    err = _error("soften", {"scenario": WATER, "recarbonation": {"target_LSI": 0, "precipitate": [1]}})
+    assert err["message"] == "Choose solid 1 allowed to form from the list.", err
+    err = _error("blend", {"waters": [WATER, WATER], "fractions": []})
+    assert words_problems(err["message"]) == [], err

@@ -189,10 +189,11 @@ def _label(field: str | None) -> tuple[str, str]:
     if split:
         words, unit = _label(split.group(2))
         return f"{words} in {_label(split.group(1))[0]}", unit
-    if "." in key:  # a known block and a key inside it
+    if "." in key:  # a known block and a key inside it ("recarbonation.precipitate[0]")
         head, leaf = key.rsplit(".", 1)
         if leaf in LABELS:
-            return LABELS[leaf]
+            words, unit = LABELS[leaf]
+            return words.format(*positions[-leaf.count("[]") or len(positions):]), unit
     return _words(key), ""
 
 

@@ -96,7 +96,7 @@ def check_fractions(fractions, n: int) -> list[float]:
         raise InputError(f"Give the share of the flow of each of the {n} waters (shares that add up to 1).",
                          field="fractions")
     if len(fractions) != n:
-        raise InputError(f"{len(fractions)} shares were given for {n} waters; give one share per water.",
+        raise InputError(f"Give one share of the flow per water: {n} waters and {len(fractions)} shares were given.",
                          field="fractions")
     out = [number(f, f"fractions[{k}]", lo=0.0, hi=1.0, allow_text=True) for k, f in enumerate(fractions)]
     total = math.fsum(out)

@@ -420,10 +420,10 @@ def soften(closed, *, softening_pH=None, lime_mg_per_L=None, soda_ash_mg_per_L=N
         rec, softened, formed = _run_step(water_in, step, flow_Ld=flow_Ld, scenario_solids=())
     except TargetUnreachableError as exc:
         exc.field = field_pH if step.field == "target_pH" else "lime_mg_per_L"
-        exc.message = exc.message.replace("target_pH", field_pH, 1)
+        exc.message = exc.message.replace("The target pH", "The softening pH", 1)
         exc.args = (exc.message,)
         raise
-    if rec["status"] == "no dose needed":
+    if rec["status"] == "no dose needed" and pH_s is not None:
         warnings.append(f"the water is already at or above pH {pH_s:g}: no lime is needed to reach the softening pH")
     d_lime = rec["dose_mmol_per_L"] * 1e-3
     rc = rc1 = None

@@ -1018,7 +1018,7 @@ def solubility_curve(parsed, metal: str, axis: str, start: float, stop: float, p
     jM = wm.comp_index[metal]
     cand = candidate_solids(wm, metal) if solids is None else list(dict.fromkeys(solids))
     if not cand:
-        raise InputError(f"None of the solids chosen holds {metal}; choose {metal} solids.", field="solids")
+        raise InputError(f"No solid chosen holds {metal}; choose {metal} solids.", field="solids")
     solver = FixedPHSolver(wm, metal, cand)
     warnings.extend(temperature_notes(
         wm, [i for i, sp in enumerate(wm.tab.species) if sp.kind == "complex" and dict(sp.stoich).get(jM, 0)],
