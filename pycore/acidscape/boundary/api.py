@@ -707,7 +707,7 @@ def solubility(params: dict) -> dict:
     if not isinstance(metal, str) or metal not in sol.METALS:
         raise choice("metal", metal, sol.METALS)
     axis = params.get("axis", "pH")
-    if axis not in SOLUBILITY_AXES:
+    if not isinstance(axis, str) or axis not in SOLUBILITY_AXES:
         raise choice("axis", axis, SOLUBILITY_AXES)
     lo, hi, unit = SOLUBILITY_AXES[axis]
     start = _number(params, "from", lo, lo=0.0, hi=PH_RANGE[1] if axis == "pH" else 1e6)
