@@ -375,6 +375,20 @@ def test_dose_columns_equal_api_dose_and_carry_the_cautions():
     assert dosed >= 3
     for words in ("PPE", "jar", "overfeed", "licensed operators"):
         assert words in DOSE_CAUTION
+    # A water given by its pH and totals (closed with a balancing ion) and one whose pH is its
+    # equilibrium: the same dose as api.dose of the row's scenario.
+    text = "id,pH,CT,Ca\na,6.9,2,30\n"
+    systems = [{"id": "carbonate", "column": "CT", "unit": "mmol/L"}]
+    ions = [{"id": "calcium", "column": "Ca", "unit": "mg/L"}]
+    for mode, extra in (("measured", {"pH": 6.9}), ("equilibrium", {})):
+        row = run_rows(text, {"pH": "pH", "mode": mode, "systems": systems, "ions": ions,
+                              "dose": {"chemical": "NaOH", "target_pH": 9.6}})["rows"][0]
+        sc = {"temperature_C": 25.0, "activity": "davies", **extra,
+              "systems": [{"id": "carbonate", "total": 2e-3, "unit": "mol/L"}],
+              "ions": [{"id": "calcium", "total": 30.0, "unit": "mg/L"}]}
+        d = api.dose({"scenario": sc, "chemical": "NaOH", "target_pH": 9.6})
+        assert row["dose_status"] == "dosed" and row["dose_NaOH_mg_per_L"] == pytest.approx(d["dose_mg_per_L"],
+                                                                                             rel=1e-12), mode
 
 
 def test_rows_past_the_target_need_no_dose_and_are_no_error():

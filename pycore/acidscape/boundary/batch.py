@@ -936,11 +936,12 @@ def _row_water(sc: dict):
     the rest of its description (indices, buffer intensity, saturation, trail, equivalence
     points), which a batch row does not report.
     """
+    from ..operations.closure import warm_start
     from .api import _ordinary
 
     scenario, parsed, inferred = _ordinary(sc)
     wm = _row_model(parsed)
-    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
+    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate, guess=warm_start(wm, inferred))
     return scenario, parsed, inferred, wm, sol
 
 
@@ -982,7 +983,7 @@ def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> di
         for sid, formula, name in plan.species_columns:
             values[name] = conc.get((sid, formula), 0.0)
     if plan.dose:
-        from ..operations.closure import close_scenario
+        from ..operations.closure import Closed, close_scenario
         from ..operations.dosing import dose_to_pH
 
         chem, target, direction = plan.dose
@@ -994,8 +995,15 @@ def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> di
                            "dose_cautions": ""})
         else:
             try:
-                # as api.dose: the closed water of the row's (already closed) scenario, no full descriptions
-                d = dose_to_pH(close_scenario(scenario, parsed), chem, target)
+                # as api.dose: the closed water of the row's scenario, without the two full
+                # descriptions. A water with no given pH and no gas is closed as it stands: its
+                # model and solution are the row's own (what close_scenario would build again).
+                if parsed.pH is None and parsed.CO2_partial_pressure_atm is None:
+                    closed = Closed(scenario=scenario, wm=wm, sol=sol, notes=list(parsed.warnings),
+                                    precipitate=tuple(parsed.precipitate or ()))
+                else:
+                    closed = close_scenario(scenario, parsed)
+                d = dose_to_pH(closed, chem, target)
                 values.update({mg_col: d["dose_mg_per_L"], mmol_col: d["dose_mmol_per_L"],
                                "pH_after_dose": d["change"]["pH"]["after"], "dose_status": "dosed",
                                "dose_cautions": DOSE_CAUTION})
