@@ -49,7 +49,7 @@ def saturation_plot():
     """Calcite saturation index (LSI) against pH, band of the usual uncertainties, the water marked."""
     p = _base_figure("scale_si_fig", "saturation index of calcite (LSI)", Range1d(-2, 2, name="scale_si_y"))
     p.x_range = Range1d(6, 10.5, name="scale_si_x")
-    p.xaxis.axis_label = "pH (set with a strong acid or base; calcium and DIC kept)"
+    p.xaxis.axis_label = "pH (calcium and DIC kept)"
     p.xaxis.ticker.desired_num_ticks = 10
     _strip_pan(p)
     src = ColumnDataSource(data={"pH": [], "LSI": [], "low": [], "high": []}, name="scale_si_src")
@@ -69,7 +69,7 @@ def ccpp_plot():
     """CCPP [mg/L as CaCO3] of the closed water against temperature, band, chosen temperatures marked."""
     p = _base_figure("scale_ccpp_fig", "CCPP (mg/L as CaCO₃)", Range1d(-10, 10, name="scale_ccpp_y"))
     p.x_range = Range1d(0, 100, name="scale_ccpp_x")
-    p.xaxis.axis_label = "temperature (°C), the closed water heated or cooled"
+    p.xaxis.axis_label = "temperature (°C), closed water"
     p.xaxis.ticker.desired_num_ticks = 10
     _strip_pan(p)
     src = ColumnDataSource(data={"t": [], "ccpp": [], "low": [], "high": []}, name="scale_ccpp_src")

@@ -106,6 +106,7 @@ const MARKUP = `
         </table>
       </div>
       <p id="scale-method" class="hint"></p>
+      <details class="hint"><summary>How these are computed, and the sources</summary><p id="scale-method-detail"></p></details>
       <div class="table-wrap" tabindex="0" role="region" aria-label="Indices at other temperatures">
         <table id="scale-temperature-table">
           <caption>The same closed water at other temperatures</caption>
@@ -124,7 +125,7 @@ const MARKUP = `
         <figcaption>CCPP against temperature <span class="unit">(mg/L as CaCO₃, closed water; shaded: the uncertainty band; diamonds: the chosen temperatures)</span></figcaption>
         <div id="plot-scale-ccpp" class="plot"></div>
       </figure>
-      <p id="scale-band-note" class="hint"></p>
+      <details class="hint"><summary>What the curves and bands hold</summary><p id="scale-band-note"></p></details>
     </div>
   </div>
   <div class="treat-block" id="scale-dose-block">
@@ -388,14 +389,16 @@ export class ScaleView {
    * Show the indices block, or clear it (null) so that no stale number stands beside an error.
    *
    * @param {object|null} cc  the core's calcium_carbonate block (with uncertainty), or null
-   * @param {{verdict: string, tendency: string, method: string, notes: string[], ranges: object}} [words]
+   * @param {{verdict: string, tendency: string, methodShort: string, method: string, notes: string[],
+   *          ranges: object}} [words]
    */
   renderIndices(cc, words = null) {
     const body = byId(this.doc, "scale-indices").tBodies[0];
     const verdict = byId(this.doc, "scale-verdict");
     verdict.textContent = words?.verdict ?? "";
     verdict.dataset.tendency = words?.tendency ?? "";
-    byId(this.doc, "scale-method").textContent = words?.method ?? "";
+    byId(this.doc, "scale-method").textContent = words?.methodShort ?? "";
+    byId(this.doc, "scale-method-detail").textContent = words?.method ?? "";
     byId(this.doc, "scale-notes").replaceChildren(...(words?.notes ?? []).map((n) => this.para(n, "li")));
     const temps = byId(this.doc, "scale-temperature-table").tBodies[0];
     if (!cc) {

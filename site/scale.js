@@ -175,7 +175,9 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       view.renderIndices(cc, {
         verdict: verdictOf(cc),
         tendency: cc.tendency,
-        method: `Method: ${cc.method_id} (at ${fixed(cc.temperature_C, 1)} °C, pH ${fixed(cc.pH, 2)}). ${cc.method}.${classic}` +
+        methodShort: `Method: ${cc.method_id}${cc.method_id === "with ion pairs" ? " (free-ion activities of the equilibrium model)" : ""}, ` +
+          `Standard Methods 2330 B and C, at ${fixed(cc.temperature_C, 1)} °C and pH ${fixed(cc.pH, 2)}.${classic}`,
+        method: `${cc.method}.` +
           ` CCPP: ${cc.CCPP_method}.${dominant} Ranges: ${u.method ?? "not computed"}.`,
         notes: [...(cc.notes ?? []), ...(cc.at_temperatures ?? []).flatMap((r) => (r.notes ?? []).map((n) => `${fixed(r.temperature_C, 0)} °C: ${n}`))],
         ranges,
