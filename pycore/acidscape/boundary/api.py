@@ -180,7 +180,7 @@ def _closed_water(scenario: dict):
     from ..operations.closure import close_scenario
 
     scenario, parsed, inferred = _ordinary(scenario)
-    closed = close_scenario(scenario, parsed)
+    closed = close_scenario(scenario, parsed, inferred)
     if inferred is not None:
         closed.inferred = inferred
     return closed
@@ -237,11 +237,12 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     >>> round(out["pH"], 2)
     3.91
     """
+    from ..operations.closure import warm_start
     from . import results
 
     parsed, inferred = read_water(scenario)
     wm = water_model(parsed)
-    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate)
+    sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate, guess=warm_start(wm, inferred))
     if _state is not None:  # callers inside the package may want the solved state too
         _state["parsed"], _state["model"], _state["solution"] = parsed, wm, sol
     warnings = list(parsed.warnings) + results.condense_notes(wm.notes_that_matter(sol)) + sol.warnings

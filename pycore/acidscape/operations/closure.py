@@ -42,7 +42,8 @@ Functions and classes
 ---------------------
 read_measured(scenario) -> (dict, Measured)           check ``measured``; the scenario to parse
 resolve_measured(base, parsed, measured) -> (dict, dict)  ordinary scenario and what was inferred
-close_scenario(scenario, parsed) -> Closed            closed, electroneutral water for titration and dosing
+warm_start(wm, inferred) -> dict                       model guess for that ordinary water
+close_scenario(scenario, parsed[, inferred]) -> Closed closed, electroneutral water for titration and dosing
 Closed                                                that water: scenario, model, solution, notes
 
 References
@@ -425,7 +426,7 @@ def resolve_measured(base: dict, parsed, measured: Measured) -> tuple[dict, dict
     return out, info
 
 
-def close_scenario(scenario: dict, parsed) -> Closed:
+def close_scenario(scenario: dict, parsed, inferred: dict | None = None) -> Closed:
     """The closed, electroneutral water equivalent to ``scenario``, solved by the model.
 
     Parameters
@@ -434,6 +435,9 @@ def close_scenario(scenario: dict, parsed) -> Closed:
         An ordinary scenario (``measured`` already resolved by :func:`resolve_measured`)
     parsed : object
         ``scenario`` parsed by the boundary
+    inferred : dict, optional
+        What :func:`resolve_measured` inferred, when ``scenario`` came from it: the solve then
+        starts at the measured pH and settled ionic strength (:func:`warm_start`)
 
     Returns
     -------
@@ -480,5 +484,6 @@ def close_scenario(scenario: dict, parsed) -> Closed:
                 notes.append(f"the given pH {pH_given:g} leaves a charge imbalance of {q * 1e3:.4g} meq/L; "
                              "it is carried by a monovalent balancing ion")
     wm = model_of(parsed, systems=systems, ions=ions)
-    sol = wm.solve(allow_solids=precipitate)
+    as_is = parsed.pH is None and parsed.CO2_partial_pressure_atm is None
+    sol = wm.solve(allow_solids=precipitate, guess=warm_start(wm, inferred) if as_is else None)
     return Closed(scenario=out, wm=wm, sol=sol, notes=notes + list(parsed.warnings), precipitate=precipitate)
