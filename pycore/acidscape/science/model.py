@@ -45,6 +45,22 @@ minimisation, Smith & Missen [3]_). Its unique minimum is the equilibrium. This 
    oversaturated allowed solid, drop any whose amount turns negative, repeat (at most as
    many solids as components: the phase rule).
 
+Speed (the same arithmetic, done once or unrolled)
+--------------------------------------------------
+Everything that depends only on which species, solids and constraints are in play is found
+once and cached with the tableau: the structure of a pattern of present components (which
+components are simple, which coupled), and for each pattern of constraints (pH held, fixed
+species, active solids) its *skeleton*: the null space N, the map from the constraints'
+right-hand sides to x0, and each coupled species' coefficients and Hessian entries over y.
+Activity coefficients are computed once per distinct (charge, ion size) and ln K' once per
+distinct set of (activity, coefficient) terms. A skeleton used more than a few times has its
+evaluation of F, gradient, residual scale and Hessian compiled to straight-line Python, and
+the Cholesky factor and solve are compiled per dimension: CPython spends most of a small
+sparse evaluation on loop overhead, not arithmetic. The compiled code performs the same
+operations in the same order as the loops it replaces (``tests/test_model.py`` checks that
+the numbers are identical), so the answers do not depend on it. A ``guess`` (an earlier
+state, or a measured water's settled ionic strength) only shortens the iteration.
+
 Functions and classes
 ---------------------
 Tableau(...)                  components, species and solids with constants at T
