@@ -81,15 +81,19 @@ def test_each_example_opens_from_the_menu_and_as_a_link_and_matches_the_core(pag
         assert math.isclose(ionic, want["ionic_strength_M"], rel_tol=1e-12)
         expect(page.locator("#preset-summary")).to_contain_text("Example — invented")
         page.wait_for_function("(h) => location.hash === h", arg=f"#preset={preset['id']}")
-        # The species section shows the example's acid at its pH, as the core computes it.
-        d = preset["state"]["distribution"]
+        # The species section shows the example's acid at its pH, as the core computes it (for the
+        # examples that set the one-acid explorer).
+        d = preset["state"].get("distribution")
+        if d is None:
+            continue
         page.wait_for_function("(id) => document.getElementById('acid-select').value === id", arg=d["acid"])
         expect(page.locator("#species-caption")).to_contain_text(f"{d['pH']:.2f}")
 
 
 def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, watch):
     open_at(page, "preset=hatchery-tank")
-    water_ph(page, api.solve(core_scenario(PRESETS[-1]["state"]["water"]["scenario"]))["pH"])
+    hatchery = next(p for p in PRESETS if p["id"] == "hatchery-tank")
+    water_ph(page, api.solve(core_scenario(hatchery["state"]["water"]["scenario"]))["pH"])
     show_job(page, "explorer")
     page.fill("#ph-input", "6.85")
     page.wait_for_function(f"async () => ((await ({HASH_STATE})()) || {{distribution: {{}}}}).distribution.pH === 6.85")
