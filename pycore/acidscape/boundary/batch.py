@@ -132,8 +132,18 @@ acidscape[dask]``)::
 Row numbers come from the frame's index (sample k, 0-based, is spreadsheet row k + 2);
 ``dd.from_pandas`` keeps the index of the whole frame. ``tests/test_batch_dask.py`` runs it.
 
-Data sources: none of its own; each row is computed by :func:`acidscape.boundary.api.solve` and
-:func:`acidscape.boundary.api.dose`.
+Speed
+-----
+A row is computed by the functions :func:`acidscape.boundary.api.solve` and
+:func:`acidscape.boundary.api.dose` use (the scenario read and, with pH and alkalinity,
+closed; the tableau; one solve; the pH 4.5 end point; the dose), giving the same figures, but
+only the ones a row reports: not the indices, buffer intensity, saturation table, trail and
+equivalence points of a full description, nor the dose's descriptions of the water before
+and after. Rows alike in make-up and temperature share one tableau (:func:`_row_model`).
+``build_scripts/bench_batch.py`` prints rows per second by kind of sheet.
+
+Data sources: none of its own; each row's figures are those of :func:`acidscape.boundary.api.solve`
+and :func:`acidscape.boundary.api.dose` for the row's scenario.
 """
 
 from __future__ import annotations
