@@ -51,7 +51,7 @@ MAX_TOTAL_M = 5.0
 #: common practice).
 MAX_SAMPLE_ML = 1e4
 #: Largest plant flow [L/d]: 10^10 L/d (10 million m3/d, about 2,600 MGD) is above the largest
-#: treatment plants in the world, which treat a few million m3/d (common practice).
+#: treatment plants in the world, which treat a few million m3/d (from memory).
 MAX_FLOW_L_PER_D = 1e10
 
 #: Limits for the page (the page reads them from the core instead of keeping copies).
