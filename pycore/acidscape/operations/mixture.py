@@ -211,7 +211,7 @@ class Mixture:
         lin_prev = last if last is not None and guess is not None and last.sol.state is guess \
             and not last.sol.solids else None
         sol = None
-        for _ in range(200):
+        for _ in range(60):
             start = state if lin_prev is None else lin_prev.predict(self.totals(d), pH, I, self.wm.gamma_of)
             sol = self.solve(pH, d, I=I, guess=start)
             state = sol.state
@@ -255,6 +255,7 @@ class Mixture:
                 return d, sol, False, I
             dI_next = 0.0
             newton = False
+            newton_ok = not past and dR is not None and sign * dR > 0.0
             if past:
                 dn = math.nan
             elif dR is not None and sign * dR > 0.0:
@@ -278,7 +279,12 @@ class Mixture:
             if not (lo < dn < top) or not math.isfinite(dn):
                 dI_next = 0.0
                 newton = False
-                if math.isfinite(top):
+                d_only = d - R / dR if newton_ok else math.nan
+                if lo < d_only < top:
+                    # the joint step on (d, I) left the bracket (which holds at this ionic strength
+                    # only); the Newton step at this ionic strength stays inside it
+                    dn = d_only
+                elif math.isfinite(top):
                     dn = 0.5 * (lo + top)
                 else:
                     dn = 2.0 * max(d, lo, 1e-12 * max(scale, 1e-12))
@@ -297,8 +303,10 @@ class Mixture:
             if not held_I:
                 I = I + dI_next if dI_next else max(I_new + dI * (dn - d), 0.0)
             d = dn
-        self.stopped = "iterations"
-        return d, sol, False, I
+        # not settled (a bracket found at one ionic strength can exclude the root at the next):
+        # the full solves, each at the mixture's own ionic strength, bracket the root robustly
+        self.stopped = None
+        return self._amount_bracketed(pH, d0, guess, d_max, sign, first_branch)
 
     def charge_at(self, pH: float, d: float, guess: dict | None = None):
         """(R [eq/L], charge scale sum |z| c [eq/L], Solution) of the mixture at pH and d, its
