@@ -4,7 +4,8 @@
 // computations on the water section's water; they compute only while the job is shown.
 
 import { CoreError } from "./py.js";
-import { parseNumber } from "./parse.js";
+import { parseNumber, stateNumber } from "./parse.js";
+import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
@@ -194,6 +195,7 @@ export function mountHardness({ py, view, plots, water }) {
     }
   });
   view.bindChange((id) => {
+    notifyInputChange("hardness");
     // the buffered pH moves the conditional plot's marker only (its curves do not depend on it)
     if (id === "hardness-ph") {
       const pH = parseNumber(view.read()["hardness-ph"], "").value;
@@ -203,6 +205,28 @@ export function mountHardness({ py, view, plots, water }) {
   });
   onJobShown("hardness", () => {
     if (owed) run();
+  });
+
+  async function refresh() {
+    if (isJobShown("hardness")) await Promise.all([titration.run(), conditional.run()]);
+    else owed = true;
+  }
+
+  // Links, examples, saved files and reports carry the job's inputs (state key "hardness").
+  registerSection("hardness", {
+    get() {
+      const raw = view.read();
+      return { sample_mL: stateNumber(raw["hardness-sample"]), titrant_M: stateNumber(raw["hardness-edta"]),
+        fixed_pH: stateNumber(raw["hardness-ph"]) };
+    },
+    set(obj) {
+      if (!obj || typeof obj !== "object") return ["hardness: not an object; ignored"];
+      for (const [key, id] of [["sample_mL", "hardness-sample"], ["titrant_M", "hardness-edta"], ["fixed_pH", "hardness-ph"]]) {
+        if (obj[key] !== undefined) view.write(id, obj[key] === null ? "" : String(obj[key]));
+      }
+      return [];
+    },
+    refresh,
   });
 
   view.setWater(describe(null));
@@ -216,10 +240,5 @@ export function mountHardness({ py, view, plots, water }) {
       run();
     }).catch(() => {}); // the water section shows its own failure
   }
-  return {
-    async refresh() {
-      if (isJobShown("hardness")) await Promise.all([titration.run(), conditional.run()]);
-      else owed = true;
-    },
-  };
+  return { refresh };
 }

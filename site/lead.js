@@ -5,7 +5,8 @@
 // computes only while it is shown (workbench.js) and through one section.js computation.
 
 import { CoreError } from "./py.js";
-import { parseNumber } from "./parse.js";
+import { parseNumber, stateNumber } from "./parse.js";
+import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
@@ -212,6 +213,7 @@ export function mountLead({ py, view, plot, water }) {
     if (drawn) view.setResultState("stale", waterNote);
   });
   view.bindChange((id) => {
+    notifyInputChange("lead");
     if (id === "lead-axis") {
       const spec = LEAD_AXES[view.read()["lead-axis"]];
       view.write("lead-from", spec.from);
@@ -222,6 +224,43 @@ export function mountLead({ py, view, plot, water }) {
   });
   onJobShown("lead", () => {
     if (owed) run();
+  });
+
+  async function refresh() {
+    if (isJobShown("lead")) await block.run();
+    else owed = true;
+  }
+
+  // Links, examples, saved files and reports carry the job's inputs (state key "lead").
+  registerSection("lead", {
+    get() {
+      const raw = view.read();
+      return {
+        axis: raw["lead-axis"], from: stateNumber(raw["lead-from"]), to: stateNumber(raw["lead-to"]),
+        orthophosphate_mg_per_L_as_P: stateNumber(raw["lead-dose"]), fixed_pH: stateNumber(raw["lead-fixed-ph"]),
+        lead_solids: raw["lead-lead-solids"], copper_solids: raw["lead-copper-solids"],
+      };
+    },
+    set(obj) {
+      const messages = [];
+      if (!obj || typeof obj !== "object") return ["lead: not an object; ignored"];
+      const put = (id, value, name) => {
+        if (value === undefined) return;
+        const text = value === null ? "" : String(value);
+        if (!view.write(id, text)) messages.push(`lead: ${name} ${JSON.stringify(value)} is not offered here; kept ${view.read()[id]}`);
+      };
+      put("lead-axis", obj.axis, "axis");
+      const spec = LEAD_AXES[view.read()["lead-axis"]];
+      view.setAxis(view.read()["lead-axis"], spec.words);
+      put("lead-from", obj.from === undefined ? spec.from : obj.from, "from");
+      put("lead-to", obj.to === undefined ? spec.to : obj.to, "to");
+      put("lead-dose", obj.orthophosphate_mg_per_L_as_P, "orthophosphate dose");
+      put("lead-fixed-ph", obj.fixed_pH, "fixed pH");
+      put("lead-lead-solids", obj.lead_solids, "lead solids");
+      put("lead-copper-solids", obj.copper_solids, "copper solids");
+      return messages;
+    },
+    refresh,
   });
 
   view.setAxis("pH", LEAD_AXES.pH.words);
@@ -236,10 +275,5 @@ export function mountLead({ py, view, plot, water }) {
       run();
     }).catch(() => {}); // the water section shows its own failure
   }
-  return {
-    async refresh() {
-      if (isJobShown("lead")) await block.run();
-      else owed = true;
-    },
-  };
+  return { refresh };
 }

@@ -189,3 +189,31 @@ def test_candidate_solids_chosen_on_the_page_equal_the_core(page: Page, watch):
     assert "Chloropyromorphite" not in solids
     assert {t.strip() for t in page.locator("#lead-table td[data-key='copper_solid']").all_text_contents()} == {
         "Copper(II) hydroxide"}
+
+
+def test_a_link_carries_the_job_inputs(page: Page, watch):
+    open_lead(page)
+    for sel, value in (("#lead-dose", "0.8"),):
+        before = drawn(page)
+        page.fill(sel, value)
+        redrawn(page, before)
+    before = drawn(page)
+    page.select_option("#lead-axis", "DIC")
+    redrawn(page, before)
+    before = drawn(page)
+    page.fill("#lead-fixed-ph", "7.8")
+    redrawn(page, before)
+    state = page.evaluate(STATE)
+    assert state["lead"] == {"axis": "DIC", "from": 1, "to": 100, "orthophosphate_mg_per_L_as_P": 0.8,
+                             "fixed_pH": 7.8, "lead_solids": "all", "copper_solids": "all"}
+    link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
+    page.goto("about:blank")
+    page.goto("/" + link)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+    show_job(page, "lead")
+    redrawn(page, 0)
+    assert page.evaluate(STATE)["lead"] == state["lead"]
+    expect(page.locator("#lead-table-x")).to_have_text("DIC (mg/L as C)")
+    check_against_core(page, {"axis": "DIC", "from": 1, "to": 100, "unit": "mg/L as C", "points": 201,
+                              "fixed_pH": 7.8, "orthophosphate_dose": 0.8, "orthophosphate_dose_unit": "mg/L as P"})
