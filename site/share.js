@@ -18,6 +18,11 @@
 //                           page writes (encodeStateShort); s= links are still read, and written
 //                           where a browser lacks CompressionStream. Reading inflates at most
 //                           MAX_JSON_BYTES, so a small link cannot expand into a huge one.
+//   y=<version>.<payload>   shorter still, and what the page writes: as z=, but before compression
+//                           every object key found in KEY_TABLE_1 is replaced by its index in
+//                           base 36 ("temperature_C" -> "1b"); a key of the state that is all
+//                           digits or starts with "~" is written with a "~" before it. The
+//                           table only ever grows at its end (old links keep their meaning).
 //   preset=<id>             one of the worked examples in presets.json.
 // Anything else after "#" is left alone (e.g. an in-page anchor).
 //
@@ -311,7 +316,7 @@ export function readFragment(hash, sections) {
     if (!/^[a-z0-9-]{1,60}$/.test(id)) return { kind: "error", reason: "the example it names is not a valid name" };
     return { kind: "preset", id };
   }
-  if (text.startsWith("z=")) {
+  if (text.startsWith("z=") || text.startsWith("y=")) {
     return { kind: "error", reason: "it is a compressed link; this page reads those with readFragmentAsync" };
   }
   if (!text.startsWith("s=")) return { kind: "none" };
@@ -325,9 +330,10 @@ export function readFragment(hash, sections) {
  * @param {string} body  "<version>.<payload>"
  * @param {(payload: string) => Uint8Array} bytesOf  the payload's bytes (throws with a reason)
  * @param {string[]} sections  the registered section names
+ * @param {(parsed: any) => any} [expand]  undoes a key table (y= links)
  * @returns {{kind: "state", state: object, notes: string[]} | {kind: "error", reason: string}}
  */
-function readPayload(body, bytesOf, sections) {
+function readPayload(body, bytesOf, sections, expand = (x) => x) {
   const dot = body.indexOf(".");
   if (dot < 1) return { kind: "error", reason: "it has no format version (expected s=<version>.<data>)" };
   const prefix = body.slice(0, dot);
@@ -342,7 +348,7 @@ function readPayload(body, bytesOf, sections) {
     }
     let parsed;
     try {
-      parsed = JSON.parse(json);
+      parsed = expand(JSON.parse(json));
     } catch {
       throw new Error("it is damaged (the scenario inside is incomplete; it may be cut short)");
     }
@@ -387,9 +393,55 @@ async function pipeBytes(bytes, stream, limit = Infinity) {
 }
 
 /**
- * The short fragment text (without "#") for a state object: z=<version>.<base64url of raw
- * DEFLATE of the JSON>. Falls back to encodeState (s=) where the browser has no
- * CompressionStream.
+ * Keys of the state shapes (state.js sections and the core's scenario), in a fixed order: the
+ * index of each (base 36) stands for it in a y= link. Append only; never reorder or remove.
+ */
+export const KEY_TABLE_1 = Object.freeze([
+  "v", "distribution", "water", "treatment", "scenario", "display", "titration", "dose", "buffer",
+  "acid", "pKa", "charge", "total_M", "pH", "temperature_C", "activity", "measured", "alkalinity",
+  "value", "unit", "systems", "ions", "id", "total", "custom", "name", "mass", "complexes",
+  "precipitate", "gas", "CO2_partial_pressure_atm", "ionic_strength_M", "tds_mg_per_L",
+  "conductance_uS_per_cm", "plot_system", "titrant", "titrant_M", "titrant_N", "sample_mL", "to_pH",
+  "axis", "chemical", "product", "target_pH", "strength_pct", "density_kg_per_L", "flow", "flow_unit",
+  "from_pH", "log_scale", "charge_most_protonated", "molar_mass_g_per_mol", "ccpp_temperatures_C",
+  "uncertainty", "temperature_F", "target_LSI", "target_CCPP", "steps", "dose_mg_per_L",
+]);
+const KEY_INDEX_1 = new Map(KEY_TABLE_1.map((k, i) => [k, i.toString(36)]));
+
+/** Object keys through `rename`, recursively (array items keep their places). */
+function renameKeys(value, rename) {
+  if (Array.isArray(value)) return value.map((v) => renameKeys(v, rename));
+  if (value === null || typeof value !== "object") return value;
+  const out = {};
+  for (const [k, v] of Object.entries(value)) {
+    const key = rename(k);
+    if (key === "__proto__") continue; // never set a prototype through a link
+    out[key] = renameKeys(v, rename);
+  }
+  return out;
+}
+
+/** What a key of a y= link written short looks like: a base-36 index of KEY_TABLE_1. */
+const TOKEN = /^[0-9a-z]{1,2}$/;
+
+/** A state with its keys written short (KEY_TABLE_1), for a y= link. */
+export function shortenKeys(state) {
+  return renameKeys(state, (k) => KEY_INDEX_1.get(k) ?? (TOKEN.test(k) || k.startsWith("~") ? `~${k}` : k));
+}
+
+/** The inverse of shortenKeys. */
+export function expandKeys(state) {
+  return renameKeys(state, (k) => {
+    if (k.startsWith("~")) return k.slice(1);
+    if (TOKEN.test(k)) return KEY_TABLE_1[parseInt(k, 36)] ?? k;
+    return k;
+  });
+}
+
+/**
+ * The short fragment text (without "#") for a state object: y=<version>.<base64url of raw
+ * DEFLATE of the JSON with its keys shortened>. Falls back to encodeState (s=) where the
+ * browser has no CompressionStream.
  *
  * @param {object} state  as from collectState()
  * @returns {Promise<string>}  e.g. "z=2.q1YqU7IyNNJRKs..."
@@ -397,9 +449,9 @@ async function pipeBytes(bytes, stream, limit = Infinity) {
 export async function encodeStateShort(state) {
   if (typeof CompressionStream !== "function") return encodeState(state);
   const version = Number.isInteger(state?.v) ? state.v : STATE_VERSION;
-  const json = new TextEncoder().encode(JSON.stringify({ ...state, v: version }));
+  const json = new TextEncoder().encode(JSON.stringify(shortenKeys({ ...state, v: version })));
   const packed = await pipeBytes(json, new CompressionStream("deflate-raw"));
-  return `z=${version}.${toBase64Url(packed)}`;
+  return `y=${version}.${toBase64Url(packed)}`;
 }
 
 /**
@@ -411,7 +463,8 @@ export async function encodeStateShort(state) {
  */
 export async function readFragmentAsync(hash, sections) {
   const text = String(hash || "").replace(/^#/, "");
-  if (!text.startsWith("z=") || text.length > MAX_LINK_CHARS) return readFragment(hash, sections);
+  const tabled = text.startsWith("y=");
+  if (!(tabled || text.startsWith("z=")) || text.length > MAX_LINK_CHARS) return readFragment(hash, sections);
   if (typeof DecompressionStream !== "function") {
     return { kind: "error", reason: "it is a compressed link, and this browser cannot decompress (it lacks DecompressionStream)" };
   }
@@ -428,5 +481,5 @@ export async function readFragmentAsync(hash, sections) {
     }
   }
   if (failure) return { kind: "error", reason: failure };
-  return readPayload(body, () => inflated, sections);
+  return readPayload(body, () => inflated, sections, tabled ? expandKeys : (x) => x);
 }

@@ -49,19 +49,20 @@ def water_ph(page: Page, want: float) -> float:
     return float(page.get_attribute("#water-ph", "data-value"))
 
 
-def state_of(fragment: str) -> dict:
-    """The state in a fragment the page wrote: #z=2.<base64url of raw DEFLATE (RFC 1951) of the
-    JSON> (the short link), or #s=2.<base64url of the JSON>."""
-    assert fragment.startswith(("#z=2.", "#s=2.")), fragment[:40]
-    payload = fragment[5:]
-    raw = base64.urlsafe_b64decode(payload + "=" * (-len(payload) % 4))
-    return json.loads((zlib.decompress(raw, wbits=-15) if fragment.startswith("#z=") else raw).decode("utf-8"))
-
-
-# The page's own reader of a fragment, for waiting on what the URL holds.
+# The page's own reader of a fragment (site/share.js readFragmentAsync: s=, z= and y= links).
 HASH_STATE = """async () => { const m = await import('./share.js');
   const r = await m.readFragmentAsync(location.hash, ['distribution', 'water', 'treatment']);
   return r.kind === 'state' ? r.state : null; }"""
+
+
+def state_of(page: Page) -> dict:
+    """The state in the page's URL as the page reads it; the page writes the short form
+    (#y=2.<base64url of raw DEFLATE of the JSON, keys from a fixed table>)."""
+    fragment = page.evaluate("location.hash")
+    assert fragment.startswith(("#y=2.", "#z=2.", "#s=2.")), fragment[:40]
+    state = page.evaluate(HASH_STATE)
+    assert state is not None, fragment[:60]
+    return state
 
 
 def link_for(state) -> str:
@@ -98,7 +99,7 @@ def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, 
     page.fill("#ph-input", "6.85")
     page.wait_for_function(f"async () => ((await ({HASH_STATE})()) || {{distribution: {{}}}}).distribution.pH === 6.85")
     settled(page)
-    first = state_of(page.evaluate("location.hash"))
+    first = state_of(page)
     assert first["distribution"]["pH"] == 6.85
     assert first["water"]["scenario"]["temperature_C"] == 12.0
     shown = page.input_value("#share-url")
@@ -112,7 +113,7 @@ def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, 
     water_ph(other, float(ph))
     other.wait_for_function("() => document.getElementById('ph-input').value === '6.85'")
     settled(other)
-    assert state_of(other.evaluate("location.hash")) == first
+    assert state_of(other) == first
     assert other.get_attribute("#water-ph", "data-value") == ph
     assert other.eval_on_selector_all("#species-table td", "tds => tds.map((td) => td.dataset.value)") == species
     expect(other.locator("#share-message")).to_have_text("Opened the scenario from the link.")
@@ -143,8 +144,8 @@ HOSTILE = [
     ("s=1.%3Cscript%3E", "characters"),
     (link_for({"v": 1, "spreadsheet": {"a": 1}}), "not a part of this page"),
     # short (compressed) links: damaged, cut, or inflating far past any scenario
-    ("z=2.AAAA", "damaged"),
-    ("z=2." + base64.urlsafe_b64encode(zlib.compress(b'{"v":2,"x":"' + b" " * 200_000 + b'"}')[2:-4]).decode().rstrip("="),
+    ("y=2.AAAA", "damaged"),
+    ("y=2." + base64.urlsafe_b64encode(zlib.compress(b'{"v":2,"x":"' + b" " * 200_000 + b'"}')[2:-4]).decode().rstrip("="),
      "more than"),
 ]
 
@@ -184,8 +185,8 @@ def test_a_format_0_link_opens_migrated(page: Page, watch):
     expect(page.locator("#share-message")).to_contain_text("an older link (format 0) was brought up to date")
     page.wait_for_function("() => document.getElementById('pka-input').value === '4.76'")
     assert page.input_value("#total-input") == "0.01" and page.input_value("#ph-input") == "5"
-    page.wait_for_function("() => location.hash.startsWith('#z=2.') || location.hash.startsWith('#s=2.')")
-    assert state_of(page.evaluate("location.hash"))["distribution"] == {
+    page.wait_for_function("() => location.hash.startsWith('#y=2.')")
+    assert state_of(page)["distribution"] == {
         "acid": "custom", "pKa": [4.76], "charge": 0, "total_M": 0.01, "pH": 5}
 
 

@@ -4,7 +4,8 @@ import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
 import {
-  ION_WORDS, MAX_JSON_BYTES, encodeState, encodeStateShort, migrate, readFragment, readFragmentAsync, readStateJson, toBase64Url,
+  ION_WORDS, MAX_JSON_BYTES, encodeState, encodeStateShort, expandKeys, migrate, readFragment, readFragmentAsync,
+  readStateJson, shortenKeys, toBase64Url,
 } from "../../site/share.js";
 import { STATE_VERSION } from "../../site/state.js";
 
@@ -63,13 +64,32 @@ test("a short link round-trips every example and is much shorter than the plain 
     const state = readStateJson(JSON.stringify(preset.state), SECTIONS).state;
     const short = await encodeStateShort(state);
     const plain = encodeState(state);
-    assert.ok(short.startsWith(`z=${STATE_VERSION}.`), short.slice(0, 10));
-    assert.ok(short.length < 0.6 * plain.length, `${preset.id}: ${short.length} vs ${plain.length} characters`);
+    assert.ok(short.startsWith(`y=${STATE_VERSION}.`), short.slice(0, 10));
+    assert.ok(short.length < 0.5 * plain.length, `${preset.id}: ${short.length} vs ${plain.length} characters`);
     const back = await readFragmentAsync(`#${short}`, SECTIONS);
     assert.equal(back.kind, "state");
     assert.deepEqual(back.state, state);
     assert.deepEqual(back.notes, []);
   }
+});
+
+test("keys written short come back, and a state's own keys that look like tokens survive", () => {
+  const state = { v: 2, water: { scenario: { temperature_C: 7, "1b": 1, "~x": 2, zz: 3, newKey_mL: [{ id: "a" }] } } };
+  const short = shortenKeys(state);
+  assert.equal(short["0"], 2);
+  assert.deepEqual(Object.keys(short["2"]["4"]).sort(), ["e", "newKey_mL", "~1b", "~zz", "~~x"].sort());
+  assert.deepEqual(expandKeys(short), state);
+  assert.deepEqual(expandKeys({ "__proto__x": 1, zz: 1 }), { "__proto__x": 1, zz: 1 }); // unknown index: left as is
+});
+
+test("a z= link (compressed, keys as they are) still opens", async () => {
+  const state = readStateJson(JSON.stringify(PRESETS[0].state), SECTIONS).state;
+  const json = new TextEncoder().encode(JSON.stringify(state));
+  const packed = new Uint8Array(await new Response(new Blob([json]).stream()
+    .pipeThrough(new CompressionStream("deflate-raw"))).arrayBuffer());
+  const back = await readFragmentAsync(`#z=2.${toBase64Url(packed)}`, SECTIONS);
+  assert.equal(back.kind, "state");
+  assert.deepEqual(back.state, state);
 });
 
 test("plain s= links still open through the same reader", async () => {
@@ -87,14 +107,14 @@ test("a damaged, cut or oversized short link is refused with a reason", async ()
   assert.match(cut.reason, /damaged|cut short/);
   const bad = await readFragmentAsync("#z=2.AAAA", SECTIONS);
   assert.equal(bad.kind, "error");
-  const marks = await readFragmentAsync(`#z=1.${short.slice(4)}`, SECTIONS);
+  const marks = await readFragmentAsync(`#y=1.${short.slice(4)}`, SECTIONS);
   assert.match(marks.reason, /version marks disagree/);
   // a few hundred characters that would inflate past MAX_JSON_BYTES: stopped, not expanded
   const bomb = new TextEncoder().encode(`{"v":2,"x":"${" ".repeat(MAX_JSON_BYTES * 2)}"}`);
   const packed = new Uint8Array(await new Response(new Blob([bomb]).stream()
     .pipeThrough(new CompressionStream("deflate-raw"))).arrayBuffer());
   assert.ok(packed.length < 2000);
-  const boom = await readFragmentAsync(`#z=2.${toBase64Url(packed)}`, SECTIONS);
+  const boom = await readFragmentAsync(`#y=2.${toBase64Url(packed)}`, SECTIONS);
   assert.equal(boom.kind, "error");
   assert.match(boom.reason, /more than/);
 });
