@@ -172,7 +172,7 @@ export function mountDistribution({ py, view, plots, status, systems }) {
   view.bindChange((what) => {
     if (what === "acid") fillFromLibrary(view.read().acid);
     if (what === "values" && view.read().acid !== "custom") view.setAcid("custom");
-    block.schedule(); // at the next frame: no fixed delay; changes of one frame share a request
+    block.schedule(); // as soon as this event is handled: no fixed delay
     notifyInputChange("distribution");
   });
 

@@ -16,8 +16,9 @@
 //                                              it reads and checks its inputs but asks the core
 //                                              nothing; resume() computes what was put off
 //   });
-//   block.schedule()          run at the next frame (typing): every change made before it is
-//                             drawn in one request, and no fixed delay is added
+//   block.schedule()          run as soon as the event being handled is over (typing; a
+//                             microtask): the changes made in it share one request, and no
+//                             fixed delay is added; while the core is busy, latest only (below)
 //   block.run()               run now -> "drawn" | "invalid" | "failed" | "idle" | "superseded" | "deferred"
 //
 // Latest only: while a request is with the core, newer ones wait; only the newest waiting one
@@ -25,7 +26,8 @@
 // and an answer that is no longer the newest is never rendered. A stream frees the core for the
 // next request as soon as its first part is in; its later parts are drawn only while it is the
 // newest (the worker stops computing them when a newer request arrives). The same inputs are
-// not asked twice: a run whose inputs equal the ones on screen (or on their way) draws nothing new.
+// not asked twice: a run (not an edit) whose inputs equal the ones on screen (or on their way)
+// draws nothing new.
 
 const SUPERSEDED = Symbol("superseded");
 /** Core error types that say the question has no answer, not that a value is unusable. */
@@ -73,20 +75,13 @@ export function holdPending() {
  *          the answer, or with SUPERSEDED when a newer request (or cancel) overtook it
  */
 /**
- * The next frame of the page, or soon when there are no frames (Node, a hidden tab): whichever
- * comes first of requestAnimationFrame and a short timer, so a tab in the background still
- * settles.
+ * As soon as the event being handled is over (a microtask): the changes it makes share one
+ * run, and the request leaves at once, so its answer can be drawn in the next frame.
  *
  * @param {() => void} fn
  */
-export function nextFrame(fn) {
-  let done = false;
-  const once = () => {
-    if (!done) fn();
-    done = true;
-  };
-  if (typeof requestAnimationFrame === "function") requestAnimationFrame(once);
-  setTimeout(once, 50);
+export function soon(fn) {
+  queueMicrotask(fn);
 }
 
 export function latestOnly(send) {
@@ -153,10 +148,10 @@ export function latestOnly(send) {
  *        "failed" = the core refused them
  * @param {(flag: boolean) => void} [hooks.busy]  a request is on its way
  * @param {() => boolean} [hooks.active]  false while the block need not compute (hidden)
- * @param {(fn: () => void) => void} [hooks.frame]  when schedule() runs (default nextFrame)
+ * @param {(fn: () => void) => void} [hooks.frame]  when schedule() runs (default soon())
  * @returns {{run: () => Promise<string>, schedule: () => void, cancel: () => void,
  *            resume: () => Promise<string>,
- *            settle: (reset: (problems: Record<string, string>) => string[]) => Promise<string[]>}}
+ *            settle: (reset: (problems: Record<string, string>) => string[], options?: {force?: boolean}) => Promise<string[]>}}
  */
 export function computation(hooks) {
   const { read, render } = hooks;
@@ -164,7 +159,7 @@ export function computation(hooks) {
   const show = hooks.show ?? (() => {});
   const busy = hooks.busy ?? (() => {});
   const active = hooks.active ?? (() => true);
-  const frame = hooks.frame ?? nextFrame;
+  const frame = hooks.frame ?? soon;
   const more = hooks.more ?? (() => {});
   const caller = latestOnly((params, isNewest) => (hooks.stream ? streamed(params, isNewest) : hooks.call(params)));
   let scheduled = false;
@@ -234,7 +229,12 @@ export function computation(hooks) {
     asked = null;
   }
 
-  async function run() {
+  /**
+   * @param {boolean} force  compute even while inactive
+   * @param {boolean} edited  an edit asks (schedule): drawn anew even when the inputs read the
+   *        same as the result on screen (e.g. "12" typed again as "53,6 °F")
+   */
+  async function run(force = false, edited = false) {
     scheduled = false;
     releaseScheduled?.();
     releaseScheduled = null;
@@ -253,14 +253,14 @@ export function computation(hooks) {
       problems = {};
       return "idle";
     }
-    if (!active()) {
+    if (!force && !active()) {
       deferred = true; // computed when shown (resume)
       return "deferred";
     }
     deferred = false;
     const key = JSON.stringify(params);
     if (asked && asked.key === key) return asked.outcome; // the same question is on its way
-    if (!asked && drawnKey === key) return "drawn"; // and already answered on screen
+    if (!asked && !edited && drawnKey === key) return "drawn"; // and already answered on screen
     const outcome = ask(params);
     asked = { key, outcome };
     outcome.finally(() => {
@@ -310,12 +310,14 @@ export function computation(hooks) {
    * @param {(problems: Record<string, string>) => string[]} reset  puts the inputs named in
    *        `problems` (input id -> message) back to usable values and returns one note for each
    *        thing it dropped; [] when it cannot help
+   * @param {{force?: boolean}} [options]  force: compute even while inactive (a link or file
+   *        gave this block's inputs: the core must see them now to name what it drops)
    * @returns {Promise<string[]>}  the notes
    */
-  async function settle(reset) {
+  async function settle(reset, { force = false } = {}) {
     const notes = [];
     for (let round = 0; round < 12; round += 1) {
-      const outcome = await run();
+      const outcome = await run(force);
       if ((outcome !== "invalid" && outcome !== "failed") || !resettable) break;
       const fixed = (reset({ ...problems }) || []).filter(Boolean);
       if (!fixed.length) break; // nothing more to drop: the messages stay beside the inputs
@@ -325,16 +327,16 @@ export function computation(hooks) {
   }
 
   return {
-    run,
+    run: () => run(),
     settle,
-    /** Run at the next frame; changes made before it share one request. */
+    /** Run once the event being handled is over; the changes it made share one request. */
     schedule() {
       if (!releaseScheduled) releaseScheduled = holdPending();
       if (scheduled) return;
       scheduled = true;
       frame(() => {
         if (!scheduled) return; // run() or cancel() came first
-        run().catch((error) => console.error(error));
+        run(false, true).catch((error) => console.error(error));
       });
     },
     /** Compute what was put off while the block was inactive (call when it is shown). */

@@ -484,7 +484,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
       drawTitration(lastTitration); // same curve, other unit: no need to ask the core again
       return;
     }
-    blocks[block].schedule(); // at the next frame, for choices and typing alike
+    blocks[block].schedule(); // as soon as this event is handled, for choices and typing alike
   });
 
   /** Put the inputs named in `problems` back to their defaults (see section.js settle). */
@@ -500,9 +500,20 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     return notes;
   }
 
+  // A link, file or example that gave this section's inputs (set() below) has the dose and
+  // buffer inputs checked by the core when it is opened, even with their job hidden, so what is
+  // dropped is named at once (two quick requests). The titration (the slow one) is checked
+  // when its job is shown; a value the core refuses is then explained beside its field.
+  let opened = false;
+  const CHECKED_ON_OPENING = new Set(["dose", "buffer"]);
+
   async function settle() {
     const notes = [];
-    for (const block of Object.values(blocks)) notes.push(...(await block.settle(reset)));
+    const force = opened;
+    opened = false;
+    for (const [name, block] of Object.entries(blocks)) {
+      notes.push(...(await block.settle(reset, { force: force && CHECKED_ON_OPENING.has(name) })));
+    }
     return notes;
   }
 
@@ -538,6 +549,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
     set(obj) {
       const messages = [];
       if (!obj || typeof obj !== "object") return ["treatment: not an object; ignored"];
+      opened = true;
       const put = (id, value, name) => {
         if (value === undefined) return;
         const text = value === null ? "" : String(value);

@@ -20,10 +20,10 @@ import { ION_WORDS } from "./share.js";
 
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
 const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
-/** Units of the species table: molar, mass of the species, or mass as each system's basis. */
-export const DISPLAY_UNITS = ["mol/L", "mmol/L", "umol/L", "mg/L", "ug/L", "mg/L as basis"];
-const MOLAR_SCALE = { "mol/L": 1, "mmol/L": 1e3, "umol/L": 1e6 };
-const MASS_SCALE = { "mg/L": 1e3, "ug/L": 1e6, "mg/L as basis": 1e3 }; // g/L -> shown unit
+// Units of the species table (molar, mass of the species, or mass as each system's basis) and
+// their scales (mol/L or g/L -> shown unit): the core's catalogue (catalogues.js).
+import { DISPLAY_UNITS, MASS_SCALE, MOLAR_SCALE } from "./catalogues.js";
+export { DISPLAY_UNITS };
 
 // The starting water is invented (not a real sample): a soft, slightly buffered water of
 // 2 mmol/L carbonate with 2 mmol/L sodium and 0.2 mmol/L chloride, at 25 °C.
@@ -501,6 +501,10 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
     },
     more(out) {
       const t1 = performance.now();
+      // The equivalence-point pH values of the alkalinity come with the curves (the headline
+      // goes without these two searches of the model).
+      const equivalence = last?.result?.alkalinity?.equivalence_point;
+      if (equivalence && out.alkalinity_equivalence_pH) Object.assign(equivalence, out.alkalinity_equivalence_pH);
       drawCurves(out.curves);
       performance.measure("water:draw", { start: t1, end: performance.now() });
     },
@@ -556,7 +560,7 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
       return;
     }
     notifyInputChange("water");
-    block.schedule(); // at the next frame: no fixed delay; keystrokes of one frame share a request
+    block.schedule(); // as soon as this event is handled: no fixed delay
   });
 
   // -- state (share links, presets, saved files) -------------------------------------------

@@ -79,9 +79,9 @@ def test_a_burst_of_keystrokes_computes_at_most_two_requests_and_shows_the_last(
     open_page(page)
     show_job(page, "water")
     before = calls(page)
-    # The first keystroke reaches the core at the next frame; the other nine come while it is
-    # there (in one go, so none of them can be answered in between): they wait, each newer one
-    # replacing the one before, and only the last is sent.
+    # The first keystroke reaches the core as soon as its event is handled; the other nine come
+    # while it is there (in one go, so none of them can be answered in between): they wait, each
+    # newer one replacing the one before, and only the last is sent.
     burst = page.evaluate("""async () => {
       const input = document.querySelector('#water-system-0-total');
       const sent = window.__acidscapeCalls.total;

@@ -285,6 +285,24 @@ test("the same inputs are not asked twice; after a message they are", async () =
   assert.deepEqual(sent, ["7", "7", "7"]);
 });
 
+test("an edit that reads the same as the result on screen is drawn anew (only runs share answers)", async () => {
+  const sent = [];
+  const block = computation({
+    read: () => ({ params: { T: 12 }, errors: {} }), // e.g. "12" typed again as "53,6 °F"
+    call: async (p) => {
+      sent.push(p.T);
+      return p.T;
+    },
+    render: () => {},
+  });
+  await block.run();
+  block.schedule();
+  await tick();
+  assert.deepEqual(sent, [12, 12]);
+  await block.run();
+  assert.deepEqual(sent, [12, 12]);
+});
+
 test("a block nobody can see asks nothing until it is shown", async () => {
   const sent = [];
   let shown = false;
@@ -305,4 +323,24 @@ test("a block nobody can see asks nothing until it is shown", async () => {
   assert.equal(await block.resume(), "drawn");
   assert.equal(await block.resume(), "idle"); // nothing was put off since
   assert.deepEqual(sent, [1]);
+});
+
+test("by default an edit is computed once the event that made it is handled, in one request", async () => {
+  const sent = [];
+  let value = "";
+  const block = computation({
+    read: () => ({ params: { total: value }, errors: {} }),
+    call: async (p) => {
+      sent.push(p.total);
+      return p.total;
+    },
+    render: () => {},
+  });
+  for (const key of "2.05") {
+    value += key; // e.g. a paste, or a link applied: several changes in one event
+    block.schedule();
+  }
+  assert.deepEqual(sent, []); // not inside the event
+  await Promise.resolve();
+  assert.deepEqual(sent, ["2.05"]); // at once after it, no timer
 });

@@ -216,7 +216,7 @@ def water_model(parsed):
                       complexes=parsed.complexes, I_fixed=parsed.I_fixed)
 
 
-def solve(scenario: dict, _state: dict | None = None) -> dict:
+def solve(scenario: dict, _state: dict | None = None, *, headline: bool = False) -> dict:
     """Equilibrium (or fixed-pH speciation) of a water described by a scenario.
 
     See :mod:`acidscape.boundary.scenario` for the keys. The result holds ``pH``,
@@ -226,7 +226,9 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     ``activity_coefficient``, ``fraction``, ``holds``), ``components`` (total, free,
     complexed and precipitated of each), ``saturation``, ``precipitated``, ``residuals``,
     ``charge_balance_residual_eq_per_L``, ``warnings``, plus ``systems``, ``ions``,
-    ``water_ions`` and ``trail`` (each charge-balance term).
+    ``water_ions`` and ``trail`` (each charge-balance term). ``headline=True`` leaves out the
+    two equivalence-point pH values of the alkalinity report (None; the page's first answer,
+    see :func:`acidscape.boundary.dispatch.stages`).
 
     Examples
     --------
@@ -320,7 +322,7 @@ def solve(scenario: dict, _state: dict | None = None) -> dict:
     from ..operations.alkalinity import alkalinity_report
     from ..operations.buffer import buffer_intensity
 
-    result["alkalinity"] = alkalinity_report(wm, sol)
+    result["alkalinity"] = alkalinity_report(wm, sol, equivalence_pH_too=not headline)
     result["buffer_intensity_eq_per_L_per_pH"] = buffer_intensity(wm, sol)
     result["buffer_intensity_basis"] = "closed water at its ionic strength, per unit of meter pH"
     if inferred is not None:

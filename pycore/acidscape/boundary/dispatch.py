@@ -30,6 +30,7 @@ from ..errors import AcidscapeError, InputError, UnknownIdError
 from ..operations.dosing import chemicals
 from . import api
 from .batch import batch_chunk
+from .catalogues import catalogues
 
 @functools.cache
 def _methods() -> dict[str, Callable[[dict], dict]]:
@@ -60,6 +61,8 @@ def _methods() -> dict[str, Callable[[dict], dict]]:
         "systems": lambda params: {"systems": library.library_as_json(), "ions": library.ions_as_json(),
                                    "limits": LIMITS, "labels": LABELS},
         "solids": lambda params: {"solids": library.solids_as_json()},
+        # the page's lists: units with their factors, activity models, flow units, molar masses
+        "catalogues": lambda params: catalogues(),
     }
 
 
@@ -190,9 +193,12 @@ def _chunked_curves(wm, sol, grid: list[float], size: int = CURVE_CHUNK):
 
 
 def _water_view(params: dict):
-    """The water section's request in parts: ``{"result": <solve result>}`` first, then
-    ``{"curves": <water_curves>}`` (same parameters as :func:`acidscape.boundary.api.water`).
+    """The water section's request in parts: ``{"result": <solve result>}`` first (without the
+    equivalence-point pH values of its alkalinity, see ``api.solve(headline=True)``), then
+    ``{"curves": <water_curves>, "alkalinity_equivalence_pH": {"total_equivalence_pH",
+    "phenolphthalein_equivalence_pH"}}`` (same parameters as :func:`acidscape.boundary.api.water`).
     Yields dicts for parts and None at pauses."""
+    from ..operations.alkalinity import PHENOLPHTHALEIN_END_POINT_PH, TOTAL_END_POINT_PH, equivalence_pH
     from ..operations.curves import pH_grid
 
     if not isinstance(params, dict):
@@ -207,10 +213,14 @@ def _water_view(params: dict):
         api._integer(curve, "points", 281, lo=2, hi=api.MAX_POINTS),
     )
     state: dict = {}
-    yield {"result": api.solve(scenario, state)}
+    yield {"result": api.solve(scenario, state, headline=True)}
     yield None  # the headline is out: a newer request may take over here
-    curves = yield from _chunked_curves(state["model"], state["solution"], grid)
-    yield {"curves": curves}
+    wm, sol = state["model"], state["solution"]
+    curves = yield from _chunked_curves(wm, sol, grid)
+    yield {"curves": curves,
+           "alkalinity_equivalence_pH": {f"{label}_equivalence_pH": equivalence_pH(wm, sol, ref) for label, ref in
+                                         (("total", TOTAL_END_POINT_PH),
+                                          ("phenolphthalein", PHENOLPHTHALEIN_END_POINT_PH))}}
 
 
 #: Methods answered in parts by :func:`stages` (every other method is one part).
@@ -228,7 +238,8 @@ def stages(method: str, params_json: str):
     :func:`handle` answers) and None (a pause where the caller may stop asking for more).
 
     ``"water_view"`` (a scenario plus optional ``curve``, as ``"water"``) answers
-    ``{"result": <solve result>}`` and then ``{"curves": ...}``, pausing after the first part
+    ``{"result": <solve result>}`` (the headline: its equivalence-point pH values come later) and
+    then ``{"curves": ..., "alkalinity_equivalence_pH": ...}``, pausing after the first part
     and after every :data:`CURVE_CHUNK` pH values of the curves. Any other method is answered
     in one part by :func:`handle`. After a part that is an error nothing more comes.
 
@@ -244,7 +255,10 @@ def stages(method: str, params_json: str):
     >>> parts = [p for p in stages("water_view", json.dumps({"systems": [{"id": "acetic", "total": 1}],
     ...                                                   "curve": {"points": 3}})) if p is not None]
     >>> [sorted(json.loads(p)["result"]) for p in parts]
-    [['result'], ['curves']]
+    [['result'], ['alkalinity_equivalence_pH', 'curves']]
+    >>> whole = api.solve({"systems": [{"id": "acetic", "total": 1}]})["alkalinity"]["equivalence_point"]
+    >>> json.loads(parts[1])["result"]["alkalinity_equivalence_pH"]["total_equivalence_pH"] == whole["total_equivalence_pH"]
+    True
     >>> json.loads(parts[1])["result"]["curves"]["pH"]
     [0.0, 7.0, 14.0]
     >>> [json.loads(p)["ok"] for p in stages("water_view", '{"systems": 3}') if p is not None]

@@ -359,7 +359,7 @@ def _speciation_split(wm, sol) -> tuple[float, float, float]:
     return OH, CO3, HCO3
 
 
-def alkalinity_report(wm, sol) -> dict:
+def alkalinity_report(wm, sol, *, equivalence_pH_too: bool = True) -> dict:
     """Alkalinity and acidity of a solved water, both definitions, JSON-ready.
 
     Parameters
@@ -368,6 +368,10 @@ def alkalinity_report(wm, sol) -> dict:
         The water's tableau
     sol : acidscape.science.model.Solution
         Its solution (free pH or a given pH)
+    equivalence_pH_too : bool
+        False leaves ``total_equivalence_pH`` and ``phenolphthalein_equivalence_pH`` of the
+        equivalence-point block None: two searches of the model that a quick first answer (the
+        page's headline) can go without and fetch afterwards with :func:`equivalence_pH` [-]
 
     Returns
     -------
@@ -420,7 +424,7 @@ def alkalinity_report(wm, sol) -> dict:
         alk = equivalence_alkalinity(sol, r)
         equiv[f"{label}_meq_per_L"] = alk * 1e3
         equiv[f"{label}_mg_per_L_as_CaCO3"] = _mg(alk)
-        equiv[f"{label}_equivalence_pH"] = equivalence_pH(wm, sol, ref)
+        equiv[f"{label}_equivalence_pH"] = equivalence_pH(wm, sol, ref) if equivalence_pH_too else None
     OH, CO3, HCO3 = _speciation_split(wm, sol)
     split_exact = {
         "method": "speciation: [OH-] (and hydroxo complexes), 2 x carbonate and 1 x bicarbonate units, "
