@@ -175,8 +175,12 @@ def page_rates(chromium: str, dist: Path, kinds: list[str], n: int) -> dict:
             for kind in kinds:
                 path = Path(tmp) / f"{kind}.csv"
                 path.write_text(samples(kind, n), encoding="utf-8")
-                out[kind] = {"one_worker": page_run(b, url, path, kind, n, one_core=True),
-                             "pool": page_run(b, url, path, kind, n, one_core=False)}
+                out[kind] = {}
+                for name, one_core in (("one_worker", True), ("pool", False)):
+                    try:
+                        out[kind][name] = page_run(b, url, path, kind, n, one_core=one_core)
+                    except Exception as exc:  # a page that did not answer: say so, keep the other figures
+                        out[kind][name] = {"error": f"{type(exc).__name__}: {str(exc).splitlines()[0]}"}
             b.close()
     finally:
         server.shutdown()
@@ -191,6 +195,7 @@ def main(argv: list[str] | None = None) -> int:
                         help="sheets run through the page (default speciation,closure; '' for none)")
     parser.add_argument("--dist", type=Path, default=Path(tempfile.gettempdir()) / "dist-bench-batch",
                         help="built site for the page figures (built here when missing or stale)")
+    parser.add_argument("--keep-dist", action="store_true", help="use --dist as it is (no rebuild)")
     parser.add_argument("--chromium", default="/usr/bin/chromium", help="Chromium executable")
     parser.add_argument("--no-browser", action="store_true", help="CPython figures only")
     args = parser.parse_args(argv)
@@ -207,7 +212,8 @@ def main(argv: list[str] | None = None) -> int:
         "cpython_rows_per_s": {k: cpython_rates(k, args.rows) for k in kinds},
     }
     if page_kinds:
-        ensure_dist(args.dist)
+        if not args.keep_dist:
+            ensure_dist(args.dist)
         result["page_rows_per_s"] = page_rates(args.chromium, args.dist, page_kinds, args.rows)
     result["load_average_1min_after"] = round(os.getloadavg()[0], 2)
     print(json.dumps(result, indent=2))
