@@ -4,7 +4,7 @@
 // computations on the water section's water; they compute only while the job is shown.
 
 import { CoreError } from "./py.js";
-import { parseNumber, stateNumber } from "./parse.js";
+import { parseNumber, parsePH, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
 import { computation } from "./section.js";
@@ -52,11 +52,8 @@ export function mountHardness({ py, view, plots, water }) {
     const conc = parseNumber(raw["hardness-edta"], "the EDTA concentration in mol/L, e.g. 0.01");
     if (conc.error) errors["hardness-edta"] = conc.error;
     else if (!(conc.value > 0)) errors["hardness-edta"] = "The EDTA concentration must be more than 0 mol/L.";
-    const pH = parseNumber(raw["hardness-ph"], "the buffered pH, e.g. 10");
-    if (pH.error) errors["hardness-ph"] = pH.error;
-    else if (!(pH.value >= 0 && pH.value <= 14)) {
-      errors["hardness-ph"] = "The buffered pH must be between 0 and 14 (the standard method uses 10).";
-    }
+    const pH = parsePH(raw["hardness-ph"], "The buffered pH"); // the core's one pH range (site/parse.js)
+    if (pH.error) errors["hardness-ph"] = `${pH.error} The standard method uses 10.`;
     if (current.result) {
       const ions = hardnessIons(current.result);
       if (!(ions.calcium > 0) && !(ions.magnesium > 0)) {
@@ -199,7 +196,8 @@ export function mountHardness({ py, view, plots, water }) {
     // the buffered pH moves the conditional plot's marker only (its curves do not depend on it)
     if (id === "hardness-ph") {
       const pH = parseNumber(view.read()["hardness-ph"], "").value;
-      if (Number.isFinite(pH) && pH >= 0 && pH <= 14 && drawn.conditional) plots.conditional.setMarker(pH);
+      const r = phRange();
+      if (Number.isFinite(pH) && (!r || (pH >= r[0] && pH <= r[1])) && drawn.conditional) plots.conditional.setMarker(pH);
     }
     run(DEBOUNCE_MS, [titration]);
   });

@@ -5,7 +5,7 @@
 // computes only while it is shown (workbench.js) and through one section.js computation.
 
 import { CoreError } from "./py.js";
-import { parseNumber, stateNumber } from "./parse.js";
+import { parseNumber, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
 import { computation } from "./section.js";
@@ -58,11 +58,14 @@ export function mountLead({ py, view, plot, water }) {
     const to = parseNumber(raw["lead-to"], what);
     if (from.error) errors["lead-from"] = from.error;
     if (to.error) errors["lead-to"] = to.error;
-    const inPH = (v) => v >= 0 && v <= 14;
+    // the core's one pH range (site/parse.js); until the core has said it, the core checks
+    const range = phRange();
+    const inPH = (v) => !range || (v >= range[0] && v <= range[1]);
+    const phWords = range ? `The pH must be from ${range[0]} to ${range[1]}.` : "";
     if (!from.error && !to.error) {
       if (axis === "pH") {
-        if (!inPH(from.value)) errors["lead-from"] = "The pH must be between 0 and 14.";
-        if (!inPH(to.value)) errors["lead-to"] = "The pH must be between 0 and 14.";
+        if (!inPH(from.value)) errors["lead-from"] = phWords;
+        if (!inPH(to.value)) errors["lead-to"] = phWords;
       } else {
         if (from.value < 0) errors["lead-from"] = `Enter 0 ${spec.words} or more.`;
         if (to.value < 0) errors["lead-to"] = `Enter 0 ${spec.words} or more.`;
@@ -80,7 +83,7 @@ export function mountLead({ py, view, plot, water }) {
     if (axis !== "pH") {
       const f = parseNumber(raw["lead-fixed-ph"], "a pH, or leave it empty for the water's pH", { optional: true });
       if (f.error) errors["lead-fixed-ph"] = f.error;
-      else if (f.value !== null && !inPH(f.value)) errors["lead-fixed-ph"] = "The pH must be between 0 and 14.";
+      else if (f.value !== null && !inPH(f.value)) errors["lead-fixed-ph"] = phWords;
       else fixedPH = f.value;
     }
     if (Object.keys(errors).length || !current.scenario) return { params: null, errors };

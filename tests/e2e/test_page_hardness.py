@@ -126,7 +126,7 @@ def test_titration_and_conditional_constants_equal_the_core(page: Page, watch):
 
 @pytest.mark.parametrize("field, text, message", [
     ("#hardness-sample", "0", "more than 0 mL"),
-    ("#hardness-ph", "15", "between 0 and 14"),
+    ("#hardness-ph", "15", "The buffered pH must be from 0 to 14 (you entered 15)."),
     ("#hardness-edta", "x", "is not a number"),
 ])
 def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watch, field, text, message):

@@ -159,7 +159,7 @@ def test_dose_and_reverse_curves_equal_the_core(page: Page, watch):
 
 @pytest.mark.parametrize("field, text, message", [
     ("#lead-from", "abc", "is not a number"),
-    ("#lead-to", "15", "between 0 and 14"),
+    ("#lead-to", "15", "The pH must be from 0 to 14."),
     ("#lead-to", "6", "above its start"),
     ("#lead-dose", "-1", "cannot be negative"),
 ])
