@@ -18,6 +18,8 @@ import { loadPresets } from "./presets.js";
 import { applyState } from "./state.js";
 import { onPendingChange } from "./section.js";
 import { setFieldWords, setLimits } from "./parse.js";
+import { molarMass, setCatalogues } from "./catalogues.js";
+import { fillCatalogueSelects } from "./catalogue-view.js";
 import { mountBatch } from "./batch.js";
 import { BatchView } from "./batch-view.js";
 import { embedConditionalConstantPlot, embedEdtaTitrationPlot, embedMetalSolubilityPlot } from "./plot.js";
@@ -59,10 +61,13 @@ const presetsLoading = loadPresets("./presets.json");
 try {
   const [versions, plotTemplates, presets] = await Promise.all([py.ready, templates, presetsLoading]);
   about.render(versions);
-  const [waterLibrary, chemicalList] = await Promise.all([
+  const [waterLibrary, chemicalList, catalogueList] = await Promise.all([
     py.call("systems").catch(() => ({ systems: [], ions: [] })),
     py.call("chemicals").then((r) => r.chemicals),
+    py.call("catalogues"),
   ]);
+  setCatalogues(catalogueList); // the core's units, activity models, flow units, molar masses
+  fillCatalogueSelects(document); // before any section reads its lists
   const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
   setLimits(waterLibrary.limits); // the core's input limits (one pH range) for every pH field
   setFieldWords(waterLibrary.labels); // and its words for each input (notes about a link or file)
@@ -82,7 +87,7 @@ try {
     palette: plotTemplates.palette,
     systems: waterLibrary.systems,
     ions: waterLibrary.ions,
-    co2MolarMass: chemicalList.find((c) => c.id === "CO2")?.molar_mass_g_per_mol ?? null,
+    co2MolarMass: molarMass("CO2"),
   });
   // The jobs are mounted after the water's first result: the water handle they get hands a new
   // listener the last solved water (after its mount has returned), as if it had been there.

@@ -16,15 +16,9 @@ export const TITRATION_INPUTS = ["titrant-select", "titrant-conc", "titrant-conc
 export const BUFFER_INPUTS = ["capacity-from-ph", "capacity-to-ph", "buffer-log"];
 export const DOSE_INPUTS = ["dose-chemical", "dose-product", "dose-target-ph", "dose-strength", "dose-density", "dose-flow", "dose-flow-unit"];
 
-/** Plant flow units the core accepts (acidscape.operations.dosing.FLOW_UNITS), with the words shown. */
-export const FLOW_UNITS = [
-  ["m3/d", "m³/d"],
-  ["m3/h", "m³/h"],
-  ["L/s", "L/s"],
-  ["L/min", "L/min"],
-  ["MGD", "MGD (million US gal/d)"],
-  ["gpm", "gpm (US gal/min)"],
-];
+/** Plant flow units the core accepts, with the words shown: the core's catalogue (catalogues.js). */
+import { FLOW_UNITS } from "./catalogues.js";
+export { FLOW_UNITS };
 
 /** A number for a results cell: about four significant figures, "—" when missing. */
 function short(value, digits = 4) {
