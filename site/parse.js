@@ -236,3 +236,37 @@ export function parsePH(text, label, { optional = false } = {}) {
   }
   return parsed;
 }
+
+/**
+ * Parse a list of temperatures, each in °C (default), °F or K, with decimal commas allowed.
+ * Separate them with ";", with ", " (comma and space) or with spaces: "60; 100", "60, 100",
+ * "140 °F 212 °F", "12,5; 60". A lone comma between digits is a decimal comma ("12,5" is one
+ * temperature), as everywhere else on the page. Each is checked against the core's temperature
+ * range once the core has said it (setLimits).
+ *
+ * @param {unknown} text  what the user typed
+ * @param {string} what  how to name a value in a message, e.g. "a temperature, e.g. 60"
+ * @returns {{value?: number[], error?: string, raw?: string}}  values in °C (empty text: [])
+ *
+ * @example parseTemperatureList("140 °F; 100").value  // [60, 100]
+ */
+export function parseTemperatureList(text, what = "a temperature, e.g. 60 (°C) or 140 °F") {
+  const t = cleanNumberText(text);
+  if (!t) return { value: [] };
+  let parts;
+  if (t.includes(";")) parts = t.split(";");
+  else if (/,\s/.test(t)) parts = t.split(/,\s+/);
+  else parts = [t];
+  const out = [];
+  const range = Array.isArray(limits?.temperature_C) ? limits.temperature_C : null;
+  for (const part of parts.flatMap((p) => p.trim().split(/\s+(?=[+-]?\d)/))) {
+    if (!part) return { error: `A temperature of the list is empty; separate them with "; ".`, raw: t };
+    const read = parseTemperature(part, what);
+    if (read.error) return { ...read, raw: t };
+    if (range && (read.value < range[0] || read.value > range[1])) {
+      return { error: `Each temperature must be from ${range[0]} to ${range[1]} °C (you entered ${part}).`, raw: t };
+    }
+    out.push(read.value);
+  }
+  return { value: out };
+}

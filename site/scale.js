@@ -13,7 +13,7 @@
 
 import { CoreError } from "./py.js";
 import { fixed } from "./format.js";
-import { parseNumber } from "./parse.js";
+import { parseNumber, parseTemperatureList as readTemperatures } from "./parse.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 import { relayoutPlots } from "./plot.js";
@@ -39,21 +39,17 @@ const DEFAULT_STEPS = [
 ];
 
 /**
- * Read a list of temperatures [°C]: numbers separated by commas, semicolons or spaces
- * (decimal points; "60, 100" is two temperatures).
+ * Read a list of temperatures [°C] with the page's one number reader (site/parse.js): separated
+ * by "; ", ", " or spaces ("60, 100" is two temperatures), each in °C, °F or K, decimal commas
+ * allowed ("12,5; 140 °F"), within the core's temperature range.
  *
  * @param {string} text
  * @returns {{value?: number[], error?: string}}
  */
 export function parseTemperatureList(text) {
-  const parts = String(text ?? "").trim().split(/[;,\s]+/).filter(Boolean);
-  const out = [];
-  for (const part of parts) {
-    const v = parseNumber(part, "temperatures in °C between 0 and 100, e.g. 60, 100");
-    if (v.error) return { error: v.error };
-    if (v.value < 0 || v.value > 100) return { error: `${part} °C is outside 0 to 100 °C (liquid water at 1 atm).` };
-    out.push(v.value);
-  }
+  const read = readTemperatures(text, "a temperature, e.g. 60 (°C) or 140 °F; separate several with \"; \"");
+  if (read.error) return { error: read.error };
+  const out = read.value;
   if (out.length > MAX_TEMPERATURES) return { error: `At most ${MAX_TEMPERATURES} temperatures; ${out.length} were given.` };
   return { value: out };
 }

@@ -124,7 +124,7 @@ def test_indices_temperatures_and_plots_equal_the_core(page: Page, watch):
 def test_bad_inputs_get_their_message_and_no_stale_figures(page: Page, watch):
     open_scale(page, "#preset=hard-well-scale")
     page.fill("#scale-temperatures", "60, 150")
-    expect(page.locator("#scale-temperatures-error")).to_contain_text("outside 0 to 100")
+    expect(page.locator("#scale-temperatures-error")).to_contain_text("must be from 0 to 100 °C (you entered 150)")
     expect(page.locator("#scale-indices tbody tr")).to_have_count(0)
     expect(page.locator("#scale-results")).to_have_attribute("data-state", "empty")
     page.fill("#scale-temperatures", "")

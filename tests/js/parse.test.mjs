@@ -124,3 +124,25 @@ test("inputs named in words from their path, with the core's words or without th
   }
   setFieldWords(null);
 });
+
+test("temperature lists: ';', ', ' or spaces between them, °F and K, decimal commas", async () => {
+  const { parseTemperatureList, setLimits } = await import("../../site/parse.js");
+  setLimits(null);
+  assert.deepEqual(parseTemperatureList("60; 100").value, [60, 100]);
+  assert.deepEqual(parseTemperatureList("60, 100").value, [60, 100]);
+  assert.deepEqual(parseTemperatureList("60 100").value, [60, 100]);
+  assert.deepEqual(parseTemperatureList("").value, []);
+  // 140 °F = 60 °C and 212 °F = 100 °C: (F - 32) x 5/9, the definition of the Fahrenheit scale
+  const f = parseTemperatureList("140 °F; 212 °F").value;
+  assert.ok(Math.abs(f[0] - 60) < 1e-12 && Math.abs(f[1] - 100) < 1e-12, String(f));
+  const g = parseTemperatureList("140F 212F").value;
+  assert.ok(Math.abs(g[0] - 60) < 1e-12 && Math.abs(g[1] - 100) < 1e-12, String(g));
+  assert.deepEqual(parseTemperatureList("12,5; 60,5").value, [12.5, 60.5]);
+  assert.deepEqual(parseTemperatureList("12,5").value, [12.5]);
+  assert.ok(Math.abs(parseTemperatureList("333,15 K").value[0] - 60) < 1e-9); // 0 °C = 273.15 K (SI)
+  assert.match(parseTemperatureList("60; warm").error, /"warm" is not a temperature/);
+  setLimits({ pH: [0, 14], temperature_C: [0, 100] });
+  assert.equal(parseTemperatureList("60; 300").error, "Each temperature must be from 0 to 100 °C (you entered 300).");
+  assert.match(parseTemperatureList("250 °F").error, /from 0 to 100 °C \(you entered 250 °F\)/);
+  setLimits(null);
+});
