@@ -116,13 +116,15 @@ export const REPORT_CAUTIONS = [
 
 /** Unit suffixes of state keys (the core's naming: the unit is in the key) -> the unit shown. */
 const KEY_UNITS = [
-  ["_mg_per_L_as_CaCO3", "mg/L as CaCO₃"], ["_uS_per_cm", "µS/cm"], ["_kg_per_L", "kg/L"], ["_mg_per_L", "mg/L"],
-  ["_per_L", "per L"], ["_pct", "%"], ["_atm", "atm"], ["_mL", "mL"], ["_M", "mol/L"], ["_N", "eq/L"],
+  ["_mg_per_L_as_CaCO3", "mg/L as CaCO₃"], ["_mg_per_L_as_P", "mg/L as P"], ["_uS_per_cm", "µS/cm"],
+  ["_kg_per_L", "kg/L"], ["_mg_per_L", "mg/L"], ["_per_L", "per L"], ["_pct", "%"], ["_atm", "atm"], ["_mL", "mL"],
+  ["_M", "mol/L"], ["_N", "eq/L"],
   ["_C", "°C"], ["_F", "°F"],
 ];
 /** Words for keys whose plain form reads badly. */
 const KEY_WORDS = {
-  pH: "pH", pKa: "pKa", to_pH: "to pH", from_pH: "from pH", target_pH: "target pH", pCO2: "CO₂ partial pressure",
+  pH: "pH", pKa: "pKa", to_pH: "to pH", from_pH: "from pH", target_pH: "target pH", fixed_pH: "fixed pH",
+  pCO2: "CO₂ partial pressure",
   CO2_partial_pressure_atm: "CO₂ partial pressure", total_M: "total concentration", log_scale: "logarithmic axis",
   plot_system: "system plotted", charge: "charge of the most protonated form",
 };

@@ -240,7 +240,7 @@ export function mountLead({ py, view, plot, water }) {
       const raw = view.read();
       return {
         axis: raw["lead-axis"], from: stateNumber(raw["lead-from"]), to: stateNumber(raw["lead-to"]),
-        orthophosphate_mg_per_L_as_P: stateNumber(raw["lead-dose"]), fixed_pH: stateNumber(raw["lead-fixed-ph"]),
+        orthophosphate_dose_mg_per_L_as_P: stateNumber(raw["lead-dose"]), fixed_pH: stateNumber(raw["lead-fixed-ph"]),
         lead_solids: raw["lead-lead-solids"], copper_solids: raw["lead-copper-solids"],
       };
     },
@@ -257,7 +257,7 @@ export function mountLead({ py, view, plot, water }) {
       view.setAxis(view.read()["lead-axis"], spec.words);
       put("lead-from", obj.from === undefined ? spec.from : obj.from, "from");
       put("lead-to", obj.to === undefined ? spec.to : obj.to, "to");
-      put("lead-dose", obj.orthophosphate_mg_per_L_as_P, "orthophosphate dose");
+      put("lead-dose", obj.orthophosphate_dose_mg_per_L_as_P, "orthophosphate dose");
       put("lead-fixed-ph", obj.fixed_pH, "fixed pH");
       put("lead-lead-solids", obj.lead_solids, "lead solids");
       put("lead-copper-solids", obj.copper_solids, "copper solids");

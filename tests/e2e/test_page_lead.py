@@ -204,7 +204,7 @@ def test_a_link_carries_the_job_inputs(page: Page, watch):
     page.fill("#lead-fixed-ph", "7.8")
     redrawn(page, before)
     state = page.evaluate(STATE)
-    assert state["lead"] == {"axis": "DIC", "from": 1, "to": 100, "orthophosphate_mg_per_L_as_P": 0.8,
+    assert state["lead"] == {"axis": "DIC", "from": 1, "to": 100, "orthophosphate_dose_mg_per_L_as_P": 0.8,
                              "fixed_pH": 7.8, "lead_solids": "all", "copper_solids": "all"}
     link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
     page.goto("about:blank")
