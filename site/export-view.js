@@ -148,8 +148,8 @@ function allCanvases(root) {
 
 /**
  * A plot as a PNG data URL for the report: its canvas layers on white, or null when it has
- * not been drawn. A plot on screen keeps its layout; one in a job put away is drawn at the
- * size its canvases last had.
+ * not been drawn or is not on screen (a job put away has no height, and Bokeh leaves its
+ * legend without text there).
  *
  * @param {Element} host  the plot's host element
  * @returns {string|null}
@@ -158,23 +158,22 @@ export function plotDataUrl(host) {
   const layers = allCanvases(host);
   if (!layers.length) return null;
   const box = host.getBoundingClientRect();
-  const onScreen = box.width > 0 && box.height > 0 && layers[0].getBoundingClientRect().width > 0;
-  const scale = onScreen ? layers[0].width / layers[0].getBoundingClientRect().width : 1;
+  const shown = !host.closest(".job-off, [inert], [hidden]") &&
+    (typeof host.checkVisibility !== "function" || host.checkVisibility({ visibilityProperty: true, opacityProperty: true }));
+  const onScreen = shown && box.width > 0 && box.height > 0 && layers[0].getBoundingClientRect().width > 0;
+  if (!onScreen) return null;
+  const scale = layers[0].width / layers[0].getBoundingClientRect().width;
   const out = host.ownerDocument.createElement("canvas");
-  out.width = onScreen ? Math.round(box.width * scale) : Math.max(...layers.map((c) => c.width));
-  out.height = onScreen ? Math.round(box.height * scale) : Math.max(...layers.map((c) => c.height));
+  out.width = Math.round(box.width * scale);
+  out.height = Math.round(box.height * scale);
   if (!out.width || !out.height) return null;
   const ctx = out.getContext("2d");
   ctx.fillStyle = "#ffffff";
   ctx.fillRect(0, 0, out.width, out.height);
   for (const layer of layers) {
-    if (onScreen) {
-      const r = layer.getBoundingClientRect();
-      if (!r.width || !r.height) continue;
-      ctx.drawImage(layer, (r.left - box.left) * scale, (r.top - box.top) * scale, r.width * scale, r.height * scale);
-    } else {
-      ctx.drawImage(layer, 0, 0);
-    }
+    const r = layer.getBoundingClientRect();
+    if (!r.width || !r.height) continue;
+    ctx.drawImage(layer, (r.left - box.left) * scale, (r.top - box.top) * scale, r.width * scale, r.height * scale);
   }
   return out.toDataURL("image/png");
 }
@@ -268,7 +267,11 @@ export async function fillReport(doc, report, { state, link, versions, manifest 
       const url = plotDataUrl(hosts[i]);
       const figure = clone.closest("figure");
       if (!url) {
-        (figure && copy.contains(figure) ? figure : clone).remove();
+        const drawn = allCanvases(hosts[i]).length > 0;
+        const name = figure?.querySelector("figcaption")?.firstChild?.textContent?.trim() || "A plot";
+        const note = drawn ? el(doc, "p", `${name}: plot left out, its job is not in view (show that job, then print).`, "report-note") : null;
+        if (note) (figure && copy.contains(figure) ? figure : clone).replaceWith(note);
+        else (figure && copy.contains(figure) ? figure : clone).remove();
         return;
       }
       const img = el(doc, "img", undefined, "report-plot");

@@ -43,6 +43,13 @@ def test_report_for_filing_with_a_short_link(page: Page, context, watch):
     page.fill("#dose-flow", "4000")
     page.wait_for_function("() => document.querySelector('#dose-feed-L-per-h').dataset.value !== ''", timeout=30_000)
     settled(page)
+    # the operator then looks at the titration and prints from there: the dose worked out for this
+    # water stays in the report, and the plots on screen go in as images
+    show_job(page, "titrate")
+    page.wait_for_function("() => Number(document.querySelector('#treatment-section').dataset.bufferDrawn || 0) > 0"
+                           " && Number(document.querySelector('#treatment-section').dataset.titrationDrawn || 0) > 0",
+                           timeout=60_000)
+    settled(page)
     print_report(page)
     report = page.locator("#report")
 
@@ -79,7 +86,9 @@ def test_report_for_filing_with_a_short_link(page: Page, context, watch):
 
     # the plots of the job in view, as images that were drawn (not blank)
     images = report.locator("img.report-plot")
-    assert images.count() >= 1
+    alts = images.evaluate_all("imgs => imgs.map((i) => i.alt)")
+    assert any(a.startswith("pH as the titrant goes in") for a in alts), alts
+    assert any(a.startswith("Buffer intensity against pH") for a in alts), alts
     sizes = images.evaluate_all("imgs => imgs.map((i) => [i.naturalWidth, i.naturalHeight, i.src.length])")
     assert all(w > 100 and h > 100 and n > 2000 for w, h, n in sizes), sizes
     assert page.locator("#report [id]").count() == 0
