@@ -25,13 +25,16 @@ const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
 import { DISPLAY_UNITS, MASS_SCALE, MOLAR_SCALE } from "./catalogues.js";
 export { DISPLAY_UNITS };
 
-// The starting water is invented (not a real sample): a soft, slightly buffered water of
-// 2 mmol/L carbonate with 2 mmol/L sodium and 0.2 mmol/L chloride, at 25 °C.
+// The starting water is invented (not a real sample): a moderately hard, bicarbonate water of
+// 2.5 mmol/L carbonate, 1 mmol/L calcium, 0.3 mmol/L magnesium, 0.6 mmol/L sodium and
+// 0.8 mmol/L chloride at 25 °C, so that the headline shows the calcium carbonate indices too.
 const EXAMPLE = {
-  systems: [{ id: "carbonate", total: "2", unit: "mmol/L", name: "", pka: "", charge: "0" }],
+  systems: [{ id: "carbonate", total: "2.5", unit: "mmol/L", name: "", pka: "", charge: "0" }],
   ions: [
-    { id: "sodium", total: "2", unit: "mmol/L", name: "", charge: "1", mass: "" },
-    { id: "chloride", total: "0.2", unit: "mmol/L", name: "", charge: "-1", mass: "" },
+    { id: "calcium", total: "1", unit: "mmol/L", name: "", charge: "2", mass: "" },
+    { id: "magnesium", total: "0.3", unit: "mmol/L", name: "", charge: "2", mass: "" },
+    { id: "sodium", total: "0.6", unit: "mmol/L", name: "", charge: "1", mass: "" },
+    { id: "chloride", total: "0.8", unit: "mmol/L", name: "", charge: "-1", mass: "" },
   ],
 };
 
