@@ -21,8 +21,10 @@ pytestmark = pytest.mark.e2e
 
 BOOT_MS = 60_000
 
+# The water's plots are embedded first (the water is the page's first view), the one-acid
+# explorer's next: among the Bokeh documents with a source of this name, the explorer's is the second.
 READ_SOURCE = """(name) => {
-  for (const doc of Bokeh.documents) {
+  for (const doc of Bokeh.documents.filter((d) => d.get_model_by_name(name)).slice(1)) {
     const model = doc.get_model_by_name(name);
     if (!model) continue;
     const data = model.data instanceof Map ? Object.fromEntries(model.data) : model.data;

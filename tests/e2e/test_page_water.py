@@ -24,15 +24,15 @@ pytestmark = pytest.mark.e2e
 BOOT_MS = 60_000
 REL = 1e-9
 
-# The page embeds the distribution section's plots first, then this section's: among the
-# Bokeh documents that hold a source of this name, this section's is the second one.
+# The page embeds this section's plots first (the water is the first view), then the one-acid
+# explorer's: among the Bokeh documents that hold a source of this name, this section's is the first.
 READ_WATER_SOURCE = """(name) => {
   const found = [];
   for (const doc of Bokeh.documents) {
     const model = doc.get_model_by_name(name);
     if (model) found.push(model);
   }
-  const model = found[1];
+  const model = found[0];
   if (!model) return null;
   const data = model.data instanceof Map ? Object.fromEntries(model.data) : model.data;
   return {labels: Array.from(data.label), ys: Array.from(data.ys, (y) => Array.from(y))};
