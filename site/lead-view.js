@@ -20,9 +20,9 @@ const TEMPLATE = `
       <div class="field">
         <label for="lead-axis">Curve against</label>
         <select id="lead-axis" aria-describedby="lead-axis-error">
-          <option value="pH" selected>pH (at the water's DIC and orthophosphate)</option>
-          <option value="DIC">DIC (at a fixed pH)</option>
-          <option value="orthophosphate">Orthophosphate (at a fixed pH)</option>
+          <option value="pH" selected>pH, at the water's DIC and PO₄</option>
+          <option value="DIC">DIC, at a fixed pH</option>
+          <option value="orthophosphate">Orthophosphate, at a fixed pH</option>
         </select>
         <p id="lead-axis-error" class="error" aria-live="polite"></p>
       </div>
@@ -55,14 +55,14 @@ const TEMPLATE = `
         <label for="lead-lead-solids">Lead solids considered</label>
         <select id="lead-lead-solids" aria-describedby="lead-lead-solids-error">
           <option value="all" selected>Every lead solid of the database</option>
-          <option value="no-chloride">Without chloropyromorphite (hydroxypyromorphite for phosphate)</option>
+          <option value="no-chloride">Without chloropyromorphite</option>
         </select>
         <p id="lead-lead-solids-error" class="error" aria-live="polite"></p>
       </div>
       <div class="field">
         <label for="lead-copper-solids">Copper solids considered</label>
         <select id="lead-copper-solids" aria-describedby="lead-copper-solids-error">
-          <option value="all" selected>Every copper solid (aged scales included)</option>
+          <option value="all" selected>All copper solids, aged scales too</option>
           <option value="fresh">Copper(II) hydroxide only (new plumbing)</option>
         </select>
         <p id="lead-copper-solids-error" class="error" aria-live="polite"></p>

@@ -334,13 +334,18 @@ class MetalSolubilityPlot {
       }
       if (run) runs.push(run);
       if (bandRun.length) bandRuns.push(bandRun);
+      const xsAll = s.points.map((p) => p.x).filter(Number.isFinite);
+      const [lo, hi] = extent(xsAll);
+      const margin = 0.08 * (hi - lo); // a name centred on a point this close to an edge is cut off
       for (const r of runs) {
         lines.xs.push(r.pts.map((p) => p.x));
         lines.ys.push(r.pts.map((p) => p.y));
         lines.metal.push(s.metal);
         lines.label.push(s.label);
         lines.solid.push(r.solid ?? "");
-        const mid = r.pts[Math.floor(r.pts.length / 2)];
+        const middle = r.pts[Math.floor(r.pts.length / 2)].x;
+        const want = Math.min(Math.max(middle, lo + margin), hi - margin);
+        const mid = r.pts.reduce((best, p) => (Math.abs(p.x - want) < Math.abs(best.x - want) ? p : best));
         segs.x.push(mid.x);
         segs.y.push(mid.y);
         segs.text.push(r.solid ?? "");
