@@ -140,11 +140,17 @@ def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watc
 
 
 def test_water_without_calcium_or_magnesium_says_so(page: Page, watch):
-    # the page's own starting water holds neither
-    scenario_check = None
-    open_hardness(page, fragment="", wait=False)
-    scenario_check = page.evaluate(STATE)["water"]["scenario"]
-    assert not any(i.get("id") in ("calcium", "magnesium") for i in scenario_check.get("ions", []))
+    # the page's starting water with its calcium and magnesium taken out, opened from a link
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    state = page.evaluate(STATE)
+    ions = state["water"]["scenario"].get("ions", [])
+    state["water"]["scenario"]["ions"] = [i for i in ions if i.get("id") not in ("calcium", "magnesium")]
+    link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
+    page.goto("about:blank")
+    open_hardness(page, fragment=link[1:], wait=False)
+    scenario = page.evaluate(STATE)["water"]["scenario"]
+    assert not any(i.get("id") in ("calcium", "magnesium") for i in scenario.get("ions", []))
     expect(page.locator("#hardness-water-error")).to_contain_text("neither calcium nor magnesium", timeout=BOOT_MS)
     assert value(page, "#hardness-total") == ""
     assert page.locator("#hardness-endpoints tbody tr").count() == 0
