@@ -58,6 +58,7 @@ def shown_pH(page: Page) -> float:
 
 def edit(page: Page, selector: str, text: str) -> dict:
     """Type a new value into a water input as a user does; the requests it caused."""
+    assert page.input_value(selector) != text, "an edit must change the water"
     before = calls(page)
     page.fill(selector, text)
     settled(page)
@@ -67,8 +68,8 @@ def edit(page: Page, selector: str, text: str) -> dict:
 def test_one_request_per_edit_of_the_water_while_the_water_job_is_shown(page: Page, watch):
     open_page(page)
     show_job(page, "water")
-    for selector, text in (("#water-system-0-total", "3"), ("#water-temperature", "12"),
-                           ("#water-ion-0-total", "2.5"), ("#water-system-0-total", "1.2")):
+    for selector, text in (("#water-system-0-total", "3.17"), ("#water-temperature", "12.3"),
+                           ("#water-ion-0-total", "2.71"), ("#water-system-0-total", "1.23")):
         assert edit(page, selector, text) == {"water_view": 1}, selector
         # the answer on screen is the core's for what is typed now
         assert math.isclose(shown_pH(page), api.solve(core_scenario(page_scenario(page)))["pH"], rel_tol=1e-9)
@@ -132,5 +133,5 @@ def test_hidden_jobs_ask_nothing_and_are_computed_once_when_shown(page: Page, wa
     settled(page)
     assert sent_since(before, calls(page)) == {}
     # an edit of the water with the titration job in view: the water and that job's blocks only
-    sent = edit(page, "#water-system-0-total", "2.5")
+    sent = edit(page, "#water-system-0-total", "2.83")
     assert sent == {"water_view": 1, "titrate": 1, "buffer": 1}, sent
