@@ -216,7 +216,8 @@ export function labelTableCells(root) {
   const tables = new Set();
   const flush = () => {
     queued = false;
-    for (const table of tables) labelTable(table);
+    // the batch preview keeps its own scroll region (its rows never stack): not labelled
+    for (const table of tables) if (!table.closest(".batch-table-wrap")) labelTable(table);
     tables.clear();
   };
   const note = (node) => {
@@ -235,5 +236,6 @@ export function labelTableCells(root) {
       queueMicrotask(flush);
     }
   }).observe(root, { childList: true, subtree: true, characterData: true });
-  for (const table of root.querySelectorAll("table")) labelTable(table);
+  for (const table of root.querySelectorAll("table")) tables.add(table);
+  flush();
 }
