@@ -155,7 +155,7 @@ const MARKUP = `
       </dl>
       <div id="scale-dose-warnings" class="treat-warning" role="status" hidden></div>
       <aside class="cautions" aria-labelledby="scale-dose-cautions-title">
-        <h4 id="scale-dose-cautions-title">Before you change a chemical feed</h4>
+        <h4 id="scale-dose-cautions-title">Before you change a chemical feed to this dose</h4>
         <ul id="scale-dose-cautions"><li>Caustics, lime and acids burn skin and eyes; CO₂ can suffocate in enclosed spaces. Confirm any dose with a jar or bench test; guard against overfeed; local codes and licensed operators decide.</li></ul>
       </aside>
     </div>
@@ -182,7 +182,7 @@ const MARKUP = `
         </table>
       </div>
       <aside class="cautions" aria-labelledby="scale-steps-cautions-title">
-        <h4 id="scale-steps-cautions-title">Before you change a chemical feed</h4>
+        <h4 id="scale-steps-cautions-title">Before you dose these chemicals in sequence</h4>
         <ul id="scale-steps-cautions"><li>Confirm any dose with a jar or bench test; guard against overfeed; local codes and licensed operators decide.</li></ul>
       </aside>
     </div>
