@@ -45,7 +45,7 @@ def water_ph(page: Page, want: float) -> float:
     """Wait until the water section shows ``want`` (to round-off) and return the shown value."""
     page.wait_for_function(
         "(w) => { const v = Number(document.getElementById('water-ph').dataset.value);"
-        " return Math.abs(v - w) <= 1e-9 * Math.max(1, Math.abs(w)); }", arg=want, timeout=20_000)
+        " return Math.abs(v - w) <= 1e-9 * Math.max(1, Math.abs(w)); }", arg=want, timeout=60_000)
     return float(page.get_attribute("#water-ph", "data-value"))
 
 
@@ -97,7 +97,16 @@ def test_a_link_round_trips_to_the_same_inputs_and_numbers(page: Page, context, 
     water_ph(page, api.solve(core_scenario(hatchery["state"]["water"]["scenario"]))["pH"])
     show_job(page, "explorer")
     page.fill("#ph-input", "6.85")
-    page.wait_for_function(f"async () => ((await ({HASH_STATE})()) || {{distribution: {{}}}}).distribution.pH === 6.85")
+    # The link is written 300 ms after the edit (and compressed asynchronously). Playwright does
+    # not await a predicate's Promise (an async predicate is truthy at once), so each poll starts
+    # a read of the URL with the page's own reader and a later poll looks at what it found.
+    page.wait_for_function(
+        """(pH) => {
+             import('./share.js')
+               .then((m) => m.readFragmentAsync(location.hash, ['distribution', 'water', 'treatment']))
+               .then((r) => { window.__linked = r.kind === 'state' ? r.state : null; });
+             return window.__linked?.distribution?.pH === pH;
+           }""", arg=6.85, timeout=60_000)
     settled(page)
     first = state_of(page)
     assert first["distribution"]["pH"] == 6.85
