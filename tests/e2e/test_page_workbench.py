@@ -33,6 +33,7 @@ from acidscape.boundary import api
 pytestmark = pytest.mark.e2e
 
 BOOT_MS = 90_000
+WAIT_MS = 60_000  # for a result after an edit or a job shown: 2 cores shared by several runs
 PRESETS = {p["id"]: p for p in json.loads(
     (Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text())["presets"]}
 
@@ -138,7 +139,7 @@ def test_a_link_with_bad_values_keeps_every_valid_part_names_what_it_dropped_and
     for job, blocks in (("treat", ("dose",)), ("titrate", ("titration", "buffer"))):
         show_job(page, job)  # a job put away is worked out when it is shown
         for block in blocks:
-            expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current", timeout=30_000)
+            expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current", timeout=WAIT_MS)
 
     # One value far out of range (a hand-made link): named, the rest kept and computed.
     far = {"v": 2, "water": {"scenario": {"temperature_C": 1e16, "activity": "davies",
@@ -187,49 +188,49 @@ def test_a_link_draws_its_own_numbers_first_and_ready_means_applied(page: Page, 
 def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(page: Page, watch):
     open_at(page)
     good_pH = page.get_attribute("#water-ph", "data-value")
-    expect(page.locator("#water-results")).to_have_attribute("data-state", "current")
+    expect(page.locator("#water-results")).to_have_attribute("data-state", "current", timeout=WAIT_MS)
     show_job(page, "treat")  # a job computes when it is shown
-    expect(page.locator("#treatment-water")).to_contain_text("Working on the water above")
+    expect(page.locator("#treatment-water")).to_contain_text("Working on the water above", timeout=WAIT_MS)
 
     page.fill("#water-temperature", "warm")
-    expect(page.locator("#water-temperature-error")).to_contain_text("not a temperature")
-    settled(page)
+    expect(page.locator("#water-temperature-error")).to_contain_text("not a temperature", timeout=WAIT_MS)
+    settled(page, WAIT_MS)
     results = page.locator("#water-results")
-    expect(results).to_have_attribute("data-state", "stale")
-    expect(results.locator(".stale-note")).to_be_visible()
-    expect(results.locator(".stale-note")).to_contain_text("last valid water (pH")
+    expect(results).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
+    expect(results.locator(".stale-note")).to_be_visible(timeout=WAIT_MS)
+    expect(results.locator(".stale-note")).to_contain_text("last valid water (pH", timeout=WAIT_MS)
     assert page.get_attribute("#water-ph", "data-value") == good_pH  # kept, but marked
     marked = page.evaluate("""() => ({frame: getComputedStyle(document.querySelector('#water-results')).outlineStyle,
         plot: Number(getComputedStyle(document.querySelector('#plot-water-logc')).opacity)})""")
     assert marked["frame"] == "dashed" and marked["plot"] < 0.5
-    expect(page.locator("#treatment-water")).to_have_attribute("data-state", "stale")
-    expect(page.locator("#treatment-water")).to_contain_text("last valid water")
+    expect(page.locator("#treatment-water")).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
+    expect(page.locator("#treatment-water")).to_contain_text("last valid water", timeout=WAIT_MS)
     for block in ("titration", "buffer", "dose"):
-        expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "stale")
+        expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
     # a treatment input changed meanwhile: its new figures are still for the old water, so stale
     show_job(page, "treat")
     page.select_option("#dose-chemical", "Ca(OH)2")
     page.fill("#dose-target-ph", "8,4")
-    settled(page)
-    expect(page.locator("#dose-results")).to_have_attribute("data-state", "stale")
+    settled(page, WAIT_MS)
+    expect(page.locator("#dose-results")).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
 
     # A core refusal (out of range) is marked the same way.
     page.fill("#water-temperature", "150")
-    expect(page.locator("#water-temperature-error")).to_contain_text("must be from 0 to 100 °C")
-    settled(page)
-    expect(results).to_have_attribute("data-state", "stale")
+    expect(page.locator("#water-temperature-error")).to_contain_text("must be from 0 to 100 °C", timeout=WAIT_MS)
+    settled(page, WAIT_MS)
+    expect(results).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
 
     # A typed °F temperature with a decimal comma is read, and everything is current again.
     page.fill("#water-temperature", "59,9 °F")
-    settled(page)
-    expect(results).to_have_attribute("data-state", "current")
+    settled(page, WAIT_MS)
+    expect(results).to_have_attribute("data-state", "current", timeout=WAIT_MS)
     scenario = page_scenario(page)
     assert math.isclose(scenario["temperature_C"], 15.5, rel_tol=1e-12)  # (59.9 - 32) x 5/9
     assert math.isclose(value(page, "#water-ph"), solve(scenario)["pH"], rel_tol=1e-9)
     for job, blocks in (("treat", ("dose",)), ("titrate", ("titration", "buffer"))):
         show_job(page, job)  # a job put away is worked out when it is shown
         for block in blocks:
-            expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current", timeout=30_000)
+            expect(page.locator(f"#{block}-results")).to_have_attribute("data-state", "current", timeout=WAIT_MS)
     dose = page.evaluate("() => import('./state.js').then((m) => m.collectState().treatment.dose)")
     assert dose["target_pH"] == 8.4
     want = api.dose({"scenario": core_scenario(scenario), "chemical": "Ca(OH)2", "target_pH": 8.4})
@@ -238,12 +239,12 @@ def test_stale_results_are_marked_and_the_treatment_says_which_water_it_uses(pag
     # The species section: a bad pH marks its table and plots; "6,5" is read as 6.5.
     show_job(page, "explorer")
     page.fill("#ph-input", "six")
-    settled(page)
-    expect(page.locator("#distribution-results")).to_have_attribute("data-state", "stale")
+    settled(page, WAIT_MS)
+    expect(page.locator("#distribution-results")).to_have_attribute("data-state", "stale", timeout=WAIT_MS)
     page.fill("#ph-input", "6,5")
-    settled(page)
-    expect(page.locator("#distribution-results")).to_have_attribute("data-state", "current")
-    expect(page.locator("#species-caption")).to_contain_text("pH 6.50")
+    settled(page, WAIT_MS)
+    expect(page.locator("#distribution-results")).to_have_attribute("data-state", "current", timeout=WAIT_MS)
+    expect(page.locator("#species-caption")).to_contain_text("pH 6.50", timeout=WAIT_MS)
 
 
 def test_one_alkalinity_one_free_co2_strong_ions_in_mass_units_and_plain_feeds(page: Page, watch):
