@@ -134,6 +134,26 @@ def _quadrature(base: float, pairs: list[list[float]]) -> tuple[float, float]:
     return base - math.sqrt(down), base + math.sqrt(up)
 
 
+def _band_from_curves(grid: list[float], values: list, at: list[int], curves: dict,
+                      extra: float = 0.0) -> tuple[list, list]:
+    """(low, high) at every grid point from the curves of the perturbed inputs.
+
+    ``curves`` maps an input's name to its pair of curves (low and high input), each computed
+    at the grid indices ``at``; at each such index the deviations are added in quadrature
+    (with ``extra``, a symmetric spread of its own, when it is not zero), then :func:`_spread`
+    fills the points between.
+    """
+    dev = {}
+    for i, k in enumerate(at):
+        v = values[k]
+        pairs = [[c[0][i], c[1][i]] for c in curves.values() if c[0][i] is not None and c[1][i] is not None]
+        if extra:
+            pairs.append([v - extra, v + extra])
+        lo, hi = _quadrature(v, pairs)
+        dev[k] = (v - lo, hi - v)
+    return _spread(grid, values, at, dev)
+
+
 class _Chain:
     """A recipe balanced at successive pH values with the inert ion of the indices module.
 
@@ -265,14 +285,8 @@ def saturation_against_pH(wm: WaterModel, sol, *, pH_given: float | None = None,
     sub = [grid[k] for k in at]
     curves = {name: [curve(r, sub) for r in recs] for name, _, recs, _ in rows}
     _, ksp = ix._calcite_spread()
-    dev = {}
-    for i, k in enumerate(at):
-        v = lsi[k]
-        pairs = [[c[0][i], c[1][i]] for c in curves.values() if c[0][i] is not None and c[1][i] is not None]
-        pairs.append([v - ksp, v + ksp])  # LSI = log IAP - log Ks: a shift of log Ks moves it by minus the shift
-        lo, hi = _quadrature(v, pairs)
-        dev[k] = (v - lo, hi - v)
-    low, high = _spread(grid, lsi, at, dev)
+    # LSI = log IAP - log Ks: a shift of log Ks moves it by minus the shift
+    low, high = _band_from_curves(grid, lsi, at, curves, extra=ksp)
     result.update({"LSI_low": low, "LSI_high": high, "band": BAND_PH, "inputs": list(curves) + ["calcite Ksp"]})
     return result
 
@@ -384,13 +398,7 @@ def ccpp_against_temperature(wm: WaterModel, sol, *, pH_given: float | None = No
                 pair.append(curve(r2, sol2.state, sub)[0])
             if pair:
                 curves[name] = pair
-        dev = {}
-        for i, k in enumerate(at):
-            v = ccpp[k]
-            lo, hi = _quadrature(v, [[c[0][i], c[1][i]] for c in curves.values()
-                                     if c[0][i] is not None and c[1][i] is not None])
-            dev[k] = (v - lo, hi - v)
-        low, high = _spread(grid, ccpp, at, dev)
+        low, high = _band_from_curves(grid, ccpp, at, curves)
         result.update({"CCPP_low": low, "CCPP_high": high, "band": BAND_T, "inputs": list(curves)})
     result["notes"] = list(dict.fromkeys(notes))
     return result
