@@ -41,8 +41,6 @@ from bokeh.models import (
     ColumnDataSource,
     HoverTool,
     Label,
-    Legend,
-    LegendItem,
     LinearAxis,
     Range1d,
     Span,
@@ -51,7 +49,8 @@ from bokeh.plotting import figure
 from bokeh.core.property.vectorization import value
 from bokeh.transform import factor_cmap
 
-from plots import _FONT, _GRID, _INK, _MARKER, BASE_HEIGHT_PX, LEGEND_ROW_PX, PALETTE, _base_figure, _marker
+from plots import (_FONT, _GRID, _INK, _MARKER, BASE_HEIGHT_PX, LEGEND_ROW_PX, PALETTE, _base_figure, _legend,
+                   _marker, _style_axes)
 
 #: Metal -> line colour (plots.PALETTE: violet lead, amber copper, teal calcium, raspberry magnesium).
 METAL_COLOURS = {"lead": PALETTE[2], "copper": PALETTE[1], "calcium": PALETTE[0], "magnesium": PALETTE[4]}
@@ -59,39 +58,6 @@ METAL_COLOURS = {"lead": PALETTE[2], "copper": PALETTE[1], "calcium": PALETTE[0]
 
 def _cmap(field: str, metals: tuple[str, ...]):
     return factor_cmap(field, palette=[METAL_COLOURS[m] for m in metals], factors=list(metals))
-
-
-def _legend(name: str, renderer) -> Legend:
-    legend = Legend(
-        name=name,
-        items=[LegendItem(label={"field": "label"}, renderers=[renderer])],
-        location="center_left",
-        orientation="horizontal",
-        nrows=1,
-        label_text_font=_FONT,
-        label_text_font_size="12px",
-        label_text_color=_INK,
-        background_fill_alpha=0.0,
-        border_line_color=None,
-        click_policy="hide",
-        spacing=14,
-        padding=4,
-        glyph_width=22,
-    )
-    return legend
-
-
-def _style_axes(p) -> None:
-    for axis in (p.xaxis, p.yaxis):
-        axis.axis_label_text_font = _FONT
-        axis.axis_label_text_font_style = "normal"
-        axis.axis_label_text_font_size = "13px"
-        axis.axis_label_text_color = _INK
-        axis.major_label_text_font = _FONT
-        axis.major_label_text_font_size = "12px"
-        axis.major_label_text_color = _INK
-        axis.axis_line_color = _MARKER
-        axis.major_tick_line_color = _MARKER
 
 
 def lead_solubility_plot():

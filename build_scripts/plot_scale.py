@@ -45,46 +45,42 @@ def _strip_pan(p) -> None:
     p.tools = [t for t in p.tools if type(t).__name__ not in ("PanTool", "WheelZoomTool")]
 
 
-def saturation_plot():
-    """Calcite saturation index (LSI) against pH, band of the usual uncertainties, the water marked."""
-    p = _base_figure("scale_si_fig", "saturation index of calcite (LSI)", Range1d(-2, 2, name="scale_si_y"))
-    p.x_range = Range1d(6, 10.5, name="scale_si_x")
-    p.xaxis.axis_label = "pH (calcium and DIC kept)"
+def _band_plot(key: str, y_label: str, y_range: tuple[float, float], x_range: tuple[float, float], x_label: str,
+               x: str, y: str, points_src: str, above: str, below: str, line_tips: list, dot_tips: list):
+    """A curve with its uncertainty band (source ``scale_<key>_src``: x, y, low, high), points
+    marked as diamonds (source ``points_src``: x, y, label) and a named zero line; pan and wheel
+    zoom removed."""
+    p = _base_figure(f"scale_{key}_fig", y_label, Range1d(*y_range, name=f"scale_{key}_y"))
+    p.x_range = Range1d(*x_range, name=f"scale_{key}_x")
+    p.xaxis.axis_label = x_label
     p.xaxis.ticker.desired_num_ticks = 10
     _strip_pan(p)
-    src = ColumnDataSource(data={"pH": [], "LSI": [], "low": [], "high": []}, name="scale_si_src")
-    p.varea("pH", "low", "high", source=src, fill_color=BAND, fill_alpha=0.22)
-    line = p.line("pH", "LSI", source=src, line_width=2.6, line_color=LINE)
-    water = ColumnDataSource(data={"pH": [], "LSI": [], "label": []}, name="scale_si_water_src")
-    dot = p.scatter("pH", "LSI", source=water, size=11, marker="diamond", fill_color=POINT, line_color=_INK,
-                    line_width=1.0)
-    _zero(p, "deposits calcium carbonate", "dissolves calcium carbonate")
-    p.add_tools(HoverTool(renderers=[line], mode="vline",
-                          tooltips=[("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}"), ("range", "@low{+0.00} to @high{+0.00}")]))
-    p.add_tools(HoverTool(renderers=[dot], tooltips=[("", "@label"), ("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}")]))
+    src = ColumnDataSource(data={x: [], y: [], "low": [], "high": []}, name=f"scale_{key}_src")
+    p.varea(x, "low", "high", source=src, fill_color=BAND, fill_alpha=0.22)
+    line = p.line(x, y, source=src, line_width=2.6, line_color=LINE)
+    pts = ColumnDataSource(data={x: [], y: [], "label": []}, name=points_src)
+    dots = p.scatter(x, y, source=pts, size=11, marker="diamond", fill_color=POINT, line_color=_INK,
+                     line_width=1.0)
+    _zero(p, above, below)
+    p.add_tools(HoverTool(renderers=[line], mode="vline", tooltips=line_tips))
+    p.add_tools(HoverTool(renderers=[dots], tooltips=dot_tips))
     return p
+
+
+def saturation_plot():
+    """Calcite saturation index (LSI) against pH, band of the usual uncertainties, the water marked."""
+    return _band_plot("si", "saturation index of calcite (LSI)", (-2, 2), (6, 10.5), "pH (calcium and DIC kept)",
+                      "pH", "LSI", "scale_si_water_src", "deposits calcium carbonate", "dissolves calcium carbonate",
+                      [("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}"), ("range", "@low{+0.00} to @high{+0.00}")],
+                      [("", "@label"), ("pH", "@pH{0.00}"), ("LSI", "@LSI{+0.00}")])
 
 
 def ccpp_plot():
     """CCPP [mg/L as CaCO3] of the closed water against temperature, band, chosen temperatures marked."""
-    p = _base_figure("scale_ccpp_fig", "CCPP (mg/L as CaCO₃)", Range1d(-10, 10, name="scale_ccpp_y"))
-    p.x_range = Range1d(0, 100, name="scale_ccpp_x")
-    p.xaxis.axis_label = "temperature (°C), closed water"
-    p.xaxis.ticker.desired_num_ticks = 10
-    _strip_pan(p)
-    src = ColumnDataSource(data={"t": [], "ccpp": [], "low": [], "high": []}, name="scale_ccpp_src")
-    p.varea("t", "low", "high", source=src, fill_color=BAND, fill_alpha=0.22)
-    line = p.line("t", "ccpp", source=src, line_width=2.6, line_color=LINE)
-    pts = ColumnDataSource(data={"t": [], "ccpp": [], "label": []}, name="scale_ccpp_pts_src")
-    dots = p.scatter("t", "ccpp", source=pts, size=11, marker="diamond", fill_color=POINT, line_color=_INK,
-                     line_width=1.0)
-    _zero(p, "can deposit", "would dissolve")
-    p.add_tools(HoverTool(renderers=[line], mode="vline",
-                          tooltips=[("°C", "@t{0.0}"), ("CCPP", "@ccpp{+0.0} mg/L as CaCO₃"),
-                                    ("range", "@low{+0.0} to @high{+0.0}")]))
-    p.add_tools(HoverTool(renderers=[dots], tooltips=[("", "@label"), ("°C", "@t{0.0}"),
-                                                      ("CCPP", "@ccpp{+0.0} mg/L as CaCO₃")]))
-    return p
+    return _band_plot("ccpp", "CCPP (mg/L as CaCO₃)", (-10, 10), (0, 100), "temperature (°C), closed water",
+                      "t", "ccpp", "scale_ccpp_pts_src", "can deposit", "would dissolve",
+                      [("°C", "@t{0.0}"), ("CCPP", "@ccpp{+0.0} mg/L as CaCO₃"), ("range", "@low{+0.0} to @high{+0.0}")],
+                      [("", "@label"), ("°C", "@t{0.0}"), ("CCPP", "@ccpp{+0.0} mg/L as CaCO₃")])
 
 
 #: Template name -> function (plots.JOB_PLOT_MODULES registers this module).

@@ -107,6 +107,16 @@ def _base_figure(name: str, y_label: str, y_range: Range1d) -> figure:
     p.toolbar.logo = None
     p.toolbar.autohide = True
     p.toolbar_inner = True  # float over the frame instead of reserving a strip
+    _style_axes(p)
+    for axis in (p.xaxis, p.yaxis):
+        axis.minor_tick_line_color = None
+    p.xaxis.ticker.desired_num_ticks = 14
+    p.grid.grid_line_color = _GRID
+    return p
+
+
+def _style_axes(p) -> None:
+    """The page's font, ink and marker colour on both axes' labels, lines and major ticks."""
     for axis in (p.xaxis, p.yaxis):
         axis.axis_label_text_font = _FONT
         axis.axis_label_text_font_style = "normal"
@@ -117,10 +127,26 @@ def _base_figure(name: str, y_label: str, y_range: Range1d) -> figure:
         axis.major_label_text_color = _INK
         axis.axis_line_color = _MARKER
         axis.major_tick_line_color = _MARKER
-        axis.minor_tick_line_color = None
-    p.xaxis.ticker.desired_num_ticks = 14
-    p.grid.grid_line_color = _GRID
-    return p
+
+
+def _legend(name: str, renderer) -> Legend:
+    """One-row legend below a plot: an entry per value of the source's ``label`` field, click hides."""
+    return Legend(
+        name=name,
+        items=[LegendItem(label={"field": "label"}, renderers=[renderer])],
+        location="center_left",
+        orientation="horizontal",
+        nrows=1,
+        label_text_font=_FONT,
+        label_text_font_size="12px",
+        label_text_color=_INK,
+        background_fill_alpha=0.0,
+        border_line_color=None,
+        click_policy="hide",
+        spacing=14,
+        padding=4,
+        glyph_width=22,
+    )
 
 
 def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: str, legend_name: str,
@@ -138,23 +164,7 @@ def _species_lines(p: figure, source: ColumnDataSource, y_format: str, y_name: s
         hover_line_color=transform("slot", mapper),
         hover_line_alpha=1.0,
     )
-    legend = Legend(
-        name=legend_name,
-        items=[LegendItem(label={"field": "label"}, renderers=[lines])],
-        location="center_left",
-        orientation="horizontal",
-        nrows=1,
-        label_text_font=_FONT,
-        label_text_font_size="12px",
-        label_text_color=_INK,
-        background_fill_alpha=0.0,
-        border_line_color=None,
-        click_policy="hide",
-        spacing=14,
-        padding=4,
-        glyph_width=22,
-    )
-    p.add_layout(legend, "below")
+    p.add_layout(_legend(legend_name, lines), "below")
     p.add_tools(
         HoverTool(
             renderers=[lines],
