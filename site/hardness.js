@@ -7,6 +7,7 @@ import { CoreError } from "./py.js";
 import { parseNumber, parsePH, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
+import { askInitialWater, staleWaterNote } from "./job.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 
@@ -182,9 +183,7 @@ export function mountHardness({ py, view, plots, water }) {
     run();
   });
   water.onStale?.((note, result) => {
-    waterNote = result
-      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}).`
-      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    waterNote = staleWaterNote(result, "figures");
     view.setWater(waterNote, true);
     for (const [name, b] of [["titration", titration], ["conditional", conditional]]) {
       b.cancel();
@@ -229,14 +228,10 @@ export function mountHardness({ py, view, plots, water }) {
 
   view.setWater(describe(null));
   // Mounted after the water's first result: ask for that water's figures once (a later solve wins).
-  const initial = current.scenario;
-  if (initial) {
-    py.call("solve", initial).then((result) => {
-      if (current.result || current.scenario !== initial) return;
-      current = { scenario: initial, result };
-      view.setWater(describe(result));
-      run();
-    }).catch(() => {}); // the water section shows its own failure
-  }
+  askInitialWater(py, () => current, (scenario, result) => {
+    current = { scenario, result };
+    view.setWater(describe(result));
+    run();
+  });
   return { refresh };
 }

@@ -8,6 +8,7 @@ import { CoreError } from "./py.js";
 import { parseNumber, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
+import { askInitialWater, staleWaterNote } from "./job.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 
@@ -208,9 +209,7 @@ export function mountLead({ py, view, plot, water }) {
     run();
   });
   water.onStale?.((note, result) => {
-    waterNote = result
-      ? `Not updated: the water above has an input that cannot be used. These curves are for the last valid water (pH ${fixed(result.pH, 2)}).`
-      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    waterNote = staleWaterNote(result, "curves");
     view.setWater(waterNote, true);
     block.cancel();
     if (drawn) view.setResultState("stale", waterNote);
@@ -269,14 +268,10 @@ export function mountLead({ py, view, plot, water }) {
   view.setAxis("pH", LEAD_AXES.pH.words);
   view.setWater(describe(null));
   // Mounted after the water's first result: ask for that water's figures once (a later solve wins).
-  const initial = current.scenario;
-  if (initial) {
-    py.call("solve", initial).then((result) => {
-      if (current.result || current.scenario !== initial) return;
-      current = { scenario: initial, result };
-      view.setWater(describe(result));
-      run();
-    }).catch(() => {}); // the water section shows its own failure
-  }
+  askInitialWater(py, () => current, (scenario, result) => {
+    current = { scenario, result };
+    view.setWater(describe(result));
+    run();
+  });
   return { refresh };
 }

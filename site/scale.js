@@ -13,6 +13,7 @@
 
 import { CoreError } from "./py.js";
 import { fixed } from "./format.js";
+import { staleWaterNote } from "./job.js";
 import { parseNumber, parseTemperatureList as readTemperatures } from "./parse.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
@@ -379,9 +380,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
   });
 
   water.onStale?.((note, result) => {
-    waterNote = result
-      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C).`
-      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    waterNote = staleWaterNote(result, "figures", true);
     view.setWater(waterNote, true);
     for (const [name, block] of Object.entries(blocks)) {
       block.cancel();

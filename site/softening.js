@@ -5,6 +5,7 @@
 
 import { CoreError } from "./py.js";
 import { fixed } from "./format.js";
+import { staleWaterNote } from "./job.js";
 import { parseNumber } from "./parse.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
@@ -126,9 +127,7 @@ export function mountSoftening({ py, view, water }) {
     refresh();
   });
   water.onStale?.((note, result) => {
-    waterNote = result
-      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}).`
-      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    waterNote = staleWaterNote(result, "figures");
     view.setWater(waterNote, true);
     block.cancel();
     view.setResultState("stale", waterNote);

@@ -16,6 +16,7 @@ import { parseNumber, stateNumber } from "./parse.js";
 import { computation } from "./section.js";
 import { totalAlkalinity } from "./water.js";
 import { isJobShown, onJobShown } from "./workbench.js";
+import { staleWaterNote } from "./job.js";
 
 /** The workbench job each block belongs to: a block computes only while its job is shown. */
 const JOB_OF = { titration: "titrate", buffer: "titrate", dose: "treat" };
@@ -460,9 +461,7 @@ export function mountTreatment({ py, view, plots, water, chemicals, systems }) {
   });
 
   water.onStale?.((note, result) => {
-    waterNote = result
-      ? `Not updated: the water above has an input that cannot be used. These figures are for the last valid water (pH ${fixed(result.pH, 2)}, ${fixed(result.temperature_C, 1)} °C).`
-      : "The water above has an input that cannot be used; nothing is computed here until it can.";
+    waterNote = staleWaterNote(result, "figures", true);
     view.setWater(waterNote, true);
     for (const name of Object.keys(blocks)) {
       blocks[name].cancel(); // an answer for the old water must not be drawn as current
