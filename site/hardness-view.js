@@ -4,6 +4,7 @@
 
 import { exportNumber, fixed } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
+import { byId, countDrawn, markBusy, mountBody, para, readInputs, showLines, showValue, showWater } from "./job-view.js";
 
 /** Input ids of the job, in form order; each has a #<id>-error beside it. */
 export const HARDNESS_INPUTS = ["hardness-sample", "hardness-edta", "hardness-ph"];
@@ -80,22 +81,13 @@ const TEMPLATE = `
   </div>
 `;
 
-function byId(doc, id) {
-  const el = doc.getElementById(id);
-  if (!el) throw new Error(`the page lacks #${id}`);
-  return el;
-}
-
 export class HardnessView {
   /** @param {Document} doc */
   constructor(doc) {
     this.doc = doc;
     this.section = byId(doc, "job-hardness");
-    const holder = doc.createElement("div");
-    holder.className = "job-body";
-    holder.style.gridColumn = "1 / -1"; // the whole width of the section's grid
-    holder.innerHTML = TEMPLATE; // static markup written here, no user text
-    this.section.append(holder);
+    // the whole width of the section's grid; static markup written here, no user text
+    mountBody(this.section, "job-body", TEMPLATE, { gridColumn: "1 / -1" });
     this.inputs = Object.fromEntries(HARDNESS_INPUTS.map((id) => [id, byId(doc, id)]));
     this.messages = new FieldMessages(doc, byId(doc, "hardness-form"), "hardness-error");
     this.waterLine = byId(doc, "hardness-water");
@@ -113,7 +105,7 @@ export class HardnessView {
 
   /** @returns {Record<string, string>} raw text of every input, by id */
   read() {
-    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.value]));
+    return readInputs(this.inputs);
   }
 
   write(id, value) {
@@ -127,7 +119,7 @@ export class HardnessView {
   }
 
   setBusy(flag) {
-    this.results.setAttribute("aria-busy", flag ? "true" : "false");
+    markBusy(this.results, flag);
   }
 
   /** @param {"titration"|"conditional"} block @param {"current"|"stale"|"empty"} state @param {string} [note] */
@@ -137,19 +129,15 @@ export class HardnessView {
 
   /** Count one drawn result of a block on the section (data-titration-drawn, data-conditional-drawn). */
   markDrawn(block) {
-    const key = `${block}Drawn`;
-    this.section.dataset[key] = String(Number(this.section.dataset[key] || 0) + 1);
+    countDrawn(this.section, `${block}Drawn`);
   }
 
   setWater(text, stale = false) {
-    this.waterLine.textContent = text;
-    this.waterLine.dataset.state = stale ? "stale" : "current";
+    showWater(this.waterLine, text, stale);
   }
 
   value(el, number, text) {
-    const has = number !== null && number !== undefined && Number.isFinite(number);
-    el.dataset.value = has ? String(number) : "";
-    el.textContent = text;
+    showValue(el, number, text, text); // the text stands whether or not there is a number
   }
 
   /**
@@ -166,14 +154,11 @@ export class HardnessView {
   }
 
   para(text) {
-    const p = this.doc.createElement("p");
-    p.textContent = text;
-    return p;
+    return para(this.doc, text);
   }
 
   setWarnings(lines) {
-    this.warnings.replaceChildren(...lines.map((line) => this.para(line)));
-    this.warnings.hidden = lines.length === 0;
+    showLines(this.warnings, lines);
   }
 
   cell(text, value, key) {

@@ -4,6 +4,9 @@
 
 import { exportNumber, fixed, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
+import {
+  byId, countDrawn, fillList, listen, markBusy, mountBody, para, readInputs, showLines, showWater, writeInput,
+} from "./job-view.js";
 
 /** Input ids of the job, in form order; each has a #<id>-error beside it. */
 export const LEAD_INPUTS = ["lead-axis", "lead-from", "lead-to", "lead-dose", "lead-fixed-ph", "lead-lead-solids",
@@ -117,22 +120,13 @@ const TEMPLATE = `
   </div>
 `;
 
-function byId(doc, id) {
-  const el = doc.getElementById(id);
-  if (!el) throw new Error(`the page lacks #${id}`);
-  return el;
-}
-
 export class LeadView {
   /** @param {Document} doc */
   constructor(doc) {
     this.doc = doc;
     this.section = byId(doc, "job-lead");
-    const holder = doc.createElement("div");
-    holder.className = "job-body";
-    holder.style.gridColumn = "1 / -1"; // the whole width of the section's grid
-    holder.innerHTML = TEMPLATE; // static markup written here, no user text
-    this.section.append(holder);
+    // the whole width of the section's grid; static markup written here, no user text
+    mountBody(this.section, "job-body", TEMPLATE, { gridColumn: "1 / -1" });
     this.inputs = Object.fromEntries(LEAD_INPUTS.map((id) => [id, byId(doc, id)]));
     this.messages = new FieldMessages(doc, byId(doc, "lead-form"), "lead-error");
     this.waterLine = byId(doc, "lead-water");
@@ -150,15 +144,12 @@ export class LeadView {
 
   /** @returns {Record<string, string>} raw text of every input, by id */
   read() {
-    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.value]));
+    return readInputs(this.inputs);
   }
 
   /** @returns {boolean} false when a select has no such option */
   write(id, value) {
-    const el = this.inputs[id];
-    if (el.tagName === "SELECT" && ![...el.options].some((o) => o.value === value)) return false;
-    el.value = value;
-    return true;
+    return writeInput(this.inputs[id], value);
   }
 
   /**
@@ -177,8 +168,8 @@ export class LeadView {
   }
 
   setBusy(flag) {
-    this.results.setAttribute("aria-busy", flag ? "true" : "false");
-    this.details.setAttribute("aria-busy", flag ? "true" : "false");
+    markBusy(this.results, flag);
+    markBusy(this.details, flag);
   }
 
   /** @param {"current"|"stale"|"empty"} state @param {string} [note] */
@@ -189,24 +180,20 @@ export class LeadView {
 
   /** Count one drawn result on the section (data-lead-drawn). */
   markDrawn() {
-    this.section.dataset.leadDrawn = String(Number(this.section.dataset.leadDrawn || 0) + 1);
+    countDrawn(this.section, "leadDrawn");
   }
 
   setWater(text, stale = false) {
-    this.waterLine.textContent = text;
-    this.waterLine.dataset.state = stale ? "stale" : "current";
+    showWater(this.waterLine, text, stale);
   }
 
   para(text) {
-    const p = this.doc.createElement("p");
-    p.textContent = text;
-    return p;
+    return para(this.doc, text);
   }
 
   /** @param {string[]} lines  the core's warnings */
   setWarnings(lines) {
-    this.warnings.replaceChildren(...lines.map((line) => this.para(line)));
-    this.warnings.hidden = lines.length === 0;
+    showLines(this.warnings, lines);
   }
 
   /** @param {string[]} lines  cautions that travel with a dose ([] hides them) */
@@ -215,11 +202,7 @@ export class LeadView {
     head.className = "caution-head";
     head.textContent = "Before changing orthophosphate or pH-adjustment feeds:";
     const list = this.doc.createElement("ul");
-    list.append(...lines.map((line) => {
-      const li = this.doc.createElement("li");
-      li.textContent = line;
-      return li;
-    }));
+    fillList(list, lines);
     this.cautions.replaceChildren(...(lines.length ? [head, list] : []));
     this.cautions.hidden = lines.length === 0;
   }
@@ -297,9 +280,7 @@ export class LeadView {
 
   /** @param {(id: string) => void} handler  an input changed */
   bindChange(handler) {
-    for (const [id, el] of Object.entries(this.inputs)) {
-      el.addEventListener(el.tagName === "SELECT" ? "change" : "input", () => handler(id));
-    }
+    listen(this.inputs, handler);
   }
 
   isChoice(id) {
