@@ -62,8 +62,21 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
     storage = null; // blocked by the browser's settings: recent scenarios are simply not kept
   }
   const recent = new RecentStore(storage);
-  let urlTimer = null;
-  let recentTimer = null;
+  // The link and the recent list are written when the page is idle after the debounce (a
+  // history entry and localStorage are slow to write): never in the way of a result being drawn.
+  let cancelUrl = () => {};
+  let cancelRecent = () => {};
+  const whenIdle = (fn, ms) => {
+    let idle = null;
+    const timer = win.setTimeout(() => {
+      if (typeof win.requestIdleCallback === "function") idle = win.requestIdleCallback(fn, { timeout: 1000 });
+      else fn();
+    }, ms);
+    return () => {
+      win.clearTimeout(timer);
+      if (idle !== null) win.cancelIdleCallback(idle);
+    };
+  };
   let currentPreset = null;
   let applying = false; // sections may report changes while a link is being applied: not edits
 
@@ -86,8 +99,8 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
   }
 
   function remember() {
-    clearTimeout(recentTimer);
-    recentTimer = setTimeout(() => {
+    cancelRecent();
+    cancelRecent = whenIdle(() => {
       const state = collectState();
       const title = currentPreset ? currentPreset.title : describeState(state);
       if (recent.add(encodeState(state), title)) view.setRecent(recent.list());
@@ -98,8 +111,8 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
     if (applying) return;
     currentPreset = null;
     view.showPreset(null);
-    clearTimeout(urlTimer);
-    urlTimer = setTimeout(writeCurrentLink, URL_DEBOUNCE_MS);
+    cancelUrl();
+    cancelUrl = whenIdle(writeCurrentLink, URL_DEBOUNCE_MS);
     remember();
   });
 
@@ -188,14 +201,14 @@ export function mountShare({ py, view, presets, manifest, versions, win, opened 
   });
 
   view.on("recent-clear", () => {
-    clearTimeout(recentTimer); // a scenario waiting to be kept is not added back after the clear
+    cancelRecent(); // a scenario waiting to be kept is not added back after the clear
     recent.clear();
     view.setRecent([]);
     view.message("info", "Your recent scenarios were removed from this browser.");
   });
 
   view.on("share-copy", async () => {
-    clearTimeout(urlTimer);
+    cancelUrl();
     if (!currentPreset) {
       linkSerial += 1; // an older link still being made must not overwrite this one
       writeLink(await encodeStateShort(collectState()));
