@@ -36,13 +36,10 @@
 import { fixed, plainNumber, prettyFormula, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
 import { FLOW_UNITS } from "./treatment-view.js";
-
-/** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
-function signedFixed(x, d) {
-  if (x === null || x === undefined || !Number.isFinite(x)) return "—";
-  const r = Number(x.toFixed(d));
-  return (r > 0 ? "+" : "") + fixed(r === 0 ? 0 : x, d);
-}
+import {
+  byId, countDrawn, field, fillList, flowField, fillOptions, isShown, markBusy, mountBody, numberCell, para, readInputs, rowHead,
+  showLines, showValue, showWater, signedFixed, writeInput,
+} from "./job-view.js";
 
 /** Quick temperatures a user adds with one click [°C] (common practice: what each stands for). */
 export const TEMPERATURE_PRESETS = [
@@ -69,18 +66,6 @@ const INDEX_ROWS = [
   ["CCPP_open", "CCPP, open to CO₂", "mg/L as CaCO₃", 1, true],
   ["pH_after_CCPP_open", "pH after the CCPP, open", "", 2, false],
 ];
-
-function field(id, label, unit, { value = "", hint = "", select = false, inputmode = "decimal" } = {}) {
-  const control = select
-    ? `<select id="${id}" aria-describedby="${id}-error"></select>`
-    : `<input id="${id}" type="text" inputmode="${inputmode}" spellcheck="false" value="${value}" aria-describedby="${id}-error">`;
-  return `<div class="field">
-      <label for="${id}">${label}${unit ? ` <span class="unit">(${unit})</span>` : ""}</label>
-      ${control}
-      ${hint ? `<p class="hint">${hint}</p>` : ""}
-      <p id="${id}-error" class="error" aria-live="polite"></p>
-    </div>`;
-}
 
 const MARKUP = `
   <p id="scale-water" class="treat-water" data-state="current"></p>
@@ -134,14 +119,7 @@ const MARKUP = `
       ${field("scale-dose-chemical", "Chemical", "", { select: true })}
       ${field("scale-dose-target-kind", "Target", "", { select: true })}
       ${field("scale-dose-target", "Target value", "LSI, or CCPP in mg/L as CaCO₃", { value: "0" })}
-      <div class="field treat-flow">
-        <label for="scale-dose-flow">Plant flow <span class="unit">(optional)</span></label>
-        <input id="scale-dose-flow" type="text" inputmode="decimal" spellcheck="false" value="" aria-describedby="scale-dose-flow-error">
-        <label for="scale-dose-flow-unit" class="visually-hidden">Flow unit</label>
-        <select id="scale-dose-flow-unit" aria-describedby="scale-dose-flow-unit-error"></select>
-        <p id="scale-dose-flow-error" class="error" aria-live="polite"></p>
-        <p id="scale-dose-flow-unit-error" class="error" aria-live="polite"></p>
-      </div>
+      ${flowField("scale-dose-flow")}
       <p id="scale-dose-error" class="error" aria-live="polite"></p>
     </form>
     <div class="results" id="scale-dose-results" data-state="empty">
@@ -207,12 +185,6 @@ const MARKUP = `
     </div>
   </div>`;
 
-function byId(doc, id) {
-  const el = doc.getElementById(id);
-  if (!el) throw new Error(`the page lacks #${id}`);
-  return el;
-}
-
 const BLEND_INPUTS = ["scale-blend-with", "scale-blend-f1", "scale-blend-f2"];
 const DOSE_INPUTS = ["scale-dose-chemical", "scale-dose-target-kind", "scale-dose-target", "scale-dose-flow", "scale-dose-flow-unit"];
 const INDEX_INPUTS = ["scale-temperatures", "scale-pco2"];
@@ -222,12 +194,9 @@ export class ScaleView {
   constructor(doc) {
     this.doc = doc;
     this.section = byId(doc, "job-scale");
-    const box = doc.createElement("div");
-    box.className = "job-body scale-body";
-    // the whole width of the section's grid (its first row is the heading)
-    Object.assign(box.style, { gridColumn: "1 / -1", display: "grid", gap: "0.9rem", minWidth: "0" });
-    box.innerHTML = MARKUP; // static markup only; no user or core text
-    this.section.append(box);
+    // the whole width of the section's grid (its first row is the heading); static markup only
+    mountBody(this.section, "job-body scale-body", MARKUP,
+      { gridColumn: "1 / -1", display: "grid", gap: "0.9rem", minWidth: "0" });
     this.inputs = Object.fromEntries([...INDEX_INPUTS, ...DOSE_INPUTS, ...BLEND_INPUTS].map((id) => [id, byId(doc, id)]));
     this.messages = {
       indices: new FieldMessages(doc, byId(doc, "scale-form"), "scale-error"),
@@ -250,12 +219,7 @@ export class ScaleView {
   }
 
   fill(select, pairs) {
-    select.replaceChildren(...pairs.map(([value, text]) => {
-      const o = this.doc.createElement("option");
-      o.value = value;
-      o.textContent = text;
-      return o;
-    }));
+    fillOptions(select, pairs);
   }
 
   /** @param {{id: string, name: string}[]} chemicals  the dosing chemicals (core "chemicals") */
@@ -272,7 +236,7 @@ export class ScaleView {
 
   /** @returns {Record<string, string>} raw text of the job's fixed inputs */
   read() {
-    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.value]));
+    return readInputs(this.inputs);
   }
 
   /** @returns {{chemical: string, kind: string, value: string}[]} the sequence's rows */
@@ -336,10 +300,7 @@ export class ScaleView {
    */
   write(id, value) {
     const el = this.inputs[id] ?? this.doc.getElementById(id);
-    if (!el) return false;
-    if (el.tagName === "SELECT" && ![...el.options].some((o) => o.value === value)) return false;
-    el.value = value;
-    return true;
+    return el ? writeInput(el, value) : false;
   }
 
   /** @param {"indices"|"dose"|"steps"} block @param {Record<string, string>} messages */
@@ -349,7 +310,7 @@ export class ScaleView {
 
   /** @param {"indices"|"dose"|"steps"} block @param {boolean} busy */
   setBusy(block, busy) {
-    this.results[block].setAttribute("aria-busy", busy ? "true" : "false");
+    markBusy(this.results[block], busy);
   }
 
   /** @param {"indices"|"dose"|"steps"} block @param {"current"|"stale"|"empty"} state @param {string} [note] */
@@ -359,30 +320,20 @@ export class ScaleView {
 
   /** Count one drawn result of a block (data-<block>-drawn on #job-scale). */
   markDrawn(block) {
-    const key = `${block}Drawn`;
-    this.section.dataset[key] = String(Number(this.section.dataset[key] || 0) + 1);
+    countDrawn(this.section, `${block}Drawn`);
   }
 
   /** @param {string} text @param {boolean} [stale] */
   setWater(text, stale = false) {
-    const el = byId(this.doc, "scale-water");
-    el.textContent = text;
-    el.dataset.state = stale ? "stale" : "current";
+    showWater(byId(this.doc, "scale-water"), text, stale);
   }
 
   para(text, tag = "p") {
-    const p = this.doc.createElement(tag);
-    p.textContent = text;
-    return p;
+    return para(this.doc, text, tag);
   }
 
   cell(text, value, key, tag = "td") {
-    const td = this.doc.createElement(tag);
-    if (tag === "td") td.className = "num";
-    td.dataset.key = key;
-    td.dataset.value = value === null || value === undefined || !Number.isFinite(value) ? "" : String(value);
-    td.textContent = text;
-    return td;
+    return numberCell(this.doc, text, value, key, tag);
   }
 
   /**
@@ -417,15 +368,7 @@ export class ScaleView {
       const v = values[key];
       const tr = this.doc.createElement("tr");
       tr.dataset.key = key;
-      const th = this.doc.createElement("th");
-      th.scope = "row";
-      th.append(label);
-      if (unit) {
-        const u = this.doc.createElement("span");
-        u.className = "unit";
-        u.textContent = ` (${unit})`;
-        th.append(u);
-      }
+      const th = rowHead(this.doc, label, unit);
       const fmt = (x) => (signed && x > 0 ? "+" : "") + fixed(x, digits);
       const range = ranges[key];
       const rangeCell = this.cell(range ? `${fmt(range[0])} to ${fmt(range[1])}` : "—", null, "range");
@@ -462,10 +405,7 @@ export class ScaleView {
   }
 
   value(id, number, text, empty = "—") {
-    const el = byId(this.doc, id);
-    const has = number !== null && number !== undefined && Number.isFinite(number);
-    el.dataset.value = has ? String(number) : "";
-    el.textContent = has ? text : empty;
+    showValue(byId(this.doc, id), number, text, empty);
   }
 
   /**
@@ -495,16 +435,13 @@ export class ScaleView {
       ? formed.map((s) => `${s.name} (${prettyFormula(s.formula)}) ${sciNumber(s.mg_per_L, 3)} mg/L` +
         (Number.isFinite(s.kg_per_d) ? `, ${plainNumber(s.kg_per_d)} kg/d` : "")).join("; ")
       : `nothing (allowed to form: ${(r.precipitation?.allowed ?? []).join(", ") || "none"})`;
-    const warnings = r?.warnings ?? [];
-    const box = byId(this.doc, "scale-dose-warnings");
-    box.replaceChildren(...warnings.map((t) => this.para(t)));
-    box.hidden = !warnings.length;
+    showLines(byId(this.doc, "scale-dose-warnings"), r?.warnings ?? []);
     if (r?.cautions?.length) this.setCautions("scale-dose-cautions", r.cautions);
   }
 
   /** @param {string} id  the list @param {string[]} lines  the core's cautions */
   setCautions(id, lines) {
-    byId(this.doc, id).replaceChildren(...lines.map((t) => this.para(t, "li")));
+    fillList(byId(this.doc, id), lines);
   }
 
   /**
@@ -562,10 +499,7 @@ export class ScaleView {
    */
   renderBlend(r) {
     const body = byId(this.doc, "scale-blend-table").tBodies[0];
-    const box = byId(this.doc, "scale-blend-warnings");
-    const warnings = r?.warnings ?? [];
-    box.replaceChildren(...warnings.map((t) => this.para(t)));
-    box.hidden = !warnings.length;
+    showLines(byId(this.doc, "scale-blend-warnings"), r?.warnings ?? []);
     if (!r) {
       body.replaceChildren();
       return;
@@ -585,16 +519,7 @@ export class ScaleView {
     body.replaceChildren(...quantities.map(([k, label, unit, fmt]) => {
       const tr = this.doc.createElement("tr");
       tr.dataset.key = k;
-      const th = this.doc.createElement("th");
-      th.scope = "row";
-      th.append(label);
-      if (unit) {
-        const u = this.doc.createElement("span");
-        u.className = "unit";
-        u.textContent = ` (${unit})`;
-        th.append(u);
-      }
-      tr.append(th, ...cols.map(([key, w]) => this.cell(fmt(w[k]), w[k], key)));
+      tr.append(rowHead(this.doc, label, unit), ...cols.map(([key, w]) => this.cell(fmt(w[k]), w[k], key)));
       return tr;
     }));
   }
@@ -630,7 +555,6 @@ export class ScaleView {
 
   /** @returns {boolean} whether the section is laid out (visible) now */
   isVisible() {
-    // a job put away by the workbench keeps its box (visibility: hidden, inert): not visible
-    return this.section.getClientRects().length > 0 && !this.section.hidden && !this.section.closest("[inert]");
+    return isShown(this.section);
   }
 }

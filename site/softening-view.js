@@ -19,25 +19,10 @@
 import { fixed, plainNumber, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
 import { FLOW_UNITS } from "./treatment-view.js";
-
-/** A signed number with fixed decimals ("+0.35", "−1.20", "0.00"; "—" when missing). */
-function signedFixed(x, d) {
-  if (x === null || x === undefined || !Number.isFinite(x)) return "—";
-  const r = Number(x.toFixed(d));
-  return (r > 0 ? "+" : "") + fixed(r === 0 ? 0 : x, d);
-}
-
-function field(id, label, unit, { value = "", hint = "", select = false } = {}) {
-  const control = select
-    ? `<select id="${id}" aria-describedby="${id}-error"></select>`
-    : `<input id="${id}" type="text" inputmode="decimal" spellcheck="false" value="${value}" aria-describedby="${id}-error">`;
-  return `<div class="field">
-      <label for="${id}">${label}${unit ? ` <span class="unit">(${unit})</span>` : ""}</label>
-      ${control}
-      ${hint ? `<p class="hint">${hint}</p>` : ""}
-      <p id="${id}-error" class="error" aria-live="polite"></p>
-    </div>`;
-}
+import {
+  byId, countDrawn, field, fillList, flowField, fillOptions, isShown, listen, markBusy, mountBody, numberCell, para, readInputs,
+  rowHead, showLines, showValue, showWater, signedFixed, writeInput,
+} from "./job-view.js";
 
 const MARKUP = `
   <p id="soften-water" class="treat-water" data-state="current"></p>
@@ -52,14 +37,7 @@ const MARKUP = `
       ${field("soften-recarb-kind", "Recarbonate with CO₂ to", "", { select: true })}
       ${field("soften-recarb-value", "Recarbonation target", "LSI, CCPP in mg/L as CaCO₃, or pH", { value: "0" })}
       ${field("soften-excess", "Excess lime of the textbook estimate", "meq/L, optional", { hint: "Empty: 1.25 meq/L with magnesium removal, none without (common practice)." })}
-      <div class="field treat-flow">
-        <label for="soften-flow">Plant flow <span class="unit">(optional)</span></label>
-        <input id="soften-flow" type="text" inputmode="decimal" spellcheck="false" value="" aria-describedby="soften-flow-error">
-        <label for="soften-flow-unit" class="visually-hidden">Flow unit</label>
-        <select id="soften-flow-unit" aria-describedby="soften-flow-unit-error"></select>
-        <p id="soften-flow-error" class="error" aria-live="polite"></p>
-        <p id="soften-flow-unit-error" class="error" aria-live="polite"></p>
-      </div>
+      ${flowField("soften-flow")}
       <p id="soften-error" class="error" aria-live="polite"></p>
     </form>
     <div class="results" id="soften-results" data-state="empty">
@@ -96,12 +74,6 @@ const MARKUP = `
     </div>
   </div>`;
 
-function byId(doc, id) {
-  const el = doc.getElementById(id);
-  if (!el) throw new Error(`the page lacks #${id}`);
-  return el;
-}
-
 export const SOFTEN_INPUTS = ["soften-mode", "soften-ph", "soften-lime", "soften-soda", "soften-target-hardness",
   "soften-recarb-kind", "soften-recarb-value", "soften-excess", "soften-flow", "soften-flow-unit"];
 
@@ -110,12 +82,9 @@ export class SofteningView {
   constructor(doc) {
     this.doc = doc;
     this.section = byId(doc, "job-softening");
-    const box = doc.createElement("div");
-    box.className = "job-body softening-body";
     // the whole width of the section's grid (its first row is the heading)
-    Object.assign(box.style, { gridColumn: "1 / -1", display: "grid", gap: "0.9rem", minWidth: "0" });
-    box.innerHTML = MARKUP; // static markup only
-    this.section.append(box);
+    mountBody(this.section, "job-body softening-body", MARKUP,
+      { gridColumn: "1 / -1", display: "grid", gap: "0.9rem", minWidth: "0" });
     this.inputs = Object.fromEntries(SOFTEN_INPUTS.map((id) => [id, byId(doc, id)]));
     this.messages = new FieldMessages(doc, byId(doc, "soften-form"), "soften-error");
     this.results = byId(doc, "soften-results");
@@ -126,25 +95,17 @@ export class SofteningView {
   }
 
   fill(id, pairs) {
-    this.inputs[id].replaceChildren(...pairs.map(([value, text]) => {
-      const o = this.doc.createElement("option");
-      o.value = value;
-      o.textContent = text;
-      return o;
-    }));
+    fillOptions(this.inputs[id], pairs);
   }
 
   /** @returns {Record<string, string>} raw text of every input, by id */
   read() {
-    return Object.fromEntries(Object.entries(this.inputs).map(([id, el]) => [id, el.value]));
+    return readInputs(this.inputs);
   }
 
   /** @returns {boolean} false when a select has no such option */
   write(id, value) {
-    const el = this.inputs[id];
-    if (el.tagName === "SELECT" && ![...el.options].some((o) => o.value === value)) return false;
-    el.value = value;
-    return true;
+    return writeInput(this.inputs[id], value);
   }
 
   showErrors(messages) {
@@ -152,7 +113,7 @@ export class SofteningView {
   }
 
   setBusy(busy) {
-    this.results.setAttribute("aria-busy", busy ? "true" : "false");
+    markBusy(this.results, busy);
   }
 
   setResultState(state, note) {
@@ -160,18 +121,15 @@ export class SofteningView {
   }
 
   markDrawn() {
-    this.section.dataset.softeningDrawn = String(Number(this.section.dataset.softeningDrawn || 0) + 1);
+    countDrawn(this.section, "softeningDrawn");
   }
 
   setWater(text, stale = false) {
-    const el = byId(this.doc, "soften-water");
-    el.textContent = text;
-    el.dataset.state = stale ? "stale" : "current";
+    showWater(byId(this.doc, "soften-water"), text, stale);
   }
 
   isVisible() {
-    // a job put away by the workbench keeps its box (visibility: hidden, inert): not visible
-    return this.section.getClientRects().length > 0 && !this.section.hidden && !this.section.closest("[inert]");
+    return isShown(this.section);
   }
 
   isChoice(id) {
@@ -180,31 +138,19 @@ export class SofteningView {
 
   /** @param {(id: string) => void} handler  an input changed */
   bindChange(handler) {
-    for (const [id, el] of Object.entries(this.inputs)) {
-      el.addEventListener(el.tagName === "SELECT" ? "change" : "input", () => handler(id));
-    }
+    listen(this.inputs, handler);
   }
 
   value(id, number, text, empty = "—") {
-    const el = byId(this.doc, id);
-    const has = number !== null && number !== undefined && Number.isFinite(number);
-    el.dataset.value = has ? String(number) : "";
-    el.textContent = has ? text : empty;
+    showValue(byId(this.doc, id), number, text, empty);
   }
 
   para(text, tag = "p") {
-    const p = this.doc.createElement(tag);
-    p.textContent = text;
-    return p;
+    return para(this.doc, text, tag);
   }
 
   cell(text, value, key, tag = "td") {
-    const td = this.doc.createElement(tag);
-    if (tag === "td") td.className = "num";
-    td.dataset.key = key;
-    td.dataset.value = value === null || value === undefined || !Number.isFinite(value) ? "" : String(value);
-    td.textContent = text;
-    return td;
+    return numberCell(this.doc, text, value, key, tag);
   }
 
   /** One recarbonation stage in words. */
@@ -251,10 +197,7 @@ export class SofteningView {
         byId(this.doc, id).dataset.value = "";
       }
     }
-    const warnings = r?.warnings ?? [];
-    const box = byId(this.doc, "soften-warnings");
-    box.replaceChildren(...warnings.map((t) => this.para(t)));
-    box.hidden = !warnings.length;
+    showLines(byId(this.doc, "soften-warnings"), r?.warnings ?? []);
     const comp = byId(this.doc, "soften-comparison").tBodies[0];
     const why = byId(this.doc, "soften-why");
     const waters = byId(this.doc, "soften-waters").tBodies[0];
@@ -275,15 +218,8 @@ export class SofteningView {
     comp.replaceChildren(...rows.filter(([k]) => c[k]).map(([k, label, unit]) => {
       const tr = this.doc.createElement("tr");
       tr.dataset.key = k;
-      const th = this.doc.createElement("th");
-      th.scope = "row";
-      th.append(label);
-      const u = this.doc.createElement("span");
-      u.className = "unit";
-      u.textContent = ` (${unit})`;
-      th.append(u);
       const d = c[k].difference;
-      tr.append(th, this.cell(fixed(c[k].equilibrium, 1), c[k].equilibrium, "equilibrium"),
+      tr.append(rowHead(this.doc, label, unit), this.cell(fixed(c[k].equilibrium, 1), c[k].equilibrium, "equilibrium"),
         this.cell(fixed(c[k].stoichiometric, 1), c[k].stoichiometric, "stoichiometric"),
         this.cell((d > 0 ? "+" : "") + fixed(d, 1), d, "difference"));
       return tr;
@@ -310,19 +246,10 @@ export class SofteningView {
     waters.replaceChildren(...quantities.map(([k, label, unit, d]) => {
       const tr = this.doc.createElement("tr");
       tr.dataset.key = k;
-      const th = this.doc.createElement("th");
-      th.scope = "row";
-      th.append(label);
-      if (unit) {
-        const u = this.doc.createElement("span");
-        u.className = "unit";
-        u.textContent = ` (${unit})`;
-        th.append(u);
-      }
-      tr.append(th, ...[["raw", before], ["softened", softened], ["after", after]].map(([key, w]) =>
+      tr.append(rowHead(this.doc, label, unit), ...[["raw", before], ["softened", softened], ["after", after]].map(([key, w]) =>
         this.cell(fixed(w?.[k], d), w?.[k], key)));
       return tr;
     }));
-    if (r.cautions?.length) byId(this.doc, "soften-cautions").replaceChildren(...r.cautions.map((t) => this.para(t, "li")));
+    if (r.cautions?.length) fillList(byId(this.doc, "soften-cautions"), r.cautions);
   }
 }

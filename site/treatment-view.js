@@ -4,12 +4,9 @@
 
 import { exportNumber, fixed, plainNumber, prettyFormula, sciNumber } from "./format.js";
 import { FieldMessages, markResults } from "./view.js";
-
-function byId(doc, id) {
-  const el = doc.getElementById(id);
-  if (!el) throw new Error(`the page lacks #${id}`);
-  return el;
-}
+import {
+  byId, countDrawn, fillList, markBusy, para, rowHead, showLines, showValue, showWater, writeInput,
+} from "./job-view.js";
 
 /** Input ids of each block, in form order; each has a #<id>-error beside it. */
 export const TITRATION_INPUTS = ["titrant-select", "titrant-conc", "titrant-conc-unit", "sample-volume", "titration-end-ph", "titration-axis"];
@@ -152,11 +149,7 @@ export class TreatmentView {
 
   /** @param {string[]} lines  one sentence per end point ("pH 4.5 end point: 12.3 mL → ...") */
   renderEndPoints(lines) {
-    this.endPoints.replaceChildren(...lines.map((line) => {
-      const li = this.doc.createElement("li");
-      li.textContent = line;
-      return li;
-    }));
+    fillList(this.endPoints, lines);
   }
 
   /**
@@ -171,9 +164,7 @@ export class TreatmentView {
       el.checked = String(value) === "true";
       return true;
     }
-    if (el.tagName === "SELECT" && ![...el.options].some((o) => o.value === value)) return false;
-    el.value = value;
-    return true;
+    return writeInput(el, value);
   }
 
   /**
@@ -188,7 +179,7 @@ export class TreatmentView {
 
   /** @param {"titration"|"buffer"|"dose"} block @param {boolean} busy */
   setBusy(block, busy) {
-    this.results[block].setAttribute("aria-busy", busy ? "true" : "false");
+    markBusy(this.results[block], busy);
   }
 
   /**
@@ -212,8 +203,7 @@ export class TreatmentView {
 
   /** Count one drawn result of a block on the section element (data-<block>-drawn). */
   markDrawn(block) {
-    const key = `${block}Drawn`;
-    this.section.dataset[key] = String(Number(this.section.dataset[key] || 0) + 1);
+    countDrawn(this.section, `${block}Drawn`);
   }
 
   /**
@@ -221,8 +211,7 @@ export class TreatmentView {
    * @param {boolean} [stale]  the water above cannot be used now: say so prominently
    */
   setWater(text, stale = false) {
-    this.waterLine.textContent = text;
-    this.waterLine.dataset.state = stale ? "stale" : "current";
+    showWater(this.waterLine, text, stale);
   }
 
   /** @param {string} text  hint under the titrant list */
@@ -237,14 +226,11 @@ export class TreatmentView {
 
   /** @param {string[]} lines  warnings about the titration ("" or [] hides the line) */
   setTitrationWarning(lines) {
-    this.titrationWarning.replaceChildren(...lines.map((line) => this.para(line)));
-    this.titrationWarning.hidden = lines.length === 0;
+    showLines(this.titrationWarning, lines);
   }
 
   para(text) {
-    const p = this.doc.createElement("p");
-    p.textContent = text;
-    return p;
+    return para(this.doc, text);
   }
 
   /**
@@ -364,15 +350,7 @@ export class TreatmentView {
           const c = change[key];
           const tr = this.doc.createElement("tr");
           tr.dataset.key = key;
-          const th = this.doc.createElement("th");
-          th.scope = "row";
-          th.append(label);
-          if (unit) {
-            const u = this.doc.createElement("span");
-            u.className = "unit";
-            u.textContent = ` (${unit})`;
-            th.append(u);
-          }
+          const th = rowHead(this.doc, label, unit);
           const sign = (v) => (v > 0 ? `+${fmt(v)}` : fmt(v));
           tr.append(th,
             this.cell(fmt(c.before), c.before, "before", exportNumber(inUnit(c.before))),
@@ -384,10 +362,7 @@ export class TreatmentView {
   }
 
   value(el, number, text, empty = "—") {
-    const has = number !== null && number !== undefined && Number.isFinite(number);
-    el.dataset.value = has ? String(number) : "";
-    el.textContent = has ? text : empty;
-    el.classList.toggle("missing", !has);
+    el.classList.toggle("missing", !showValue(el, number, text, empty));
   }
 
   /**
