@@ -225,10 +225,20 @@ def test_sequence_shows_the_water_after_each_step(page: Page, watch):
 
 
 def test_a_water_without_calcium_says_what_is_missing(page: Page, watch):
+    # the page's starting water with its calcium taken out, opened from a link (the starting
+    # water itself holds calcium and magnesium)
     page.goto("/")
     expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    state = page.evaluate(STATE)
+    ions = state["water"]["scenario"].get("ions", [])
+    state["water"]["scenario"]["ions"] = [i for i in ions if i.get("id") not in ("calcium", "Ca+2")]
+    link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
+    page.goto("about:blank")
+    page.goto("/" + link)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
     scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
-    assert core("solve", scenario)["calcium_carbonate"] is None  # the page's starting water
+    assert not any(i.get("id") in ("calcium", "Ca+2") for i in scenario.get("ions", []))
+    assert core("solve", scenario)["calcium_carbonate"] is None  # the core finds no calcium to work with
     show_job(page, "scale")
     expect(page.locator("#scale-error")).to_contain_text("need calcium and alkalinity", timeout=BOOT_MS)
     expect(page.locator("#scale-indices tbody tr")).to_have_count(0)

@@ -9,6 +9,7 @@ page's behaviour with bad input.
 
 from __future__ import annotations
 
+import base64
 import json
 import math
 
@@ -49,8 +50,17 @@ def water_drawn(page: Page) -> int:
     return int(page.locator("#water-section").get_attribute("data-drawn") or 0)
 
 
-def open_page(page: Page) -> None:
-    page.goto("/")
+# The water these tests build on (invented): carbonate 2 mmol/L, Na+ 2 mmol/L, Cl- 0.2 mmol/L,
+# 25 °C, opened from a link (the page's own starting water holds calcium and magnesium too).
+START = {"temperature_C": 25, "activity": "davies",
+         "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
+         "ions": [{"id": "sodium", "total": 2, "unit": "mmol/L"}, {"id": "chloride", "total": 0.2, "unit": "mmol/L"}]}
+START_LINK = "s=2." + base64.urlsafe_b64encode(json.dumps(
+    {"v": 2, "water": {"scenario": START, "display": {"unit": "mmol/L"}}}).encode()).decode().rstrip("=")
+
+
+def open_page(page: Page, fragment: str = "") -> None:
+    page.goto("/" + (f"#{fragment}" if fragment else ""))
     expect(page.locator("#water-section")).to_have_attribute("data-drawn", "1", timeout=BOOT_MS)
 
 
@@ -96,8 +106,8 @@ def assert_page_matches(page: Page, scenario: dict) -> dict:
 
 
 def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Page, watch):
-    open_page(page)
-    # The starting water (invented): carbonate 2 mmol/L, Na+ 2 mmol/L, Cl- 0.2 mmol/L, 25 °C.
+    open_page(page, START_LINK)
+    # The water opened from the link (START).
     start = {
         "temperature_C": 25, "activity": "davies",
         "systems": [{"id": "carbonate", "total": 2, "unit": "mmol/L"}],
@@ -183,7 +193,7 @@ def test_a_composition_typed_in_matches_the_core_and_the_trail_balances(page: Pa
 
 
 def test_measured_ph_and_alkalinity_and_a_fixed_ph(page: Page, watch):
-    open_page(page)
+    open_page(page, START_LINK)
     page.check("#water-measured")
     page.fill("#water-measured-ph", "7.6")
     page.select_option("#water-alk-unit", "meq/L")
