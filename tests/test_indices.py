@@ -434,3 +434,28 @@ def test_a_ccpp_that_does_not_converge_leaves_the_indices(monkeypatch):
     assert cc["LSI"] is not None and cc["CCPP_mg_per_L_as_CaCO3"] is None and cc["pH_after_CCPP"] is None
     assert any("CCPP not computed" in n for n in cc["notes"])
     assert any("CCPP not computed" in n for n in cc["at_temperatures"][1]["notes"])
+
+
+def test_a_water_that_cannot_be_balanced_at_its_pH_is_a_warning(monkeypatch):
+    """A water given at a fixed pH is held there by an inert ion corrected until the charge
+    balance closes; where it does not close (here: one solve allowed, the correction needs
+    more), the indices are left out with a warning saying why, and the water's own result at
+    its pH stays (a behaviour check: no reference number is involved)."""
+    from acidscape.boundary.api import read_water, water_model
+    from acidscape.errors import ConvergenceError
+    from acidscape.operations import indices
+
+    at_pH = indices._at_pH
+    monkeypatch.setattr(indices, "_at_pH", lambda *a, **k: at_pH(*a, **{**k, "tries": 1}))
+    out = solve(scenario(25.0, *HARD, pH=7.4))
+    assert out["calcium_carbonate"] is None
+    assert out["pH"] == pytest.approx(7.4, abs=1e-9)
+    assert any(w.startswith("calcium carbonate indices not computed: The calculation did not settle")
+               for w in out["warnings"])
+    parsed, _ = read_water(scenario(25.0, *HARD, pH=7.4))  # the method's own account, for developers
+    wm = water_model(parsed)
+    with pytest.raises(ConvergenceError) as err:
+        at_pH(indices._recipe(wm, wm.solve(pH=7.4), ()), 7.4, None, tries=1)
+    assert err.value.detail == "the water could not be balanced at pH 7.4"
+    monkeypatch.setattr(indices, "_at_pH", at_pH)
+    assert solve(scenario(25.0, *HARD, pH=7.4))["calcium_carbonate"]["LSI"] is not None

@@ -157,10 +157,10 @@ def _band_from_curves(grid: list[float], values: list, at: list[int], curves: di
 class _Chain:
     """A recipe balanced at successive pH values with the inert ion of the indices module.
 
-    The balancing of :func:`acidscape.operations.indices._at_pH`, continued from one pH to the
-    next: the ion's amount starts from the straight line through the last two points, and the
-    model is rebuilt only when the ion changes sign (charge balance closed to 1e-9 of the
-    water's ionic charge, as there).
+    :func:`acidscape.operations.indices._at_pH` continued from one pH to the next: the ion's
+    amount starts from the straight line through the last two points, and the last model is
+    handed on while the ion keeps its sign (a :class:`~acidscape.errors.ConvergenceError` where
+    the balance does not close).
     """
 
     def __init__(self, rec):
@@ -178,23 +178,7 @@ class _Chain:
                 (rec.balance_eq > 0) == (self.rec.balance_eq > 0):
             wm = self.wm  # the same ion, another amount
             wm.totals = wm.totals[:-1] + [abs(rec.balance_eq)]
-        guess = self.guess
-        for _ in range(10):
-            if wm is None:
-                wm = rec.build()
-            sol = wm.solve(pH=pH, allow_solids=rec.allow, guess=guess)
-            guess = sol.state
-            if abs(sol.charge_residual) <= 1e-9 * ix._charge_scale(wm, sol):
-                break
-            q = rec.balance_eq + sol.charge_residual
-            same_ion = rec.balance_eq != 0.0 and (q > 0) == (rec.balance_eq > 0)
-            rec = dataclasses.replace(rec, balance_eq=q)
-            if same_ion:
-                wm.totals = wm.totals[:-1] + [abs(q)]
-            else:
-                wm = None
-        else:
-            raise ConvergenceError(f"the water could not be balanced at pH {pH:g}")
+        rec, wm, sol = ix._at_pH(rec, pH, self.guess, wm)
         self.rec, self.guess, self.wm = rec, sol.state, wm
         self.seen = (self.seen + [(pH, rec.balance_eq)])[-2:]
         return wm, sol
