@@ -152,9 +152,31 @@ def distribution(params: dict) -> dict:
     }
 
 
-def _ordinary(scenario: dict):
-    """``(scenario, parsed, inferred)``: a measured pH and alkalinity closed into an ordinary
-    scenario first (``inferred`` what the measurements gave; None for an ordinary scenario)."""
+def ordinary_scenario(scenario: dict):
+    """A scenario read, a measured pH and alkalinity closed into an ordinary scenario first.
+
+    Parameters
+    ----------
+    scenario : dict
+        A scenario (:mod:`acidscape.boundary.scenario`), with or without ``measured``
+
+    Returns
+    -------
+    (dict, acidscape.boundary.scenario.Parsed, dict or None)
+        The ordinary scenario (the one given when it has no ``measured``; else one with the
+        carbonate total and balancing ion the measurements give), its parsed water, and what
+        the measurements gave (None for an ordinary scenario).
+
+    Examples
+    --------
+    A lab report of pH 7.9 and 150 mg/L as CaCO3 alkalinity becomes a carbonate total:
+
+    >>> sc, parsed, inferred = ordinary_scenario({
+    ...     "measured": {"pH": 7.9, "alkalinity": {"value": 150, "unit": "mg/L as CaCO3"}},
+    ...     "ions": [{"id": "calcium", "total": 60, "unit": "mg/L"}]})
+    >>> [s["id"] for s in sc["systems"]], round(inferred["DIC_M"] * 1e3, 2)
+    (['carbonate'], 3.05)
+    """
     from ..operations.closure import read_measured, resolve_measured
     from .scenario import read_scenario
 
@@ -171,7 +193,7 @@ def read_water(scenario: dict):
     Returns ``(parsed, inferred)``: the parsed ordinary water and what was inferred from the
     measurements (None for an ordinary scenario).
     """
-    _, parsed, inferred = _ordinary(scenario)
+    _, parsed, inferred = ordinary_scenario(scenario)
     return parsed, inferred
 
 
@@ -179,7 +201,7 @@ def _closed_water(scenario: dict):
     """The closed, electroneutral water of a scenario (for titration and dosing)."""
     from ..operations.closure import close_scenario
 
-    scenario, parsed, inferred = _ordinary(scenario)
+    scenario, parsed, inferred = ordinary_scenario(scenario)
     closed = close_scenario(scenario, parsed, inferred)
     if inferred is not None:
         closed.inferred = inferred

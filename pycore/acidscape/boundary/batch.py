@@ -947,9 +947,9 @@ def _row_water(sc: dict):
     points), which a batch row does not report.
     """
     from ..operations.closure import warm_start
-    from .api import _ordinary
+    from .api import ordinary_scenario
 
-    scenario, parsed, inferred = _ordinary(sc)
+    scenario, parsed, inferred = ordinary_scenario(sc)
     wm = _row_model(parsed)
     sol = wm.solve(pH=parsed.pH, allow_solids=parsed.precipitate, guess=warm_start(wm, inferred))
     return scenario, parsed, inferred, wm, sol
@@ -958,14 +958,14 @@ def _row_water(sc: dict):
 def _result_row(plan: _Plan, row: int, sample: str, pH_measured, sc: dict) -> dict:
     """One row's results: the figures :func:`acidscape.boundary.api.solve` (and ``dose``) give
     for the row's scenario, computed by the same functions, and only those the row reports."""
-    from ..operations.alkalinity import (MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, _speciation_split,
-                                         end_point_alkalinity)
+    from ..operations.alkalinity import (MG_CACO3_PER_MEQ, TOTAL_END_POINT_PH, end_point_alkalinity,
+                                         speciation_split)
 
     scenario, parsed, inferred, wm, sol = _row_water(sc)
     # total alkalinity to the fixed end point pH 4.5, 0 at or below it (as alkalinity_report gives it)
     a, _ = end_point_alkalinity(wm, sol, TOTAL_END_POINT_PH, guess=sol.state)
     total = a if sol.pH > TOTAL_END_POINT_PH else 0.0
-    OH, CO3, HCO3 = _speciation_split(wm, sol)
+    OH, CO3, HCO3 = speciation_split(wm, sol)
 
     def mg(eq_per_L):  # mg/L as CaCO3, in the order alkalinity_report multiplies
         return eq_per_L * 1e3 * MG_CACO3_PER_MEQ

@@ -65,6 +65,7 @@ equivalence_alkalinity(sol, r)                     Alk above [eq/L] for a solved
 end_point_alkalinity(wm, sol, pH_e)                A(pH_e) above [eq/L] and the water at pH_e
 equivalence_pH(wm, sol, pH_ref)                    pH where Alk of that reference level vanishes
 sm2320_split(P, T)                                 hydroxide / carbonate / bicarbonate from P and T
+speciation_split(wm, sol)                          the same split from the species [eq/L]
 alkalinity_report(wm, sol)                         everything above for a solved water (JSON-ready)
 
 References
@@ -325,11 +326,36 @@ def _mg(eq_per_L: float) -> float:
     return eq_per_L * 1e3 * MG_CACO3_PER_MEQ
 
 
-def _speciation_split(wm, sol) -> tuple[float, float, float]:
-    """Hydroxide, carbonate and bicarbonate alkalinity from the species [eq/L].
+def speciation_split(wm, sol) -> tuple[float, float, float]:
+    """Hydroxide, carbonate and bicarbonate alkalinity of a solved water, from its species.
 
     Hydroxide: [OH-] and the OH- of hydroxo complexes of metals; carbonate and bicarbonate:
     every carbonate unit held as CO3 (2 eq) or as HCO3 (1 eq), free or in an ion pair.
+    Species holding another acid-base system (a non-carbonate base) are left out.
+
+    Parameters
+    ----------
+    wm : acidscape.science.tableau.WaterModel
+        The water's model
+    sol : acidscape.science.model.Solution
+        Its solution
+
+    Returns
+    -------
+    (float, float, float)
+        Hydroxide, carbonate and bicarbonate alkalinity [eq/L]
+
+    Examples
+    --------
+    2 mmol/L of sodium bicarbonate at 25 °C (Davies): nearly all bicarbonate, and the three
+    parts add up to the water's alkalinity, its 2 meq/L of sodium ([H+] negligible):
+
+    >>> from acidscape.science.tableau import IonInput, SystemInput, WaterModel
+    >>> c = SystemInput("carbonate", "Carbonate", ("H2CO3*", "HCO3-", "CO3-2"), (0, -1, -2), (6.352, 10.329), 2e-3)
+    >>> wm = WaterModel([c], [IonInput("sodium", "Na+", 1, 2e-3)], T=298.15, pKw=13.995, model="davies")
+    >>> OH, CO3, HCO3 = speciation_split(wm, wm.solve())
+    >>> round(OH * 1e3, 3), round(CO3 * 1e3, 3), round(HCO3 * 1e3, 3), round((OH + CO3 + HCO3) * 1e3, 4)
+    (0.002, 0.041, 1.957, 2.0)
     """
     tab = wm.tab
     jc = wm.comp_index.get("carbonate")
@@ -425,7 +451,7 @@ def alkalinity_report(wm, sol, *, equivalence_pH_too: bool = True) -> dict:
         equiv[f"{label}_meq_per_L"] = alk * 1e3
         equiv[f"{label}_mg_per_L_as_CaCO3"] = _mg(alk)
         equiv[f"{label}_equivalence_pH"] = equivalence_pH(wm, sol, ref) if equivalence_pH_too else None
-    OH, CO3, HCO3 = _speciation_split(wm, sol)
+    OH, CO3, HCO3 = speciation_split(wm, sol)
     split_exact = {
         "method": "speciation: [OH-] (and hydroxo complexes), 2 x carbonate and 1 x bicarbonate units, "
                   "free or in ion pairs",
