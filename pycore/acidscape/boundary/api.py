@@ -7,6 +7,7 @@ solve(scenario) -> dict                 a water's equilibrium, indices and every
 water(params), titrate(params), dose(params), buffer(params), treat(params), blend(params),
 soften(params), solubility(params), conditional_constants(params), distribution(params), scale_curves(params)
 version_info() -> dict                  package version
+read_water(scenario), ordinary_scenario(scenario), water_request(params)    readers shared with batch and dispatch
 
 Every function validates its input and raises :mod:`acidscape.errors` classes, which
 :func:`acidscape.boundary.dispatch.handle` turns into ``{"ok": false, "error": {...}}``.
@@ -360,19 +361,37 @@ def solve(scenario: dict, _state: dict | None = None, *, headline: bool = False)
     return result
 
 
-def water(params: dict) -> dict:
-    """A water's equilibrium plus its curves against pH (for the page's plots).
+def water_request(params: dict) -> tuple[dict, list[float]]:
+    """The water and the pH grid of its curves, read from a request of :func:`water` (and of
+    the page's staged ``water_view``, :func:`acidscape.boundary.dispatch.stages`).
 
-    ``params`` is a scenario plus optional ``curve`` ``{"pH_min", "pH_max", "points"}``.
-    Returns ``{"result": <solve result>, "curves": <acidscape.operations.curves.water_curves>}``.
+    Parameters
+    ----------
+    params : dict
+        A scenario plus optional ``curve`` ``{"pH_min", "pH_max", "points"}`` (default 0 to
+        14, 281 points; both ends within :data:`acidscape.checks.PH_RANGE`)
+
+    Returns
+    -------
+    (dict, list of float)
+        The scenario (``params`` without ``curve``) and the pH values of the curves [-]
+
+    Raises
+    ------
+    InputError
+        In words, beside the curve setting that is wrong.
 
     Examples
     --------
-    >>> out = water({"systems": [{"id": "ammonium", "total": 1, "unit": "mmol/L"}], "curve": {"points": 5}})
-    >>> out["curves"]["pH"]
-    [0.0, 3.5, 7.0, 10.5, 14.0]
+    >>> scenario, grid = water_request({"systems": [{"id": "acetic", "total": 1}], "curve": {"points": 3}})
+    >>> scenario, grid
+    ({'systems': [{'id': 'acetic', 'total': 1}]}, [0.0, 7.0, 14.0])
+    >>> water_request({"curve": {"pH_min": -1}})
+    Traceback (most recent call last):
+    ...
+    acidscape.errors.InputError: The lowest pH of the plot must be from 0 to 14 (you entered -1).
     """
-    from ..operations.curves import pH_grid, water_curves
+    from ..operations.curves import pH_grid
 
     if not isinstance(params, dict):
         raise InputError("The request could not be read: its values must be a group of named values.",
@@ -387,6 +406,24 @@ def water(params: dict) -> dict:
         _number(curve, "pH_max", 14.0, lo=PH_RANGE[0], hi=PH_RANGE[1], field="curve.pH_max"),
         _integer(curve, "points", 281, lo=2, hi=MAX_POINTS),
     )
+    return scenario, grid
+
+
+def water(params: dict) -> dict:
+    """A water's equilibrium plus its curves against pH (for the page's plots).
+
+    ``params`` is a scenario plus optional ``curve`` ``{"pH_min", "pH_max", "points"}``.
+    Returns ``{"result": <solve result>, "curves": <acidscape.operations.curves.water_curves>}``.
+
+    Examples
+    --------
+    >>> out = water({"systems": [{"id": "ammonium", "total": 1, "unit": "mmol/L"}], "curve": {"points": 5}})
+    >>> out["curves"]["pH"]
+    [0.0, 3.5, 7.0, 10.5, 14.0]
+    """
+    from ..operations.curves import water_curves
+
+    scenario, grid = water_request(params)
     state: dict = {}
     result = solve(scenario, state)
     return {"result": result, "curves": water_curves(state["model"], state["solution"], grid)}

@@ -196,22 +196,12 @@ def _water_view(params: dict):
     """The water section's request in parts: ``{"result": <solve result>}`` first (without the
     equivalence-point pH values of its alkalinity, see ``api.solve(headline=True)``), then
     ``{"curves": <water_curves>, "alkalinity_equivalence_pH": {"total_equivalence_pH",
-    "phenolphthalein_equivalence_pH"}}`` (same parameters as :func:`acidscape.boundary.api.water`).
+    "phenolphthalein_equivalence_pH"}}`` (same parameters as :func:`acidscape.boundary.api.water`, read
+    by :func:`acidscape.boundary.api.water_request`).
     Yields dicts for parts and None at pauses."""
     from ..operations.alkalinity import PHENOLPHTHALEIN_END_POINT_PH, TOTAL_END_POINT_PH, equivalence_pH
-    from ..operations.curves import pH_grid
 
-    if not isinstance(params, dict):
-        raise InputError("parameters must be a JSON object", field=None)
-    curve = params.get("curve") or {}
-    if not isinstance(curve, dict):
-        raise InputError("curve must be an object {pH_min, pH_max, points}", field="curve")
-    scenario = {k: v for k, v in params.items() if k != "curve"}
-    grid = pH_grid(
-        api._number(curve, "pH_min", 0.0, lo=-1.0, hi=15.0, field="curve.pH_min"),
-        api._number(curve, "pH_max", 14.0, lo=-1.0, hi=15.0, field="curve.pH_max"),
-        api._integer(curve, "points", 281, lo=2, hi=api.MAX_POINTS),
-    )
+    scenario, grid = api.water_request(params)
     state: dict = {}
     yield {"result": api.solve(scenario, state, headline=True)}
     yield None  # the headline is out: a newer request may take over here
