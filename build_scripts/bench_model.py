@@ -6,26 +6,42 @@ Cases (invented waters, not checks of chemistry):
 - ``acid_base_10``: ten acid-base systems and two strong ions, complexes off, Davies;
 - ``hard_water``: a hard, sulfate-rich water with its ion pairs (about 10 components, 40 species);
 - ``two_solids``: a hard water dosed to pH 10.5 with calcite and brucite allowed to form;
-- ``hard_water_curves``: the 281-point distribution and log-C curves of the hard water.
+- ``hard_water_curves``: the 281-point distribution and log-C curves of the hard water;
+- ``water6_headline``: the first part of the water section's request (``dispatch.stages("water_view")``:
+  the solve, alkalinity, indices and tables the page draws first) for the six-system water of
+  ``bench.py`` (``WATER_6``, the page's edit benchmark), the figure the page's headline waits for;
+- ``default_water``: the page's starting water (carbonate 2.5, calcium 1, magnesium 0.3, sodium
+  0.6, chloride 0.8 mmol/L, 25 °C): its headline part and its 281-point curves part (``_curves``:
+  from the first part to the last);
+- with ``--pyodide``: the same water-view parts in Pyodide (the page's interpreter) under Node.js,
+  a wheel of the core installed into a temporary folder as ``bench_jobs.py --pyodide`` does.
 
 ``model_*`` figures time the equilibrium model alone (the scenario read once, then
 ``WaterModel.solve``); the others time the whole ``solve`` result a user gets (alkalinity,
 buffer intensity, calcium carbonate indices and every table included). Medians of wall time
-and of CPU time (``time.process_time``), in ms.
+and of CPU time (``time.process_time``), in ms, with the load average and uptime (the machine is
+shared: compare figures taken at the same time).
 """
 
 from __future__ import annotations
 
+import argparse
 import json
 import os
 import statistics
+import subprocess
 import sys
+import tempfile
 import time
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "pycore"))
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "pycore"))
+sys.path.insert(0, str(ROOT / "build_scripts"))
 
 from acidscape.boundary.api import read_water, solve, water, water_model  # noqa: E402
+from acidscape.boundary.dispatch import stages  # noqa: E402
+from bench import WATER_6  # noqa: E402
 
 ACID_BASE_10 = {
     "complexes": False, "temperature_C": 15,
@@ -43,6 +59,124 @@ HARD = {
              {"id": "chloride", "total": 71, "unit": "mg/L"}],
 }
 TWO_SOLIDS = dict(HARD, pH=10.5, precipitate=["calcite", "brucite"])
+#: The page's starting water (site/water.js), an invented water.
+DEFAULT_WATER = {
+    "temperature_C": 25,
+    "systems": [{"id": "carbonate", "total": 2.5, "unit": "mmol/L"}],
+    "ions": [{"id": "calcium", "total": 1, "unit": "mmol/L"}, {"id": "magnesium", "total": 0.3, "unit": "mmol/L"},
+             {"id": "sodium", "total": 0.6, "unit": "mmol/L"}, {"id": "chloride", "total": 0.8, "unit": "mmol/L"}],
+}
+#: The water section's requests (method "water_view", answered in parts by dispatch.stages).
+WATER_VIEWS = {"water6": dict(WATER_6, curve={"points": 281}), "default_water": dict(DEFAULT_WATER, curve={"points": 281})}
+
+
+def _parts_ms(params: dict, clock=time.perf_counter) -> list[float]:
+    """Times [ms] from the request to each part of a water-view answer."""
+    text = json.dumps(params)
+    t = clock()
+    out = []
+    for part in stages("water_view", text):
+        if part is not None:
+            out.append((clock() - t) * 1e3)
+    return out
+
+
+def _headline_ms(params: dict, clock=time.perf_counter) -> float:
+    """Time [ms] to the first part (the headline) of a water-view answer, the rest not asked for."""
+    text = json.dumps(params)
+    t = clock()
+    gen = stages("water_view", text)
+    next(gen)
+    ms = (clock() - t) * 1e3
+    gen.close()
+    return ms
+
+
+def water_views(n_head: int = 101, n_curves: int = 9) -> dict:
+    """Medians [ms] of each water view's headline part, and of the default water's curves part."""
+    out = {}
+    for name, params in WATER_VIEWS.items():
+        for clock, suffix in ((time.perf_counter, "ms"), (time.process_time, "cpu_ms")):
+            _headline_ms(params, clock)
+            out[f"{name}_headline_{suffix}"] = round(statistics.median(
+                [_headline_ms(params, clock) for _ in range(n_head)]), 3)
+    for clock, suffix in ((time.perf_counter, "ms"), (time.process_time, "cpu_ms")):
+        runs = [_parts_ms(WATER_VIEWS["default_water"], clock) for _ in range(n_curves)]
+        out[f"default_water_curves_{suffix}"] = round(statistics.median([r[-1] - r[0] for r in runs]), 3)
+    return out
+
+
+PYODIDE_RUNNER = r"""
+import { readFileSync } from "node:fs";
+const [dir, wheel, viewsFile, nHead, nCurves] = process.argv.slice(2);
+const { loadPyodide } = await import(dir + "/pyodide.mjs");
+const py = await loadPyodide({ indexURL: dir + "/" });
+const site = py.runPython("import site; site.getsitepackages()[0]");
+py.unpackArchive(new Uint8Array(readFileSync(wheel)), "wheel", { extractDir: site });
+const parts = py.runPython(`
+from acidscape.boundary.dispatch import stages
+def parts(text, first_only):
+    gen = stages("water_view", text)
+    for part in gen:
+        if part is not None and first_only:
+            gen.close()
+            return
+parts`);
+const views = JSON.parse(readFileSync(viewsFile, "utf8"));
+const median = (a) => { const b = [...a].sort((x, y) => x - y); const m = b.length >> 1; return b.length % 2 ? b[m] : (b[m - 1] + b[m]) / 2; };
+const out = { python: py.runPython("import sys; sys.version.split()[0]") };
+for (const [name, params] of Object.entries(views)) {
+  const text = JSON.stringify(params);
+  parts(text, true);  // warm-up
+  const wall = [];
+  for (let k = 0; k < Number(nHead); k++) {
+    const t0 = performance.now();
+    parts(text, true);
+    wall.push(performance.now() - t0);
+  }
+  out[name + "_headline_ms"] = median(wall);
+}
+const text = JSON.stringify(views.default_water);
+const whole = [], head = [];
+for (let k = 0; k < Number(nCurves); k++) {
+  let t0 = performance.now();
+  parts(text, true);
+  head.push(performance.now() - t0);
+  t0 = performance.now();
+  parts(text, false);
+  whole.push(performance.now() - t0);
+}
+out.default_water_curves_ms = median(whole) - median(head);
+process.stdout.write(JSON.stringify(out));
+"""
+
+
+def pyodide_water_views(n_head: int = 51, n_curves: int = 5) -> dict:
+    """The water views' medians [ms] in Pyodide under Node.js (``build_scripts/node_modules/pyodide``)."""
+    pyodide_dir = ROOT / "build_scripts" / "node_modules" / "pyodide"
+    if not pyodide_dir.exists():
+        return {"error": "Pyodide is not installed: run `npm ci --prefix build_scripts`"}
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "--no-index",
+                        "-q", "-w", str(tmp), str(ROOT)], check=True, capture_output=True, timeout=300)
+        wheel = next(tmp.glob("acidscape-*.whl"))
+        runner = tmp / "runner.mjs"
+        runner.write_text(PYODIDE_RUNNER)
+        views = tmp / "views.json"
+        views.write_text(json.dumps(WATER_VIEWS))
+        proc = subprocess.run(["node", str(runner), str(pyodide_dir), str(wheel), str(views), str(n_head),
+                               str(n_curves)], capture_output=True, text=True, timeout=1200)
+        if proc.returncode != 0:
+            return {"error": proc.stderr.strip()[-2000:]}
+        return json.loads(proc.stdout)
+
+
+def _uptime() -> str | None:
+    try:
+        return subprocess.run(["uptime"], capture_output=True, text=True, timeout=10).stdout.strip()
+    except (OSError, subprocess.SubprocessError):
+        return None
 
 
 def _median_ms(fn, n: int, clock=time.perf_counter) -> float:
@@ -62,6 +196,9 @@ def _model(scenario: dict):
 
 
 def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--pyodide", action="store_true", help="also time the water views in Pyodide under Node.js")
+    args = ap.parse_args()
     out = {
         "model_acid_base_10_ms": _median_ms(_model(ACID_BASE_10), 50),
         "model_acid_base_10_cpu_ms": _median_ms(_model(ACID_BASE_10), 50, time.process_time),
@@ -75,9 +212,14 @@ def main() -> None:
         "two_solids_ms": _median_ms(lambda: solve(TWO_SOLIDS), 30),
         "two_solids_precipitated": [r["id"] for r in solve(TWO_SOLIDS)["precipitated"]],
         "hard_water_curves_281_ms": _median_ms(lambda: water(dict(HARD, curve={"points": 281})), 5),
+        **water_views(),
         "python": sys.version.split()[0],
         "load_average": list(os.getloadavg()) if hasattr(os, "getloadavg") else None,
+        "uptime": _uptime(),
     }
+    if args.pyodide:
+        out["pyodide"] = pyodide_water_views()
+        out["pyodide_uptime"] = _uptime()
     print(json.dumps(out, indent=2))
 
 

@@ -249,3 +249,84 @@ def test_compiled_cholesky_is_the_same_arithmetic_as_the_loops():
     assert not Cholesky(indefinite).ok and not Cholesky(indefinite, compiled=False).ok
     with pytest.raises(ArithmeticError):
         Cholesky(indefinite, strict=True)
+
+
+def _six_system_water():
+    # an invented water with six acid-base systems, sodium, calcium and chloride [mmol/L]
+    return {"temperature_C": 18, "activity": "davies",
+            "systems": [{"id": "carbonate", "total": 2}, {"id": "phosphate", "total": 0.05},
+                        {"id": "ammonium", "total": 0.1}, {"id": "silicic", "total": 0.2},
+                        {"id": "boric", "total": 0.03}, {"id": "hypochlorous", "total": 0.01}],
+            "ions": [{"id": "Na+", "total": 1.5}, {"id": "Ca+2", "total": 0.5}, {"id": "Cl-", "total": 0.8}]}
+
+
+def test_compiled_ladder_sums_are_the_same_arithmetic_as_the_loops():
+    # The components eliminated in closed form (each acid-base ladder, each inert ion) are summed
+    # by straight-line code once a structure is solved again (model._compile_ladders); it must
+    # give the very numbers of the loops it replaces at every state Newton's method visits.
+    import acidscape.science.model as model
+    from acidscape.boundary.api import solve
+
+    seen = []
+    real = model._newton
+
+    def spy(prob, y, **kw):
+        seen.append((prob, list(y)))
+        return real(prob, y, **kw)
+
+    model._newton = spy
+    try:
+        for _ in range(3):
+            solve(_six_system_water())
+    finally:
+        model._newton = real
+    compiled = [(prob, y) for prob, y in seen if prob.ladder_code is not None]
+    assert compiled and any(prob.nH_nz for prob, _ in compiled)
+    for prob, y in compiled:
+        for xH in (prob.xH(y), prob.xH(y) - 5.0, prob.xH(y) + 5.0):
+            assert prob.ladder_code(xH, prob.ladder_K, prob.T_simple) == prob._ladder_loops(xH)
+
+
+def test_a_water_of_a_known_make_up_shares_its_tableau_and_answers_as_a_fresh_one():
+    # Waters that differ only in their amounts share one tableau (science.tableau._SHARED);
+    # the answer must be that of a model built afresh, and any change of make-up (a constant,
+    # the temperature, the activity model, complexes) must give a tableau of its own.
+    import acidscape.science.tableau as tableau
+    from acidscape.boundary.api import read_water, water_model
+
+    def parsed(**edits):
+        return read_water({**_six_system_water(), **edits})[0]
+
+    first = water_model(parsed())
+    other = parsed(ions=[{"id": "Na+", "total": 2.5}, {"id": "Ca+2", "total": 0.2}, {"id": "Cl-", "total": 0.8}])
+    shared = water_model(other)
+    assert shared.tab is first.tab and shared.totals != first.totals
+    saved = dict(tableau._SHARED)
+    tableau._SHARED.clear()
+    try:
+        fresh = water_model(other)
+    finally:
+        tableau._SHARED.clear()
+        tableau._SHARED.update(saved)
+    assert fresh.tab is not first.tab
+    assert fresh.totals == shared.totals and fresh.fixed_species == shared.fixed_species
+    a, b = shared.solve(), fresh.solve()
+    assert a.pH == pytest.approx(b.pH, abs=1e-12)
+    assert all(x == pytest.approx(y, rel=1e-11, abs=1e-30) for x, y in zip(a.conc, b.conc))
+    for edits in ({"temperature_C": 25}, {"activity": "ideal"}, {"complexes": False},
+                  {"systems": [{"id": "carbonate", "total": 2}]}):
+        assert water_model(parsed(**edits)).tab is not first.tab, edits
+
+
+def test_a_warm_start_at_another_given_pH_gives_the_same_answer():
+    # The state of a water at one pH starting the same water at another given pH (an alkalinity
+    # end point, the next point of a curve; the start moves each component with its own
+    # protonated forms): the answer is the cold start's.
+    tab = _carbonate_water()
+    lg = gamma_function(T25, "davies")
+    totals = [0, 3e-3, 1e-3, 1e-3, 1e-3]
+    for start, pH in ((8.3, 4.5), (4.5, 8.3), (8.3, 3.0), (6.0, 10.5), (8.3, 12.0), (8.30, 8.35)):
+        before = equilibrium(tab, totals, T=T25, gamma_of=lg, pH=start)
+        cold = equilibrium(tab, totals, T=T25, gamma_of=lg, pH=pH, I_fixed=before.I)
+        warm = equilibrium(tab, totals, T=T25, gamma_of=lg, pH=pH, I_fixed=before.I, guess=before.state)
+        assert all(x == pytest.approx(y, rel=1e-12, abs=1e-30) for x, y in zip(warm.conc, cold.conc)), (start, pH)

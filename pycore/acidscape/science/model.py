@@ -438,11 +438,12 @@ class _Problem:
     """F on the affine set x = x0 + N y, with simple components eliminated."""
 
     __slots__ = ("r", "x0", "N", "free", "nH", "nH_nz", "cs_lnK", "cs_nz", "cs_abs", "cs_hess", "ladders", "Tr",
-                 "Tr_abs", "T_simple", "const", "sk")
+                 "Tr_abs", "T_simple", "const", "sk", "ladder_code", "ladder_K", "ladder_F")
 
-    def __init__(self, sk: _Skeleton, lnK_cpl, ladders, T_simple, T_cpl, d):
+    def __init__(self, sk: _Skeleton, lnK_cpl, ladders, T_simple, T_cpl, d, ladder_code=None):
         # sk: the skeleton of the constraint pattern; lnK_cpl: ln K' of each coupled species;
-        # ladders: per simple component a list of (k, lnK'); d: right-hand sides of the constraints
+        # ladders: per simple component a list of (k, lnK'); d: right-hand sides of the constraints;
+        # ladder_code: the ladders' sums compiled for their pattern (_compile_ladders), or None
         nc = len(T_cpl)
         x0 = [0.0] * nc
         for pc, coefs in sk.P:
@@ -462,13 +463,20 @@ class _Problem:
             self.cs_lnK = lnK_cpl
         self.cs_nz, self.cs_abs, self.cs_hess = sk.cs_nz, sk.cs_abs, sk.cs_hess
         self.ladders, self.T_simple = ladders, T_simple
+        self.ladder_code = ladder_code
+        self.ladder_K = [lnK for lad in ladders for _, lnK in lad] if ladder_code is not None else None
+        self.ladder_F = None  # the ladders' constant part of F when x_H is held (see _add_ladders)
         self.Tr = [T_cpl[col[0][0]] * col[0][1] if len(col) == 1 else sum([T_cpl[k] * v for k, v in col])
                    for col in sk.N_cols]
         self.Tr_abs = [abs(t) for t in self.Tr]
         self.const = sum(T_cpl[pc] * x0[pc] for pc in sk.pivots)
 
     def xH(self, y):
-        return self.x0[0] + sum(v * y[q] for q, v in self.nH_nz)
+        nz = self.nH_nz
+        if len(nz) == 1:
+            q, v = nz[0]
+            return self.x0[0] + v * y[q]
+        return self.x0[0] + sum([v * y[q] for q, v in nz])
 
     def x_of(self, y):
         """The coupled x at the free coordinates y."""
@@ -532,8 +540,38 @@ class _Problem:
 
     def _add_ladders(self, y, F, g, H, scale):
         """Add the eliminated simple components' log-sum-exp terms (in place); returns F."""
+        nH_nz = self.nH_nz
+        if not nH_nz:
+            # x_H is held (a given pH): the ladders add the same constant to F at every y
+            Fs = self.ladder_F
+            if Fs is None:
+                Fs = self.ladder_F = self.ladder_sums(self.x0[0])[0]
+            return F + Fs
+        Fs, m1, m2, sabs = self.ladder_sums(self.xH(y))
+        for q, nq in nH_nz:
+            g[q] += m1 * nq
+            scale[q] += sabs * abs(nq)
+            if H is not None:
+                Hq = H[q]
+                for s, ns in nH_nz:
+                    if s < q:
+                        v = m2 * nq * ns
+                        Hq[s] += v
+                        H[s][q] += v
+                    elif s == q:
+                        Hq[q] += m2 * nq * ns
+        return F + Fs
+
+    def ladder_sums(self, xH):
+        """(F, first moment, variance, absolute first moment) of the ladders at x_H, each summed
+        over the simple components weighted by their totals."""
+        if self.ladder_code is not None:
+            return self.ladder_code(xH, self.ladder_K, self.T_simple)
+        return self._ladder_loops(xH)
+
+    def _ladder_loops(self, xH):
+        """:meth:`ladder_sums` by loops (the loops :func:`_compile_ladders` unrolls)."""
         exp = math.exp
-        xH = self.xH(y)
         m1 = m2 = Fs = sabs = 0.0
         for T, lad in zip(self.T_simple, self.ladders):
             if len(lad) == 1:
@@ -544,31 +582,74 @@ class _Problem:
                 continue
             es = [lnK + k * xH for k, lnK in lad]
             top = max(es)
-            w = [exp(e - top) for e in es]
-            S = sum(w)
-            mean = sum(k * wi for (k, _), wi in zip(lad, w)) / S
-            var = sum(k * k * wi for (k, _), wi in zip(lad, w)) / S - mean * mean
+            S = s1 = s2 = 0.0
+            for (k, _), e in zip(lad, es):
+                w = exp(e - top)
+                S += w
+                s1 += k * w
+                s2 += k * k * w
+            mean = s1 / S
+            var = s2 / S - mean * mean
             Fs += T * (top + math.log(S))
             m1 += T * mean
             m2 += T * max(var, 0.0)
             sabs += T * abs(mean)
-        for q, nq in self.nH_nz:
-            g[q] += m1 * nq
-            scale[q] += sabs * abs(nq)
-            if H is not None:
-                Hq = H[q]
-                for s, ns in self.nH_nz:
-                    if s < q:
-                        v = m2 * nq * ns
-                        Hq[s] += v
-                        H[s][q] += v
-                    elif s == q:
-                        Hq[q] += m2 * nq * ns
-        return F + Fs
+        return Fs, m1, m2, sabs
+
+
+#: Compiled ladder sums by pattern (the protons of each simple component's own species).
+_LADDER_CODE: dict = {}
+
+
+def _compile_ladders(pattern: tuple):
+    """Straight-line Python for :meth:`_Problem.ladder_sums` of one ladder pattern.
+
+    ``pattern`` holds, per simple component, the protons of each of its species. The same
+    operations in the same order as :meth:`_Problem._ladder_loops` (a product with a zero count
+    is left out of the moments: adding it changes no number), cached by pattern.
+    """
+    fn = _LADDER_CODE.get(pattern)
+    if fn is not None:
+        return fn
+    L = ["def _ladders(xH, K, T):", "    m1 = m2 = Fs = sabs = 0.0"]
+    p = 0
+    for t, ks in enumerate(pattern):
+        if len(ks) == 1:
+            k = ks[0]
+            L.append(f"    Fs += T[{t}] * (K[{p}] + {k} * xH)")
+            L.append(f"    m1 += T[{t}] * {k}")
+            L.append(f"    sabs += T[{t}] * {abs(k)}")
+            p += 1
+            continue
+        n = len(ks)
+        for a, k in enumerate(ks):
+            L.append(f"    e{a} = K[{p + a}] + {k} * xH")
+        L.append("    top = max(" + ", ".join(f"e{a}" for a in range(n)) + ")")
+        for a in range(n):
+            L.append(f"    w{a} = exp(e{a} - top)")
+        L.append("    S = " + " + ".join(f"w{a}" for a in range(n)))
+        s1 = [f"{k} * w{a}" for a, k in enumerate(ks) if k]
+        s2 = [f"{k * k} * w{a}" for a, k in enumerate(ks) if k]
+        L.append("    mean = (" + (" + ".join(s1) or "0.0") + ") / S")
+        L.append("    var = (" + (" + ".join(s2) or "0.0") + ") / S - mean * mean")
+        L.append(f"    Fs += T[{t}] * (top + log(S))")
+        L.append(f"    m1 += T[{t}] * mean")
+        L.append(f"    m2 += T[{t}] * max(var, 0.0)")
+        L.append(f"    sabs += T[{t}] * abs(mean)")
+        p += n
+    L.append("    return Fs, m1, m2, sabs")
+    env = {"exp": math.exp, "log": math.log, "max": max, "abs": abs}
+    exec(compile("\n".join(L) + "\n", "<acidscape.science.model ladders>", "exec"), env)  # noqa: S102
+    if len(_LADDER_CODE) > 256:
+        _LADDER_CODE.clear()
+    fn = _LADDER_CODE[pattern] = env["_ladders"]
+    return fn
 
 
 #: A constraint pattern's evaluation is compiled to straight-line code after this many calls.
 COMPILE_AFTER = 6
+#: A structure's ladder sums are compiled to straight-line code after this many ionic-strength solves.
+LADDER_COMPILE_AFTER = 3
 #: Compiled evaluations by sparsity pattern (r and each coupled species' coefficients over y).
 _COMPILED: dict = {}
 
@@ -836,6 +917,7 @@ def equilibrium(
         hc = tab.h_count
         ladders = [[(hc[i], lnKp[i]) for i in ladder_of[j]] for j in simple]
         lnK_cpl = [lnKp[i] for i in cpl_species]
+        ladder_code = structure.ladder_code()
         seen = set()
         for _round in range(4 * len(tab.solids) + 8):
             d = []
@@ -851,7 +933,7 @@ def equilibrium(
                 warnings.append(f"{tab.solids[dropped].id} was left out: with the other solids present it "
                                 "would break the phase rule")
                 continue
-            prob = _Problem(sk, lnK_cpl, ladders, T_simple, T_cpl, d)
+            prob = _Problem(sk, lnK_cpl, ladders, T_simple, T_cpl, d, ladder_code)
             y = _start(prob, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp)
             y, its, ok = _newton(prob, y, rtol=rtol)
             total_iters += its
@@ -1014,7 +1096,8 @@ class _Structure:
     each pattern of constraints met so far (cached with the structure on the tableau)."""
 
     __slots__ = ("species_on", "solids_on", "allowed", "simple", "coupled", "cidx", "ladder_of", "cpl_species",
-                 "x_coeffs", "prefer", "skeletons", "cpl_stoich", "on_stoich", "simple_set")
+                 "x_coeffs", "prefer", "skeletons", "cpl_stoich", "on_stoich", "simple_set", "ladder_pattern",
+                 "ladder_uses", "ladder_fn")
 
     def __init__(self, species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs,
                  prefer, tab):
@@ -1025,6 +1108,18 @@ class _Structure:
         self.skeletons: dict = {}
         self.cpl_stoich = [(i, tab.species[i].stoich) for i in cpl_species]
         self.on_stoich = [(i, tab.species[i].stoich) for i, on in enumerate(species_on) if on]
+        self.ladder_pattern = tuple(tuple(tab.h_count[i] for i in ladder_of[j]) for j in simple)
+        # the ladders' sums are compiled once the structure is solved again (as skeletons are)
+        self.ladder_uses = 0 if any(len(ks) > 1 for ks in self.ladder_pattern) else None
+        self.ladder_fn = None
+
+    def ladder_code(self):
+        """The compiled ladder sums of this structure (None until it has been used a few times)."""
+        if self.ladder_fn is None and self.ladder_uses is not None:
+            self.ladder_uses += 1
+            if self.ladder_uses >= LADDER_COMPILE_AFTER:
+                self.ladder_fn = _compile_ladders(self.ladder_pattern)
+        return self.ladder_fn
 
     def skeleton(self, tab, pH_given: bool, fixed: tuple, active: tuple) -> _Skeleton:
         """The skeleton for this pattern: pH held or not, fixed species, active solids (in order)."""
@@ -1075,23 +1170,41 @@ def _constants_at(tab: Tableau, gamma_of, I: float):
     return out
 
 
+def _own_lnS(tab, j, species_on, lnKp, xH) -> float:
+    """ln of the sum of component j's own species (j once, otherwise only H+) per unit of its
+    free concentration, at ln[H+] = xH: ln sum_k K'_k e^(h_k xH)."""
+    es = [lnKp[i] + h * xH for i, h in tab.own_species[j] if species_on[i]]
+    if not es:
+        return 0.0
+    top = max(es)
+    return top + math.log(sum(math.exp(e - top) for e in es))
+
+
 def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp) -> list[float]:
     """Initial y: the last answer where known; else pH 7 (or the given pH) and each component
-    spread over its own protonated forms at that pH, as if it formed no complex."""
-    xH = x_state.get(0, LN10 * (-(pH if pH is not None else 7.0) - lgc[0]))
+    spread over its own protonated forms at that pH, as if it formed no complex.
+
+    When the pH is given and the last answer was at another pH, each known component's free
+    concentration is first moved as its own protonated forms would move it (the share held by
+    each component's own species kept): a jump of several pH units (an end point, the next
+    point of a curve) then starts next to the answer."""
+    xH_new = LN10 * (-(pH if pH is not None else 7.0) - lgc[0])
+    xH = x_state.get(0, xH_new)
+    moved = pH is not None and xH != xH_new
     y = []
     # y is x at the free coordinates (N holds an identity row there)
     for k in prob.free:
         j = coupled[k]
         if j in x_state:
-            y.append(x_state[j])
+            if moved and j:
+                y.append(x_state[j] + _own_lnS(tab, j, species_on, lnKp, xH)
+                         - _own_lnS(tab, j, species_on, lnKp, xH_new))
+            else:
+                y.append(x_state[j])
         elif j == 0:
             y.append(xH)
         else:
-            es = [lnKp[i] + h * xH for i, h in tab.own_species[j] if species_on[i]]
-            top = max(es) if es else 0.0
-            lnS = top + math.log(sum(math.exp(e - top) for e in es)) if es else 0.0
-            y.append(math.log(max(totals[j], 1e-300)) - lnS)
+            y.append(math.log(max(totals[j], 1e-300)) - _own_lnS(tab, j, species_on, lnKp, xH))
     return y
 
 

@@ -92,8 +92,37 @@ def _cumulative(pKa: tuple[float, ...], p: int) -> float:
     return sum(pKa[len(pKa) - p:]) if p else 0.0
 
 
+def _make_up(systems, ions, T: float, pKw: float, model: str, complexes: bool) -> tuple:
+    """Everything a water's tableau depends on besides the amounts: each system's and ion's
+    identity, names, charges, constants and ion sizes, which systems are open to a gas, the
+    temperature, pKw, the activity model and the choice of complexes (the database is read
+    once and never changes)."""
+    return (tuple((s.key, s.name, s.species, s.charges, s.pKa, s.ion_sizes, s.fixed_first_M is None)
+                  for s in systems),
+            tuple((i.key, i.name, i.charge, i.ion_size_A) for i in ions),
+            T, pKw, model, bool(complexes))
+
+
+#: Tableau and bookkeeping of the make-ups met so far (see :class:`WaterModel`), oldest first.
+_SHARED: dict = {}
+#: Most make-ups kept.
+MAX_SHARED = 32
+#: The WaterModel attributes that depend on the make-up alone (shared; read only).
+_SHARED_FIELDS = frozenset(("gamma_of", "species_notes", "solid_notes", "comp_index", "system_species",
+                            "ion_species", "_ref_logK", "solid_info", "solid_log10_K", "complex_info", "tab",
+                            "solid_index"))
+
+
 class WaterModel:
     """The tableau of one water at one temperature.
+
+    Waters of the same make-up (the same systems and ions with the same constants, temperature,
+    activity model and choice of complexes: :func:`_make_up`), whatever their amounts, share
+    one tableau and its bookkeeping, built once (the last :data:`MAX_SHARED` make-ups are
+    kept): the model's caches on the tableau (structures, constraint patterns, compiled
+    evaluations) then serve every edit of a water's amounts. The shared attributes are read
+    only; ``totals``, ``fixed_species``, ``systems``, ``ions`` and ``I_fixed`` are each
+    water's own.
 
     Attributes
     ----------
@@ -116,6 +145,29 @@ class WaterModel:
         self.T, self.pKw, self.model, self.I_fixed = T, pKw, model, I_fixed
         self.systems, self.ions = list(systems), list(ions)
         self.complexes = complexes
+        key = _make_up(self.systems, self.ions, T, pKw, model, complexes)
+        try:
+            shared = _SHARED.get(key)
+        except TypeError:  # inputs given as lists, not tuples: built afresh, not shared
+            key = shared = None
+        if shared is not None:
+            # the same make-up met before: its tableau and bookkeeping (and the model's caches on
+            # the tableau) are shared; the amounts are this water's own, laid out as below
+            self.__dict__.update(shared)
+            self.totals = [0.0] + [0.0 if s.fixed_first_M is not None else s.total_M for s in self.systems] \
+                + [ion.conc_M for ion in self.ions]
+            self.fixed_species = {self.system_species[s.key][0]: s.fixed_first_M for s in self.systems
+                                  if s.fixed_first_M is not None}
+            return
+        self._build(T, pKw, model, complexes)
+        if key is None:
+            return
+        if len(_SHARED) >= MAX_SHARED:
+            _SHARED.pop(next(iter(_SHARED)))  # the oldest make-up goes first
+        _SHARED[key] = {k: v for k, v in self.__dict__.items() if k in _SHARED_FIELDS}
+
+    def _build(self, T: float, pKw: float, model: str, complexes: bool):
+        """The tableau and bookkeeping of this water's make-up, and its totals."""
         self.gamma_of = gamma_function(T, model)
         self.species_notes: dict[int, list[str]] = {}
         self.solid_notes: dict[int, list[str]] = {}
