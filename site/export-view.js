@@ -182,7 +182,7 @@ export function plotDataUrl(host) {
 function namer(doc) {
   const SELECTS = {
     system: "water-system-0-id", ion: "water-ion-0-id", chemical: "titrant-select", product: "dose-product",
-    "flow-unit": "dose-flow-unit", acid: "acid-select",
+    "flow-unit": "dose-flow-unit", acid: "acid-select", "dose-chemical": "scale-dose-chemical", example: "scale-blend-with",
   };
   return (kind, id) => {
     const select = doc.getElementById(SELECTS[kind] ?? "");

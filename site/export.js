@@ -3,6 +3,7 @@
 // plots of the page, PNG, the printed report) is export-view.js. Nothing is uploaded.
 
 import { exportNumber } from "./format.js";
+import { JOBS } from "./workbench.js";
 
 // batch.js downloads through this module; the DOM code itself lives in the view module.
 export { downloadBlob } from "./export-view.js";
@@ -176,12 +177,27 @@ const ACTIVITY_WORDS = {
 
 const capital = (s) => String(s).charAt(0).toUpperCase() + String(s).slice(1);
 
+/** A target or dose of the scale job (a dose or a sequence step) in words with its unit. */
+const SCALE_TARGETS = [
+  ["target_pH", (v) => `to pH ${v}`],
+  ["target_LSI", (v) => `to an LSI of ${v}`],
+  ["target_CCPP", (v) => `to a CCPP of ${v} mg/L as CaCO₃`],
+  ["dose_mg_per_L", (v) => `a fixed dose of ${v} mg/L`],
+];
+/** Recarbonation targets of the softening job in words with their units. */
+const RECARBONATION = [
+  ["target_LSI", (v) => `with CO₂ to an LSI of ${v}`],
+  ["target_CCPP", (v) => `with CO₂ to a CCPP of ${v} mg/L as CaCO₃`],
+  ["target_pH", (v) => `with CO₂ to pH ${v}`],
+];
+
 /**
  * The report's inputs in words, one group per section of the state.
  *
  * @param {object} state  from collectState()
  * @param {(kind: string, id: string) => string|null} [nameOf]  the page's words for an id
- *        ("system", "ion", "chemical", "product", "flow-unit", "acid", "axis"), null if unknown
+ *        ("system", "ion", "chemical", "product", "flow-unit", "acid", "axis", "dose-chemical",
+ *        "example": an example water), null if unknown
  * @returns {{title: string, rows: [string, string][]}[]}
  */
 export function describeInputs(state, nameOf = () => null) {
@@ -249,6 +265,13 @@ export function describeInputs(state, nameOf = () => null) {
       if (typeof b.log_scale === "boolean") buffer.push(["Buffer intensity axis", b.log_scale ? "logarithmic" : "linear"]);
       groups.push({ title: "Titration", rows: titration }, { title: "Dose to a target pH", rows: dose });
       if (buffer.length) groups.push({ title: "Buffer intensity", rows: buffer });
+    } else if (section === "scale") {
+      groups.push(...scaleGroups(value, name, num, push));
+    } else if (section === "softening") {
+      groups.push(softeningGroup(value, name, num, push));
+    } else if (section === "workbench") {
+      const job = JOBS.find((j) => j.name === value.job);
+      if (job) groups.push({ title: "Job in view", rows: [["Job", `${job.label} (${job.title.charAt(0).toLowerCase()}${job.title.slice(1)})`]] });
     } else if (section === "distribution") {
       const rows = [];
       if (value.acid && value.acid !== "custom") rows.push(["Acid", name("acid", value.acid)]);
@@ -260,6 +283,65 @@ export function describeInputs(state, nameOf = () => null) {
       groups.push({ title: capital(keyWords(section).label), rows: genericRows(value) });
     }
   }
-  const order = (g) => (g.title === "The water" ? 0 : g.title === "One-acid explorer" ? 2 : 1);
+  const order = (g) => (g.title === "The water" ? 0 : g.title === "Job in view" ? 1 : g.title === "One-acid explorer" ? 3 : 2);
   return groups.filter((g) => g.rows.length).sort((a, b) => order(a) - order(b));
+}
+
+/** The first of `kinds` ([key, words]) that `obj` holds, in words; null when none. */
+function targetWords(obj, kinds, num) {
+  for (const [key, words] of kinds) {
+    if (obj && Object.hasOwn(obj, key)) return words(num(obj[key]) ?? "(none)");
+  }
+  return null;
+}
+
+/** The scale job's inputs (site/scale.js, state key "scale") in words with their units. */
+function scaleGroups(value, name, num, push) {
+  const chemical = (id) => name("dose-chemical", id);
+  const indices = [];
+  const temps = value.ccpp_temperatures_C;
+  if (Array.isArray(temps) && temps.length) indices.push(["CCPP also at", `${temps.map(num).join(", ")} °C`]);
+  else if (typeof temps === "string" && temps) indices.push(["CCPP also at", `“${temps}” (not read as temperatures)`]);
+  push(indices, "CCPP also open to CO₂ at a partial pressure of", value.CO2_partial_pressure_atm, "atm");
+  const d = value.dose && typeof value.dose === "object" ? value.dose : {};
+  const dose = [];
+  if (d.chemical) dose.push(["Chemical", chemical(d.chemical)]);
+  const target = targetWords(d, SCALE_TARGETS, num);
+  if (target) dose.push(["Target", target.replace(/^to /, "")]);
+  if (d.flow !== null && d.flow !== undefined) push(dose, "Plant flow", d.flow, name("flow-unit", d.flow_unit ?? ""));
+  const steps = (Array.isArray(value.steps) ? value.steps : []).filter((s) => s && typeof s === "object")
+    .map((s, i) => [`Step ${i + 1}`, [chemical(s.chemical ?? ""), targetWords(s, SCALE_TARGETS, num)].filter(Boolean).join(", ")]);
+  const b = value.blend && typeof value.blend === "object" ? value.blend : {};
+  const blend = [];
+  if (b.other) blend.push(["The other water", name("example", b.other)]);
+  if (Array.isArray(b.fractions) && b.fractions.length === 2) {
+    blend.push(["Flow fractions", `${num(b.fractions[0]) ?? "—"} of the water above, ${num(b.fractions[1]) ?? "—"} of the other water`]);
+  }
+  return [
+    { title: "Scale and corrosion: calcium carbonate indices", rows: indices },
+    { title: "Scale and corrosion: condition to a target LSI or CCPP", rows: dose },
+    { title: "Scale and corrosion: chemicals in sequence", rows: steps },
+    { title: "Scale and corrosion: blend with another water", rows: blend },
+  ];
+}
+
+/** The softening job's inputs (site/softening.js, state key "softening") in words with their units. */
+function softeningGroup(value, name, num, push) {
+  const rows = [];
+  if (typeof value.remove_magnesium === "boolean") rows.push(["Remove", value.remove_magnesium ? "calcium and magnesium" : "calcium only"]);
+  push(rows, "Softening pH", value.softening_pH);
+  push(rows, "Lime dose", value.lime_mg_per_L, "mg/L as Ca(OH)₂");
+  if (value.softening_pH == null && value.lime_mg_per_L == null) {
+    rows.push(["Softening pH", "not given: 10.3 for calcium only, 11.0 with magnesium"]);
+  }
+  push(rows, "Soda ash dose", value.soda_ash_mg_per_L, "mg/L as Na₂CO₃");
+  push(rows, "Soda ash to a total hardness of", value.target_hardness_mg_per_L_as_CaCO3, "mg/L as CaCO₃");
+  push(rows, "Excess lime of the textbook estimate", value.excess_lime_meq_per_L, "meq/L");
+  if (value.flow !== null && value.flow !== undefined) push(rows, "Plant flow", value.flow, name("flow-unit", value.flow_unit ?? ""));
+  if (value.recarbonation === null) rows.push(["Recarbonation", "none"]);
+  else {
+    const words = targetWords(value.recarbonation, RECARBONATION, num);
+    if (words) rows.push(["Recarbonation", words]);
+  }
+  return { title: "Softening", rows };
 }

@@ -35,7 +35,7 @@ import { SofteningView } from "./softening-view.js";
 import { HeadlineView, WaterInputsFold, WorkbenchView, labelTableCells, mirrorWaterState } from "./workbench-view.js";
 
 /** The sections a link, file or example may hold, in the order they are computed. */
-const SECTIONS = ["distribution", "water", "treatment", "lead", "hardness"];
+const SECTIONS = ["distribution", "water", "treatment", "lead", "hardness", "scale", "softening", "workbench"];
 
 const status = new StatusView(document);
 // The switcher works before Python has started: it only shows and hides sections.
@@ -146,7 +146,7 @@ try {
   const scaleView = new ScaleView(document);
   mountScale({ py, view: scaleView, plots: await embedScalePlots("plot-scale-si", "plot-scale-ccpp"), water, chemicals: chemicalList });
   mountSoftening({ py, view: new SofteningView(document), water });
-  messages.push(...(await applyState(opened, ["distribution", "treatment", "lead", "hardness"])));
+  messages.push(...(await applyState(opened, ["distribution", "treatment", "lead", "hardness", "scale", "softening", "workbench"])));
 
   mountBatch({ py, view: new BatchView(document), systems: waterLibrary.systems, ions: waterLibrary.ions, chemicals: chemicalList });
   // Keep and share: says what the URL opened (and what of it was dropped), keeps the link current.

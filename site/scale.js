@@ -10,11 +10,16 @@
 //   blend     the water above blended with an example water by flow fraction (api.blend)
 // The job computes only while it is shown (workbench.js); a water solved meanwhile is
 // computed when the job is next shown, and the plots are laid out again then.
+// Links, files and reports carry the job's inputs (state key "scale", see registerSection
+// below); a value a link holds that cannot be used goes back to its default and is named.
 
 import { CoreError } from "./py.js";
 import { fixed } from "./format.js";
 import { staleWaterNote } from "./job.js";
-import { parseNumber, parseTemperatureList as readTemperatures } from "./parse.js";
+import { cleanNumberText, parseNumber, parseTemperatureList as readTemperatures, stateNumber } from "./parse.js";
+import { notifyInputChange, registerSection } from "./state.js";
+import { FLOW_UNITS } from "./treatment-view.js";
+import { STEP_KINDS } from "./scale-view.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 import { relayoutPlots } from "./plot.js";
@@ -38,6 +43,17 @@ const DEFAULT_STEPS = [
   { chemical: "Ca(OH)2", kind: "target_pH", value: "9.5" },
   { chemical: "CO2", kind: "target_LSI", value: "0" },
 ];
+/** The blend's flow fractions the page starts with (scale-view.js), and goes back to. */
+const DEFAULT_FRACTIONS = ["0.7", "0.3"];
+
+// What an input goes back to when a link, file or example holds a value that cannot be used:
+// input id -> [default text, what happens then, the input's name in words].
+const DEFAULTS = {
+  "scale-temperatures": ["", "no further temperatures are used", "CCPP temperatures"],
+  "scale-pco2": ["", "the CCPP open to CO₂ is left out", "CO₂ partial pressure of the open CCPP"],
+  "scale-dose-target": ["0", "0 is used instead", "dose target"],
+  "scale-dose-flow": ["", "it was left empty", "plant flow of the dose"],
+};
 
 /**
  * Read a list of temperatures [°C] with the page's one number reader (site/parse.js): separated
@@ -99,7 +115,8 @@ export function mountScale({ py, view, plots, water, chemicals }) {
   const offered = [...chemicals].sort((a, b) => order(a) - order(b));
   const known = new Set(offered.map((c) => c.id));
   view.setChemicals(offered);
-  view.setSteps(DEFAULT_STEPS.filter((s) => known.has(s.chemical)));
+  const defaultSteps = DEFAULT_STEPS.filter((s) => known.has(s.chemical));
+  view.setSteps(defaultSteps);
   if (known.has("NaOH")) view.write("scale-dose-chemical", "NaOH");
   let current = { scenario: null, result: null };
   let waterNote = "";
@@ -192,6 +209,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       if (kind === "failed") view.setBandNote("");
     },
     busy: (flag) => view.setBusy("indices", flag),
+    active: shown, // a link settled while the job is put away is computed when it is shown
   });
 
   const curves = computation({
@@ -252,6 +270,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       view.setResultState("dose", "empty");
     },
     busy: (flag) => view.setBusy("dose", flag),
+    active: shown, // a link settled while the job is put away is computed when it is shown
   });
 
   // -- several chemicals in sequence ------------------------------------------------------------
@@ -295,14 +314,24 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       view.setResultState("steps", "empty");
     },
     busy: (flag) => view.setBusy("steps", flag),
+    active: shown, // a link settled while the job is put away is computed when it is shown
   });
 
   // -- blend with another water --------------------------------------------------------------
   let blendWaters = new Map(); // example id -> its water scenario
-  loadPresets("./presets.json").then((presets) => {
+  let blendTitles = new Map(); // example id -> its title
+  let blendLoaded = false;
+  let pendingBlend = null; // the other water a link named before the example waters arrived
+  const blendReady = loadPresets("./presets.json").then((presets) => {
     const waters = presets.filter((p) => p.state?.water?.scenario);
     blendWaters = new Map(waters.map((p) => [p.id, p.state.water.scenario]));
+    blendTitles = new Map(waters.map((p) => [p.id, p.title]));
     view.setBlendWaters(waters.map((p) => ({ id: p.id, title: p.title })));
+    blendLoaded = true;
+    if (pendingBlend !== null && blendWaters.has(pendingBlend)) {
+      view.write("scale-blend-with", pendingBlend);
+      pendingBlend = null;
+    }
     if (shown()) blend.schedule(0);
   });
   const blend = computation({
@@ -346,6 +375,7 @@ export function mountScale({ py, view, plots, water, chemicals }) {
       view.setResultState("blend", "empty");
     },
     busy: (flag) => view.setBusy("blend", flag),
+    active: shown, // a link settled while the job is put away is computed when it is shown
   });
 
   function coreMessage(error, fields, block) {
@@ -396,25 +426,168 @@ export function mountScale({ py, view, plots, water, chemicals }) {
   view.bind(
     (block, id) => {
       const blockOf = { indices, dose, steps, blend };
+      notifyInputChange(JOB);
       blockOf[block].schedule(view.isChoice(id) ? 0 : DEBOUNCE_MS);
     },
     (t) => {
       const now = view.read()["scale-temperatures"];
       const list = parseTemperatureList(now).value ?? [];
       if (!list.includes(t)) view.write("scale-temperatures", [...list, t].join(", "));
+      notifyInputChange(JOB);
       indices.schedule(0);
     },
     () => {
       view.addStep({ chemical: "CO2", kind: "target_LSI", value: "0" });
+      notifyInputChange(JOB);
       steps.schedule(0);
     },
     (i) => {
       const rows = view.readSteps();
       rows.splice(i, 1);
       view.setSteps(rows);
+      notifyInputChange(JOB);
       steps.schedule(0);
     },
   );
+
+  // -- links, files and reports (state key "scale") ------------------------------------------
+  // {ccpp_temperatures_C: [°C, ...], CO2_partial_pressure_atm: the open CCPP's (null: none),
+  //  dose: {chemical, target_LSI | target_CCPP, flow, flow_unit},
+  //  steps: [{chemical, target_pH | target_LSI | target_CCPP | dose_mg_per_L}, ...],
+  //  blend: {other: an example water's id, fractions: [the water above's, the other's]}}
+  // A number that does not read as one travels as its text (the page then names it as dropped).
+  const text = (v) => (v === null || v === undefined ? "" : typeof v === "object" ? JSON.stringify(v) : String(v));
+  const quoted = (v) => `"${text(v).slice(0, 40)}"`;
+  const chemicalName = (id) => offered.find((c) => c.id === id)?.name ?? id;
+  const stepWords = (row) => `${chemicalName(row.chemical)}, ${(STEP_KINDS.find(([k]) => k === row.kind) ?? [null, row.kind])[1]} ${text(row.value).slice(0, 20)}`.trim();
+  let opened = false;
+  const notExample = (id) => `Scale and corrosion: the water to blend with ${quoted(id)} is not an example of this page; ` +
+    `kept “${blendTitles.get(view.read()["scale-blend-with"]) ?? "none"}”`;
+
+  function get() {
+    const raw = view.read();
+    const temps = parseTemperatureList(raw["scale-temperatures"]);
+    const kind = raw["scale-dose-target-kind"];
+    return {
+      ccpp_temperatures_C: temps.error ? cleanNumberText(raw["scale-temperatures"]) : temps.value,
+      CO2_partial_pressure_atm: stateNumber(raw["scale-pco2"]),
+      dose: {
+        chemical: raw["scale-dose-chemical"], [`target_${kind}`]: stateNumber(raw["scale-dose-target"]),
+        flow: stateNumber(raw["scale-dose-flow"]), flow_unit: raw["scale-dose-flow-unit"],
+      },
+      steps: view.readSteps().map((row) => ({ chemical: row.chemical, [row.kind]: stateNumber(row.value) })),
+      blend: {
+        other: pendingBlend ?? (raw["scale-blend-with"] || null),
+        fractions: [stateNumber(raw["scale-blend-f1"]), stateNumber(raw["scale-blend-f2"])],
+      },
+    };
+  }
+
+  function set(obj) {
+    if (!obj || typeof obj !== "object" || Array.isArray(obj)) return ["Scale and corrosion: not a group of inputs; ignored"];
+    const notes = [];
+    const put = (id, value, name) => {
+      if (value === undefined) return;
+      if (!view.write(id, text(value))) notes.push(`Scale and corrosion: ${name} ${quoted(value)} is not offered here; kept ${view.read()[id]}`);
+    };
+    const temps = obj.ccpp_temperatures_C;
+    if (temps !== undefined) view.write("scale-temperatures", Array.isArray(temps) ? temps.map(text).join(", ") : text(temps));
+    put("scale-pco2", obj.CO2_partial_pressure_atm, "CO₂ partial pressure");
+    const d = obj.dose;
+    if (d && typeof d === "object" && !Array.isArray(d)) {
+      if (d.chemical !== undefined && !known.has(d.chemical)) {
+        notes.push(`Scale and corrosion: the dose's chemical ${quoted(d.chemical)} is not offered here; kept ${view.read()["scale-dose-chemical"]}`);
+      } else put("scale-dose-chemical", d.chemical, "chemical");
+      const kind = ["LSI", "CCPP"].find((k) => d[`target_${k}`] !== undefined);
+      if (kind) {
+        view.write("scale-dose-target-kind", kind);
+        put("scale-dose-target", d[`target_${kind}`], "dose target");
+      }
+      put("scale-dose-flow", d.flow, "plant flow");
+      if (d.flow_unit !== undefined && !FLOW_UNITS.some(([u]) => u === d.flow_unit)) {
+        notes.push(`Scale and corrosion: flow unit ${quoted(d.flow_unit)} is not known; kept ${view.read()["scale-dose-flow-unit"]}`);
+      } else put("scale-dose-flow-unit", d.flow_unit, "flow unit");
+    } else if (d !== undefined) notes.push("Scale and corrosion: the dose is not a group of inputs; it was left as it was");
+    if (Array.isArray(obj.steps)) {
+      const rows = [];
+      obj.steps.forEach((step, i) => {
+        const kind = step && typeof step === "object" ? STEP_KINDS.map(([k]) => k).find((k) => step[k] !== undefined) : undefined;
+        if (!kind) notes.push(`Scale and corrosion: step ${i + 1} names no target or dose; it was left out`);
+        else if (!known.has(step.chemical)) notes.push(`Scale and corrosion: step ${i + 1}'s chemical ${quoted(step.chemical)} is not offered here; the step was left out`);
+        else rows.push({ chemical: step.chemical, kind, value: text(step[kind]) });
+      });
+      view.setSteps(rows);
+    } else if (obj.steps !== undefined) notes.push("Scale and corrosion: the steps are not a list; they were left as they were");
+    const b = obj.blend;
+    if (b && typeof b === "object" && !Array.isArray(b)) {
+      if (typeof b.other === "string" && b.other) {
+        if (!blendLoaded) pendingBlend = b.other; // checked when the example waters have arrived (settle)
+        else if (!view.write("scale-blend-with", b.other)) notes.push(notExample(b.other));
+      }
+      if (Array.isArray(b.fractions)) {
+        put("scale-blend-f1", b.fractions[0], "flow fraction");
+        put("scale-blend-f2", b.fractions[1], "flow fraction");
+      }
+    }
+    opened = true;
+    dirty = true; // computed when the job is shown (or at once when it is)
+    return notes;
+  }
+
+  /** Put the inputs named in `problems` back to their defaults (see section.js settle). */
+  function reset(problems) {
+    const notes = [];
+    const raw = view.read();
+    const why = (id) => String(problems[id]).replace(/\.$/, "");
+    const rows = view.readSteps();
+    const drop = new Set();
+    for (const id of Object.keys(problems)) {
+      const step = /^scale-step-(\d+)-/.exec(id);
+      if (step) {
+        const i = Number(step[1]);
+        if (rows[i] && !drop.has(i)) {
+          drop.add(i);
+          notes.push(`Scale and corrosion: step ${i + 1} (${stepWords(rows[i])}) could not be used (${why(id)}); it was left out`);
+        }
+      } else if (id === "scale-steps" && !rows.length && defaultSteps.length) {
+        view.setSteps(defaultSteps);
+        notes.push(`Scale and corrosion: no step of the sequence could be used; the default steps are used instead`);
+      } else if (id === "scale-blend-f1" || id === "scale-blend-f2") {
+        const now = [raw["scale-blend-f1"], raw["scale-blend-f2"]];
+        if (now[0] === DEFAULT_FRACTIONS[0] && now[1] === DEFAULT_FRACTIONS[1]) continue;
+        view.write("scale-blend-f1", DEFAULT_FRACTIONS[0]);
+        view.write("scale-blend-f2", DEFAULT_FRACTIONS[1]);
+        raw["scale-blend-f1"] = DEFAULT_FRACTIONS[0];
+        raw["scale-blend-f2"] = DEFAULT_FRACTIONS[1];
+        notes.push(`Scale and corrosion: blend flow fractions ${quoted(now[0])} and ${quoted(now[1])} could not be used ` +
+          `(${why(id)}); ${DEFAULT_FRACTIONS.join(" and ")} are used instead`);
+      } else if (DEFAULTS[id] && raw[id] !== DEFAULTS[id][0]) {
+        const [value, words, name] = DEFAULTS[id];
+        view.write(id, value);
+        notes.push(`Scale and corrosion: ${name} ${quoted(raw[id])} could not be used (${why(id)}); ${words}`);
+      }
+    }
+    if (drop.size) view.setSteps(rows.filter((_, i) => !drop.has(i)));
+    return notes;
+  }
+
+  async function settle() {
+    const notes = [];
+    if (!opened) return notes;
+    opened = false;
+    await blendReady;
+    if (pendingBlend !== null) {
+      const wanted = pendingBlend;
+      pendingBlend = null;
+      if (!view.write("scale-blend-with", wanted)) notes.push(notExample(wanted));
+    }
+    // each block checks its inputs (and, while the job is shown, asks the core); what cannot be
+    // used goes back to its default and is named
+    for (const block of [indices, dose, steps, blend]) notes.push(...(await block.settle(reset)));
+    return notes;
+  }
+
+  registerSection(JOB, { get, set, settle, refresh });
 
   const initial = water.scenario?.();
   if (initial) current.scenario = initial;

@@ -405,6 +405,9 @@ export const KEY_TABLE_1 = Object.freeze([
   "axis", "chemical", "product", "target_pH", "strength_pct", "density_kg_per_L", "flow", "flow_unit",
   "from_pH", "log_scale", "charge_most_protonated", "molar_mass_g_per_mol", "ccpp_temperatures_C",
   "uncertainty", "temperature_F", "target_LSI", "target_CCPP", "steps", "dose_mg_per_L",
+  // appended: the scale and softening jobs' inputs and the job in view (workbench)
+  "scale", "softening", "workbench", "job", "blend", "other", "fractions", "remove_magnesium", "softening_pH",
+  "lime_mg_per_L", "soda_ash_mg_per_L", "target_hardness_mg_per_L_as_CaCO3", "excess_lime_meq_per_L", "recarbonation",
 ]);
 const KEY_INDEX_1 = new Map(KEY_TABLE_1.map((k, i) => [k, i.toString(36)]));
 

@@ -1,12 +1,15 @@
 // Job "softening": lime and soda ash softening of the water section's water to equilibrium
 // with calcite and brucite, the sludge, recarbonation, and the textbook estimate beside it
 // (api.soften). One section.js computation; it computes only while the job is shown
-// (workbench.js), and catches up when it is next shown.
+// (workbench.js), and catches up when it is next shown. Links, files and reports carry its
+// inputs (state key "softening", the api.soften parameter names; see registerSection below).
 
 import { CoreError } from "./py.js";
 import { fixed } from "./format.js";
 import { staleWaterNote } from "./job.js";
-import { parseNumber } from "./parse.js";
+import { parseNumber, stateNumber } from "./parse.js";
+import { notifyInputChange, registerSection } from "./state.js";
+import { FLOW_UNITS } from "./treatment-view.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 
@@ -21,6 +24,20 @@ const FIELDS = {
   "recarbonation.target_LSI": "soften-recarb-value", "recarbonation.target_CCPP": "soften-recarb-value",
   "recarbonation.target_pH": "soften-recarb-value", recarbonation: "soften-recarb-value",
 };
+
+/** The number inputs as they travel in a link (state key -> input id, the input in words). */
+const STATE_NUMBERS = [
+  ["softening_pH", "soften-ph", "softening pH"],
+  ["lime_mg_per_L", "soften-lime", "lime dose"],
+  ["soda_ash_mg_per_L", "soften-soda", "soda ash dose"],
+  ["target_hardness_mg_per_L_as_CaCO3", "soften-target-hardness", "target hardness"],
+  ["excess_lime_meq_per_L", "soften-excess", "excess lime"],
+  ["flow", "soften-flow", "plant flow"],
+];
+/** Recarbonation targets (the kinds offered by softening-view.js, "none" aside). */
+const RECARB_KINDS = ["LSI", "CCPP", "pH"];
+/** What the recarbonation goes back to when a link's target cannot be used (the page's start). */
+const RECARB_DEFAULT = { kind: "LSI", value: "0" };
 
 /**
  * Read the inputs into the parameters of api.soften (without the scenario).
@@ -109,6 +126,7 @@ export function mountSoftening({ py, view, water }) {
       view.setResultState("empty");
     },
     busy: (flag) => view.setBusy(flag),
+    active: shown, // a link settled while the job is put away is computed when it is shown
   });
 
   async function refresh() {
@@ -135,7 +153,86 @@ export function mountSoftening({ py, view, water }) {
   onJobShown(JOB, () => {
     if (dirty) refresh();
   });
-  view.bindChange((id) => block.schedule(view.isChoice(id) ? 0 : DEBOUNCE_MS));
+  view.bindChange((id) => {
+    notifyInputChange(JOB);
+    block.schedule(view.isChoice(id) ? 0 : DEBOUNCE_MS);
+  });
+
+  // -- links, files and reports (state key "softening"): api.soften's own parameter names ----
+  // {remove_magnesium, softening_pH, lime_mg_per_L, soda_ash_mg_per_L,
+  //  target_hardness_mg_per_L_as_CaCO3, excess_lime_meq_per_L, flow, flow_unit,
+  //  recarbonation: {target_LSI | target_CCPP | target_pH} or null (none)}; empty inputs are null,
+  //  a number that does not read as one travels as its text (the page then names it as dropped).
+  const text = (v) => (v === null || v === undefined ? "" : typeof v === "object" ? JSON.stringify(v) : String(v));
+  const quoted = (v) => `"${text(v).slice(0, 40)}"`;
+  let opened = false;
+
+  function get() {
+    const raw = view.read();
+    const kind = raw["soften-recarb-kind"];
+    return {
+      remove_magnesium: raw["soften-mode"] === "magnesium",
+      ...Object.fromEntries(STATE_NUMBERS.map(([key, id]) => [key, stateNumber(raw[id])])),
+      flow_unit: raw["soften-flow-unit"],
+      recarbonation: kind === "none" ? null : { [`target_${kind}`]: stateNumber(raw["soften-recarb-value"]) },
+    };
+  }
+
+  function set(obj) {
+    if (!obj || typeof obj !== "object" || Array.isArray(obj)) return ["Softening: not a group of inputs; ignored"];
+    const notes = [];
+    if (typeof obj.remove_magnesium === "boolean") view.write("soften-mode", obj.remove_magnesium ? "magnesium" : "calcium");
+    else if (obj.remove_magnesium !== undefined) {
+      notes.push(`Softening: what to remove (${quoted(obj.remove_magnesium)}) is not yes or no; kept ${view.read()["soften-mode"]} only`);
+    }
+    for (const [key, id] of STATE_NUMBERS) if (obj[key] !== undefined) view.write(id, text(obj[key]));
+    if (obj.flow_unit !== undefined) {
+      if (!FLOW_UNITS.some(([u]) => u === obj.flow_unit)) notes.push(`Softening: flow unit ${quoted(obj.flow_unit)} is not known; kept ${view.read()["soften-flow-unit"]}`);
+      else view.write("soften-flow-unit", obj.flow_unit);
+    }
+    const r = obj.recarbonation;
+    if (r === null) view.write("soften-recarb-kind", "none");
+    else if (r && typeof r === "object" && !Array.isArray(r) && RECARB_KINDS.some((k) => r[`target_${k}`] !== undefined)) {
+      const kind = RECARB_KINDS.find((k) => r[`target_${k}`] !== undefined);
+      view.write("soften-recarb-kind", kind);
+      view.write("soften-recarb-value", text(r[`target_${kind}`]));
+    } else if (r !== undefined) {
+      notes.push(`Softening: the recarbonation ${quoted(r)} names no target LSI, CCPP or pH; kept ${view.read()["soften-recarb-kind"]} ${view.read()["soften-recarb-value"]}`);
+    }
+    opened = true;
+    dirty = true; // computed when the job is shown (or at once when it is)
+    return notes;
+  }
+
+  /** Put the inputs named in `problems` back to their defaults (see section.js settle). */
+  function reset(problems) {
+    const notes = [];
+    const raw = view.read();
+    for (const [id, message] of Object.entries(problems)) {
+      const why = String(message).replace(/\.$/, "");
+      const number = STATE_NUMBERS.find(([, input]) => input === id);
+      if (number && raw[id] !== "") {
+        view.write(id, "");
+        notes.push(`Softening: ${number[2]} ${quoted(raw[id])} could not be used (${why}); it was left empty`);
+      } else if (id === "soften-recarb-value" && (raw["soften-recarb-kind"] !== RECARB_DEFAULT.kind || raw[id] !== RECARB_DEFAULT.value)) {
+        view.write("soften-recarb-kind", RECARB_DEFAULT.kind);
+        view.write(id, RECARB_DEFAULT.value);
+        notes.push(`Softening: recarbonation to ${raw["soften-recarb-kind"] === "pH" ? "a pH" : `a ${raw["soften-recarb-kind"]}`} of ` +
+          `${quoted(raw[id])} could not be used (${why}); to an LSI of 0 instead`);
+      }
+    }
+    return notes;
+  }
+
+  async function settle() {
+    if (!opened) return [];
+    opened = false;
+    // the inputs are checked (and, while the job is shown, computed); what cannot be used goes
+    // back to its default and is named
+    return block.settle(reset);
+  }
+
+  registerSection(JOB, { get, set, settle, refresh });
 
   const initial = water.scenario?.();
   if (initial) current.scenario = initial;

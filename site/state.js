@@ -7,7 +7,10 @@
 //               for anything it could not use; it does not recompute (applyState does that).
 //   settle() -> computes; an input the core or the parser cannot use is put back to its default
 //               and named in the returned notes, so an opened link always computes.
+//   settleAfter -> optional names of sections this one settles after (when they are applied too).
 // A section calls notifyInputChange(name) whenever the user changes one of its inputs.
+
+import { JOBS, isJob, showJob, shownJob } from "./workbench.js";
 
 /** Version of the state object; share.js migrates older versions up to this one.
  *  2: strong ions keyed by words ("calcium", "sulfate") instead of formulas ("Ca+2", "SO4-2"). */
@@ -19,7 +22,7 @@ const listeners = new Set();
 /**
  * @param {string} name  key of the section in the state object (e.g. "distribution", "water")
  * @param {{get: () => object, set: (obj: object) => string[], settle?: () => Promise<string[]>,
- *          refresh?: () => Promise<any>}} handlers
+ *          refresh?: () => Promise<any>, settleAfter?: string[]}} handlers
  */
 export function registerSection(name, handlers) {
   sections.set(name, handlers);
@@ -57,7 +60,14 @@ export async function applyState(state, names = null) {
       }
     }
   }
-  for (const [, { settle, refresh }] of chosen) {
+  // settled in registration order, each after the sections it names in settleAfter
+  const order = [...chosen];
+  for (const entry of chosen) {
+    const at = Math.max(-1, ...(entry[1].settleAfter ?? []).map((n) => order.findIndex(([name]) => name === n)));
+    const from = order.indexOf(entry);
+    if (at > from) order.splice(at, 0, ...order.splice(from, 1));
+  }
+  for (const [, { settle, refresh }] of order) {
     if (settle) messages.push(...((await settle()) || []));
     else if (refresh) await refresh();
   }
@@ -74,3 +84,29 @@ export function onInputChange(listener) {
 export function notifyInputChange(section) {
   for (const listener of listeners) listener(section);
 }
+
+// Section "workbench": which job is in view ({job: "scale"}), so a link, file or report reopens
+// the job it was made on. The job is shown when the opened state settles, once the water is
+// (settleAfter), before the jobs settle: the job shown computes once, on the opened inputs.
+// Choosing a job is not an input edit (the link in the address bar is rewritten at the next
+// edit; Copy link, files and reports take the job in view when they are made).
+let wantedJob = null;
+registerSection("workbench", {
+  get: () => ({ job: shownJob() }),
+  set(obj) {
+    wantedJob = null;
+    if (obj?.job === undefined) return [];
+    if (typeof obj.job === "string" && isJob(obj.job)) {
+      wantedJob = obj.job;
+      return [];
+    }
+    const label = JOBS.find((j) => j.name === shownJob())?.label ?? shownJob();
+    return [`the job to show, ${JSON.stringify(obj.job)?.slice(0, 40)}, is not one of this page's jobs; ${label} stays in view`];
+  },
+  async settle() {
+    if (wantedJob) showJob(wantedJob);
+    wantedJob = null;
+    return [];
+  },
+  settleAfter: ["water"],
+});

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -262,3 +263,194 @@ def test_a_shared_link_reproduces_the_indices(page: Page, context, watch):
     assert other.get_attribute("#scale-indices tr[data-key='CCPP'] td[data-key='value']", "data-value") == ccpp
     settled(other, BOOT_MS)
     other.close()
+
+
+# -- the job's inputs travel in links, files and the report (state keys "scale", "softening",
+#    "workbench") --------------------------------------------------------------------------------
+
+PRESETS = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))["presets"]
+# The page's own reader of the link in the address bar (site/share.js readFragmentAsync).
+HASH_STATE = """() => { import('./share.js')
+  .then((m) => m.readFragmentAsync(location.hash, ['water', 'scale', 'softening', 'workbench']))
+  .then((r) => { window.__linked = r.kind === 'state' ? r.state : null; });
+  return window.__linked || null; }"""
+
+
+def plain_link(state: dict) -> str:
+    """A plain s= link (site/share.js: base64url of the state's UTF-8 JSON, no padding)."""
+    import base64
+    raw = json.dumps(state).encode()
+    return f"#s={state['v']}." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
+
+
+def water_of(preset_id: str) -> dict:
+    return next(p for p in PRESETS if p["id"] == preset_id)["state"]["water"]
+
+
+SCALE_INPUTS = {
+    "ccpp_temperatures_C": [5, 60], "CO2_partial_pressure_atm": 0.00042,
+    "dose": {"chemical": "Ca(OH)2", "target_CCPP": 4, "flow": 9500, "flow_unit": "m3/d"},
+    "steps": [{"chemical": "Ca(OH)2", "target_pH": 9.8}, {"chemical": "CO2", "target_LSI": 0.2}],
+    "blend": {"other": "upland-conditioning", "fractions": [0.6, 0.4]},
+}
+SOFTENING_INPUTS = {
+    "remove_magnesium": True, "softening_pH": None, "lime_mg_per_L": None, "soda_ash_mg_per_L": None,
+    "target_hardness_mg_per_L_as_CaCO3": 90, "excess_lime_meq_per_L": None, "flow": 25000, "flow_unit": "m3/d",
+    "recarbonation": {"target_pH": 8.6},
+}
+
+
+def read_linked(page: Page) -> dict:
+    """The state in the address bar's link, once the page has written one (a y= link)."""
+    page.wait_for_function(HASH_STATE, timeout=BOOT_MS)
+    assert page.evaluate("location.hash").startswith("#y=2.")
+    return page.evaluate("() => window.__linked")
+
+
+def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbers_are_the_cores(page: Page, watch):
+    state = {"v": 2, "water": water_of("hard-well-scale"), "scale": SCALE_INPUTS, "softening": SOFTENING_INPUTS,
+             "workbench": {"job": "scale"}}
+    page.goto("/" + plain_link(state))
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    # the job the link was made on is the one in view, and it computes on the link's inputs
+    expect(page.locator("body")).to_have_attribute("data-job", "scale", timeout=BOOT_MS)
+    for block in ("indices", "dose", "steps", "blend"):
+        wait_drawn(page, block)
+    settled(page, BOOT_MS)
+    expect(page.locator("#share-message")).to_have_text("Opened the scenario from the link.")
+    # the fields hold the link's inputs, and the page's state is exactly the link's
+    for sel, value in (("#scale-temperatures", "5, 60"), ("#scale-pco2", "0.00042"), ("#scale-dose-chemical", "Ca(OH)2"),
+                       ("#scale-dose-target-kind", "CCPP"), ("#scale-dose-target", "4"), ("#scale-dose-flow", "9500"),
+                       ("#scale-step-0-chemical", "Ca(OH)2"), ("#scale-step-0-kind", "target_pH"), ("#scale-step-0-value", "9.8"),
+                       ("#scale-step-1-chemical", "CO2"), ("#scale-step-1-kind", "target_LSI"), ("#scale-step-1-value", "0.2"),
+                       ("#scale-blend-with", "upland-conditioning"), ("#scale-blend-f1", "0.6"), ("#scale-blend-f2", "0.4")):
+        expect(page.locator(sel)).to_have_value(value)
+    expect(page.locator("#scale-steps .scale-step")).to_have_count(2)
+    mine = page.evaluate(STATE)
+    assert mine["scale"] == SCALE_INPUTS and mine["softening"] == SOFTENING_INPUTS and mine["workbench"] == {"job": "scale"}
+    # ... and the numbers are the core's for those inputs (the core run in this process)
+    scenario = core_scenario(mine["water"]["scenario"])
+    want = core("solve", {**scenario, "uncertainty": True, "ccpp_temperatures_C": [5, 60],
+                          "ccpp_open_CO2_partial_pressure_atm": 0.00042})["calcium_carbonate"]
+    assert close(num(page, "#scale-indices tr[data-key='CCPP_open'] td[data-key='value']"), want["CCPP_open_mg_per_L_as_CaCO3"])
+    temps = page.eval_on_selector_all("#scale-temperature-table tbody tr", """trs => trs.map((tr) => [
+        Number(tr.dataset.temperature), Number(tr.querySelector('td[data-key=CCPP]').dataset.value)])""")
+    assert [t for t, _ in temps] == pytest.approx([r["temperature_C"] for r in want["at_temperatures"]])
+    assert [5, 60] == pytest.approx([t for t, _ in temps][1:])
+    for (_, ccpp), ref in zip(temps, want["at_temperatures"]):
+        assert close(ccpp, ref["CCPP_mg_per_L_as_CaCO3"])
+    dose = core("dose", {"scenario": scenario, "chemical": "Ca(OH)2", "target_CCPP": 4, "flow": 9500, "flow_unit": "m3/d"})
+    assert close(num(page, "#scale-dose-mg"), dose["dose_mg_per_L"])
+    assert close(num(page, "#scale-dose-kg-per-d"), dose["pure_chemical_kg_per_d"])
+    steps = core("treat", {"scenario": scenario, "steps": [{"chemical": "Ca(OH)2", "target_pH": 9.8},
+                                                           {"chemical": "CO2", "target_LSI": 0.2}]})
+    rows = page.eval_on_selector_all("#scale-steps-table tbody tr[data-step]:not([data-step='0'])",
+                                     "trs => trs.map((tr) => Number(tr.querySelector('td[data-key=dose]').dataset.value))")
+    assert len(rows) == 2 and all(close(a, s["dose_mg_per_L"]) for a, s in zip(rows, steps["steps"]))
+    other = core_scenario(water_of("upland-conditioning")["scenario"])
+    blend = core("blend", {"waters": [scenario, other], "fractions": [0.6, 0.4]})
+    assert close(num(page, "#scale-blend-table tr[data-key='LSI'] td[data-key='blend']"), blend["blend"]["LSI"])
+
+    # the softening job, put away meanwhile, holds its inputs and computes them when shown
+    before = drawn_softening(page)
+    show_job(page, "softening")
+    wait_softening(page, before)
+    settled(page, BOOT_MS)
+    for sel, value in (("#soften-mode", "magnesium"), ("#soften-ph", ""), ("#soften-target-hardness", "90"),
+                       ("#soften-flow", "25000"), ("#soften-recarb-kind", "pH"), ("#soften-recarb-value", "8.6")):
+        expect(page.locator(sel)).to_have_value(value)
+    soft = core("soften", {"scenario": scenario, "remove_magnesium": True, "target_hardness_mg_per_L_as_CaCO3": 90,
+                           "flow": 25000, "flow_unit": "m3/d", "recarbonation": {"target_pH": 8.6}})
+    assert close(num(page, "#soften-lime-dose"), soft["lime"]["dose_mg_per_L"])
+    assert close(num(page, "#soften-soda-dose"), soft["soda_ash"]["dose_mg_per_L"])
+    assert close(num(page, "#soften-residual"), soft["residual_hardness_mg_per_L_as_CaCO3"]["total"])
+    assert close(num(page, "#soften-recarb"), soft["recarbonation"]["dose_mg_per_L"])
+
+    # the link the page writes (y=, short keys) carries them, and the job in view when it is made
+    linked = read_linked(page)
+    assert linked["scale"] == SCALE_INPUTS and linked["softening"] == SOFTENING_INPUTS
+    page.click("#share-copy")
+    expect(page.locator("#share-message")).to_contain_text(re.compile("Link copied|copy it"))  # clipboard or not
+    page.evaluate("() => { window.__linked = null; }")
+    assert read_linked(page)["workbench"] == {"job": "softening"}
+    assert page.input_value("#share-url") == page.evaluate("location.href")
+
+    # the printed report lists them in words with their units
+    page.evaluate("() => { window.__printed = 0; window.print = () => { window.__printed += 1; }; }")
+    page.click("#print-report")
+    page.wait_for_function("() => window.__printed === 1")
+    inputs = page.eval_on_selector_all("#report table.report-inputs", """ts => Object.fromEntries(ts.flatMap((t) =>
+        Array.from(t.tBodies[0].rows, (tr) => [`${t.caption.textContent}/${tr.cells[0].textContent}`, tr.cells[1].textContent])))""")
+    scale = "Scale and corrosion: "
+    assert inputs[f"{scale}calcium carbonate indices/CCPP also at"] == "5, 60 °C"
+    assert inputs[f"{scale}calcium carbonate indices/CCPP also open to CO₂ at a partial pressure of"] == "0.00042 atm"
+    assert inputs[f"{scale}condition to a target LSI or CCPP/Target"] == "a CCPP of 4 mg/L as CaCO₃"
+    assert inputs[f"{scale}condition to a target LSI or CCPP/Plant flow"] == "9500 m³/d"
+    assert inputs[f"{scale}chemicals in sequence/Step 1"].endswith("to pH 9.8")
+    assert inputs[f"{scale}chemicals in sequence/Step 2"].endswith("to an LSI of 0.2")
+    assert inputs[f"{scale}blend with another water/Flow fractions"] == "0.6 of the water above, 0.4 of the other water"
+    assert "invented" in inputs[f"{scale}blend with another water/The other water"]  # the example's title
+    assert inputs["Softening/Remove"] == "calcium and magnesium"
+    assert inputs["Softening/Soda ash to a total hardness of"] == "90 mg/L as CaCO₃"
+    assert inputs["Softening/Plant flow"] == "25000 m³/d"
+    assert inputs["Softening/Recarbonation"] == "with CO₂ to pH 8.6"
+    assert inputs["Job in view/Job"].startswith("Softening")
+
+
+def drawn_softening(page: Page) -> int:
+    return int(page.evaluate("() => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0)"))
+
+
+def wait_softening(page: Page, before: int) -> None:
+    page.wait_for_function(
+        "(n) => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0) > n", arg=before,
+        timeout=BOOT_MS)
+
+
+def test_a_hostile_link_in_the_scale_inputs_keeps_the_valid_ones_names_the_rest_and_computes(page: Page, watch):
+    dialogs = []
+    page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
+    state = {"v": 2, "water": water_of("hard-well-scale"), "workbench": {"job": "scale"}, "scale": {
+        "ccpp_temperatures_C": [60, 250], "CO2_partial_pressure_atm": "lots",
+        "dose": {"chemical": "<img src=x onerror=\"window.__pwned=1\">", "target_LSI": "abc", "flow": -5,
+                 "flow_unit": "furlongs"},
+        "steps": [{"chemical": "Ca(OH)2", "target_pH": 9.5}, {"chemical": "CO2", "target_LSI": "zero"},
+                  {"chemical": "XYZ", "target_pH": 8}, "junk"],
+        "blend": {"other": "nowhere", "fractions": [2, -1]},
+    }}
+    page.goto("/" + plain_link(state))
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    expect(page.locator("body")).to_have_attribute("data-job", "scale", timeout=BOOT_MS)
+    for block in ("indices", "dose", "steps", "blend"):
+        wait_drawn(page, block)
+    settled(page, BOOT_MS)
+    message = page.locator("#share-message")
+    expect(message).to_have_attribute("data-kind", "warning")
+    for words in ('CCPP temperatures "60, 250" could not be used', "no further temperatures are used",
+                  'CO₂ partial pressure of the open CCPP "lots" could not be used', "the CCPP open to CO₂ is left out",
+                  "the dose's chemical \"<img", 'dose target "abc" could not be used', "0 is used instead",
+                  'plant flow of the dose "-5" could not be used', 'flow unit "furlongs" is not known',
+                  "step 2 (", "could not be used", "step 3's chemical \"XYZ\" is not offered here",
+                  "step 4 names no target or dose", 'the water to blend with "nowhere" is not an example',
+                  'blend flow fractions "2" and "-1" could not be used', "0.7 and 0.3 are used instead"):
+        expect(message).to_contain_text(words)
+    # nothing of it ran or was put in the page as markup
+    assert page.evaluate("() => window.__pwned") is None and dialogs == []
+    assert page.locator("main img[src='x']").count() == 0
+    # every valid part is kept; what was dropped is back at its default
+    mine = page.evaluate(STATE)["scale"]
+    assert mine["ccpp_temperatures_C"] == [] and mine["CO2_partial_pressure_atm"] is None
+    assert mine["dose"] == {"chemical": "NaOH", "target_LSI": 0, "flow": None, "flow_unit": "m3/d"}
+    assert mine["steps"] == [{"chemical": "Ca(OH)2", "target_pH": 9.5}]
+    assert mine["blend"]["fractions"] == [0.7, 0.3]
+    # ... and the page computes them: the numbers are the core's
+    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    want = core("solve", {**scenario, "uncertainty": True, "ccpp_temperatures_C": []})["calcium_carbonate"]
+    assert close(num(page, "#scale-indices tr[data-key='LSI'] td[data-key='value']"), want["LSI"])
+    dose = core("dose", {"scenario": scenario, "chemical": "NaOH", "target_LSI": 0})
+    assert close(num(page, "#scale-dose-mg"), dose["dose_mg_per_L"])
+    steps = core("treat", {"scenario": scenario, "steps": [{"chemical": "Ca(OH)2", "target_pH": 9.5}]})
+    got = page.get_attribute("#scale-steps-table tbody tr[data-step='1'] td[data-key='dose']", "data-value")
+    assert close(float(got), steps["steps"][0]["dose_mg_per_L"])
+    for sel in ("#scale-results", "#scale-dose-results", "#scale-steps-results", "#scale-blend-results"):
+        expect(page.locator(sel)).to_have_attribute("data-state", "current")

@@ -9,8 +9,10 @@ chemistry), only that the page shows what the core computes.
 
 from __future__ import annotations
 
+import base64
 import json
 import math
+from pathlib import Path
 
 import pytest
 from playwright.sync_api import Page, expect
@@ -111,3 +113,50 @@ def test_bad_softening_inputs_get_their_message_and_no_figures(page: Page, watch
     expect(page.locator("#soften-recarb-value-error")).to_have_text("")
     expect(page.locator("#soften-lime-dose")).not_to_have_attribute("data-value", "", timeout=BOOT_MS)
     settled(page, BOOT_MS)
+
+
+def plain_link(state: dict) -> str:
+    """A plain s= link (site/share.js: base64url of the state's UTF-8 JSON, no padding)."""
+    raw = json.dumps(state).encode()
+    return f"#s={state['v']}." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
+
+
+def test_a_hostile_link_in_the_softening_inputs_keeps_the_valid_ones_names_the_rest_and_computes(page: Page, watch):
+    # the job is not the one in view when the link opens: its inputs are still checked and named
+    # at once, and computed when the job is shown
+    presets = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))
+    water = next(p for p in presets["presets"] if p["id"] == "lime-softening-plant")["state"]["water"]
+    state = {"v": 2, "water": water, "softening": {
+        "remove_magnesium": "yes", "softening_pH": 15, "lime_mg_per_L": 200, "soda_ash_mg_per_L": "lots",
+        "target_hardness_mg_per_L_as_CaCO3": None, "excess_lime_meq_per_L": 0.8, "flow": "<b>9</b>",
+        "flow_unit": "furlongs", "recarbonation": {"target_pH": "abc"}}}
+    page.goto("/" + plain_link(state))
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    settled(page, BOOT_MS)
+    assert page.get_attribute("body", "data-job") == "water"
+    message = page.locator("#share-message")
+    expect(message).to_have_attribute("data-kind", "warning")
+    for words in ('what to remove ("yes") is not yes or no', 'softening pH "15" could not be used', "it was left empty",
+                  'soda ash dose "lots" could not be used', 'plant flow "<b>9</b>" could not be used',
+                  'flow unit "furlongs" is not known', 'recarbonation to a pH of "abc" could not be used',
+                  "to an LSI of 0 instead"):
+        expect(message).to_contain_text(words)
+    assert page.locator("main b").count() == 0
+    # every valid part is kept (the lime dose, the excess lime), the rest back at its default
+    mine = page.evaluate(STATE)["softening"]
+    assert mine == {"remove_magnesium": False, "softening_pH": None, "lime_mg_per_L": 200, "soda_ash_mg_per_L": None,
+                    "target_hardness_mg_per_L_as_CaCO3": None, "excess_lime_meq_per_L": 0.8, "flow": None,
+                    "flow_unit": "m3/d", "recarbonation": {"target_LSI": 0}}
+    # ... and computed when the job is shown: the numbers are the core's
+    show_job(page, "softening")
+    wait_drawn(page)
+    settled(page, BOOT_MS)
+    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    want = core("soften", {"scenario": scenario, "remove_magnesium": False, "lime_mg_per_L": 200,
+                           "excess_lime_meq_per_L": 0.8, "recarbonation": {"target_LSI": 0}})
+    assert close(num(page, "#soften-lime-dose"), want["lime"]["dose_mg_per_L"])
+    assert close(num(page, "#soften-residual"), want["residual_hardness_mg_per_L_as_CaCO3"]["total"])
+    assert close(num(page, "#soften-recarb"), want["recarbonation"]["dose_mg_per_L"])
+    expect(page.locator("#soften-results")).to_have_attribute("data-state", "current")
+    for sel in ("#soften-ph-error", "#soften-lime-error", "#soften-recarb-value-error"):
+        expect(page.locator(sel)).to_have_text("")

@@ -21,8 +21,22 @@ test("the report's inputs are words and units, never key paths", () => {
     dose: { chemical: "NaOH", product: "naoh-50", target_pH: 8, strength_pct: 50, density_kg_per_L: 1.525, flow: 2.5, flow_unit: "MGD" },
     buffer: { from_pH: 7, to_pH: 4.5, log_scale: true },
   };
-  state.scale = { target_LSI: 0.2, steps: [{ chemical: "NaOH", dose_mg_per_L: 3 }] };
-  const names = { "chemical:NaOH": "NaOH: Sodium hydroxide", "product:naoh-50": "Caustic soda solution 50 %", "flow-unit:MGD": "MGD (million US gal/d)" };
+  // the scale and softening jobs' inputs as site/scale.js and softening.js write them
+  state.scale = {
+    ccpp_temperatures_C: [5, 60], CO2_partial_pressure_atm: 0.00042,
+    dose: { chemical: "Ca(OH)2", target_CCPP: 4, flow: 9500, flow_unit: "m3/d" },
+    steps: [{ chemical: "NaOH", dose_mg_per_L: 3 }, { chemical: "CO2", target_LSI: 0.2 }],
+    blend: { other: "hard-well-scale", fractions: [0.6, 0.4] },
+  };
+  state.softening = {
+    remove_magnesium: true, softening_pH: null, lime_mg_per_L: 180, soda_ash_mg_per_L: null,
+    target_hardness_mg_per_L_as_CaCO3: 90, excess_lime_meq_per_L: null, flow: 25000, flow_unit: "m3/d",
+    recarbonation: { target_pH: 8.6 },
+  };
+  state.workbench = { job: "scale" };
+  const names = { "chemical:NaOH": "NaOH: Sodium hydroxide", "product:naoh-50": "Caustic soda solution 50 %", "flow-unit:MGD": "MGD (million US gal/d)",
+    "flow-unit:m3/d": "m³/d", "dose-chemical:Ca(OH)2": "Ca(OH)₂: calcium hydroxide", "dose-chemical:NaOH": "NaOH: sodium hydroxide",
+    "dose-chemical:CO2": "CO₂: carbon dioxide", "example:hard-well-scale": "Hard well water" };
   const groups = describeInputs(state, (kind, id) => names[`${kind}:${id}`] ?? null);
   const rows = Object.fromEntries(groups.flatMap((g) => g.rows.map(([k, v]) => [`${g.title}/${k}`, v])));
   assert.equal(groups[0].title, "The water");
@@ -35,10 +49,26 @@ test("the report's inputs are words and units, never key paths", () => {
   assert.equal(rows["Dose to a target pH/Product"], "Caustic soda solution 50 %");
   assert.equal(rows["Dose to a target pH/Plant flow"], "2.5 MGD (million US gal/d)");
   assert.equal(rows["Buffer intensity/Buffer capacity between"], "pH 7 and pH 4.5");
-  assert.equal(rows["Scale/Target LSI"], "0.2");
-  assert.equal(rows["Scale/Steps 1, dose"], "3 mg/L");
+  assert.equal(groups[1].title, "Job in view");
+  assert.equal(rows["Job in view/Job"], "Scale and corrosion (calcium carbonate: scaling or corrosive)");
+  const scale = "Scale and corrosion: ";
+  assert.equal(rows[`${scale}calcium carbonate indices/CCPP also at`], "5, 60 °C");
+  assert.equal(rows[`${scale}calcium carbonate indices/CCPP also open to CO₂ at a partial pressure of`], "0.00042 atm");
+  assert.equal(rows[`${scale}condition to a target LSI or CCPP/Chemical`], "Ca(OH)₂: calcium hydroxide");
+  assert.equal(rows[`${scale}condition to a target LSI or CCPP/Target`], "a CCPP of 4 mg/L as CaCO₃");
+  assert.equal(rows[`${scale}condition to a target LSI or CCPP/Plant flow`], "9500 m³/d");
+  assert.equal(rows[`${scale}chemicals in sequence/Step 1`], "NaOH: sodium hydroxide, a fixed dose of 3 mg/L");
+  assert.equal(rows[`${scale}chemicals in sequence/Step 2`], "CO₂: carbon dioxide, to an LSI of 0.2");
+  assert.equal(rows[`${scale}blend with another water/The other water`], "Hard well water");
+  assert.equal(rows[`${scale}blend with another water/Flow fractions`], "0.6 of the water above, 0.4 of the other water");
+  assert.equal(rows["Softening/Remove"], "calcium and magnesium");
+  assert.equal(rows["Softening/Lime dose"], "180 mg/L as Ca(OH)₂");
+  assert.equal(rows["Softening/Soda ash to a total hardness of"], "90 mg/L as CaCO₃");
+  assert.equal(rows["Softening/Plant flow"], "25000 m³/d");
+  assert.equal(rows["Softening/Recarbonation"], "with CO₂ to pH 8.6");
+  assert.equal(rows["Softening/Softening pH"], undefined); // a lime dose given: no pH
   for (const [key, value] of Object.entries(rows)) {
-    assert.doesNotMatch(key + value, /temperature_C|measured\.|_kg_per_L|_pct|scenario\./, key);
+    assert.doesNotMatch(key + value, /temperature_C|measured\.|_kg_per_L|_pct|scenario\.|_mg_per_L|_atm|target_|null|undefined/, key);
   }
 });
 

@@ -4,7 +4,7 @@ import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
 import {
-  ION_WORDS, MAX_JSON_BYTES, encodeState, encodeStateShort, expandKeys, migrate, readFragment, readFragmentAsync,
+  ION_WORDS, KEY_TABLE_1, MAX_JSON_BYTES, encodeState, encodeStateShort, expandKeys, migrate, readFragment, readFragmentAsync,
   readStateJson, shortenKeys, toBase64Url,
 } from "../../site/share.js";
 import { STATE_VERSION } from "../../site/state.js";
@@ -117,4 +117,64 @@ test("a damaged, cut or oversized short link is refused with a reason", async ()
   const boom = await readFragmentAsync(`#y=2.${toBase64Url(packed)}`, SECTIONS);
   assert.equal(boom.kind, "error");
   assert.match(boom.reason, /more than/);
+});
+
+// -- the key table only grows: y= links written before keys were appended keep their meaning --
+
+// KEY_TABLE_1 as it was before the scale, softening and workbench keys were appended.
+const KEY_TABLE_BEFORE_SCALE = [
+  "v", "distribution", "water", "treatment", "scenario", "display", "titration", "dose", "buffer",
+  "acid", "pKa", "charge", "total_M", "pH", "temperature_C", "activity", "measured", "alkalinity",
+  "value", "unit", "systems", "ions", "id", "total", "custom", "name", "mass", "complexes",
+  "precipitate", "gas", "CO2_partial_pressure_atm", "ionic_strength_M", "tds_mg_per_L",
+  "conductance_uS_per_cm", "plot_system", "titrant", "titrant_M", "titrant_N", "sample_mL", "to_pH",
+  "axis", "chemical", "product", "target_pH", "strength_pct", "density_kg_per_L", "flow", "flow_unit",
+  "from_pH", "log_scale", "charge_most_protonated", "molar_mass_g_per_mol", "ccpp_temperatures_C",
+  "uncertainty", "temperature_F", "target_LSI", "target_CCPP", "steps", "dose_mg_per_L",
+];
+// A y= link the page wrote before those keys were appended (the example "hard-well-scale" with
+// lead and hardness inputs), and the state it holds.
+const OLD_Y_LINK = "y=2.bZJBa8MwDIX_ynhn0cZO0na6ZocOCt19jODVbpPhxCFOy1jxfvtwU9oOchG29OlJPPuMBCwJEnxGFoMBC0nYg6HVqTYehEMsaPByJglVvNRgucgJX2A0h_nmSfmnQhXbFCEQLPj9jAaMnbK7-tiA0IJFkt07EGhEGnVojb9Bz7N8AvJO32UWE0DnBuXvKnImJqBdZV1fazMy6RTij3avhiuRyQmirYf-RojVI_ERCHm0554KhDRmFjGIBJzMEkkQMtqREEQKzggiA-Pk7LGJwj9grAuLQFhe-nIwiq0EQSzBS4JYgdujtQTxfDupuPFF9DPOT-d6fA2j9EUlznh5LUDY964BC8Lv4K6LuH6oXFc531VqMKV23pTNoexMX25K5cu3uPqKsK-_jS67dfwNq1G89M7W2oOhrAVh57rY9i8bCJXqdWu8f3BCjE7kyaOuSEL4Aw";
+const OLD_Y_STATE = {
+  ...PRESETS.find((p) => p.id === "hard-well-scale").state,
+  lead: { axis: "DIC", from: 1, to: 100, orthophosphate_dose_mg_per_L_as_P: 0.8, fixed_pH: 7.8, lead_solids: "all", copper_solids: "all" },
+  hardness: { sample_mL: 50, titrant_M: 0.01, fixed_pH: 10 },
+};
+
+test("the key table keeps every earlier key at its place", () => {
+  assert.deepEqual(KEY_TABLE_1.slice(0, KEY_TABLE_BEFORE_SCALE.length), KEY_TABLE_BEFORE_SCALE);
+  assert.equal(new Set(KEY_TABLE_1).size, KEY_TABLE_1.length); // no key twice
+});
+
+test("a y= link written before the scale and softening keys still opens to the same state", async () => {
+  const all = ["distribution", "water", "treatment", "lead", "hardness", "scale", "softening", "workbench"];
+  const back = await readFragmentAsync(`#${OLD_Y_LINK}`, all);
+  assert.equal(back.kind, "state");
+  assert.deepEqual(back.notes, []);
+  assert.deepEqual(back.state, OLD_Y_STATE);
+});
+
+test("the scale, softening and workbench inputs round-trip through a y= link with short keys", async () => {
+  const state = {
+    v: 2, workbench: { job: "softening" },
+    scale: {
+      ccpp_temperatures_C: [5, 60], CO2_partial_pressure_atm: 0.00042,
+      dose: { chemical: "NaOH", target_LSI: 0.3, flow: null, flow_unit: "m3/d" },
+      steps: [{ chemical: "Ca(OH)2", target_pH: 9.5 }, { chemical: "CO2", dose_mg_per_L: "12 x" }],
+      blend: { other: "hard-well-scale", fractions: [0.6, 0.4] },
+    },
+    softening: {
+      remove_magnesium: false, softening_pH: 10.4, lime_mg_per_L: null, soda_ash_mg_per_L: 30,
+      target_hardness_mg_per_L_as_CaCO3: null, excess_lime_meq_per_L: null, flow: null, flow_unit: "L/s",
+      recarbonation: null,
+    },
+  };
+  const short = await encodeStateShort(state);
+  const back = await readFragmentAsync(`#${short}`, ["scale", "softening", "workbench"]);
+  assert.deepEqual(back, { kind: "state", state, notes: [] });
+  // the appended keys are written as table indices, not spelled out
+  const keys = JSON.stringify(shortenKeys(state));
+  for (const word of ["scale", "softening", "workbench", "remove_magnesium", "recarbonation", "fractions"]) {
+    assert.ok(!keys.includes(`"${word}":`), word);
+  }
 });
