@@ -15,6 +15,10 @@
 - ``core_handle(method, params_json)``: the core's JSON entry point, as the worker calls it.
 - ``core_scenario(scenario)``: a page scenario with each ion id as the core's library has it
   (word ids, or the formula ids of a core that has not moved to words yet).
+- For the jobs' page tests: ``core(method, params)`` (the core's answer, which must be ok),
+  ``page_water(page)``, ``open_job(page, fragment, job, blocks)``, ``draw_marks(job)`` (the
+  job's draw counts and a wait for the next), ``close(a, b)``, ``data_number(page, selector)``,
+  ``STATE`` and ``JOB_MS``.
 - ``AXE``: axe-core's axe.min.js (build_scripts/node_modules, a dev dependency) for the
   accessibility checks.
 """
@@ -22,6 +26,7 @@
 from __future__ import annotations
 
 import json
+import math
 import subprocess
 import sys
 import threading
@@ -76,6 +81,78 @@ def show_job(page, name: str, timeout: int = 90_000) -> None:
     inputs of a hidden job cannot be filled or clicked."""
     page.locator(f"#job-tab-{name}").click(timeout=timeout)
     page.wait_for_function("(n) => document.body.dataset.job === n", arg=name, timeout=timeout)
+
+
+# -- the jobs' page tests (test_page_lead, _hardness, _scale, _softening): the page's water, its
+#    answer from the core in this process, and the job's draw marks --------------------------------
+
+#: How long a job's page may take to boot, compute and draw on a machine shared by several runs [ms].
+JOB_MS = 120_000
+#: The page's inputs as its own registry collects them (site/state.js collectState).
+STATE = "async () => (await import('./state.js')).collectState()"
+
+
+def core(method: str, params: dict) -> dict:
+    """The core's answer to ``method`` with ``params`` (:func:`core_handle`); a refusal fails the test."""
+    reply = json.loads(core_handle(method, json.dumps(params)))
+    assert reply["ok"], reply
+    return reply["result"]
+
+
+def page_water(page) -> dict:
+    """The water on the page (its input-state registry) as a scenario for the core (:func:`core_scenario`)."""
+    return core_scenario(page.evaluate(STATE)["water"]["scenario"])
+
+
+def draw_marks(job: str):
+    """``(drawn, wait_drawn)`` for the blocks of the workbench's job ``job``: the page raises
+    ``#job-<job>[data-<block>-drawn]`` each time it draws a block (site/job-view.js).
+
+    ``drawn(page, block)`` reads the count; ``wait_drawn(page, block, before=0, settle=False)``
+    waits until it is above ``before`` (a condition, :data:`JOB_MS`), then with ``settle`` until
+    the page has nothing left to compute (:func:`settled`).
+    """
+    def count(block: str) -> str:
+        return f"Number(document.getElementById('job-{job}').dataset.{block}Drawn || 0)"
+
+    def drawn(page, block: str) -> int:
+        return int(page.evaluate(f"() => {count(block)}"))
+
+    def wait_drawn(page, block: str, before: int = 0, *, settle: bool = False) -> None:
+        page.wait_for_function(f"(n) => {count(block)} > n", arg=before, timeout=JOB_MS)
+        if settle:
+            settled(page, JOB_MS)
+
+    return drawn, wait_drawn
+
+
+def open_job(page, fragment: str, job: str, blocks=()) -> dict:
+    """Open the page at ``/<fragment>`` (``#preset=<id>`` or a link), wait until it is ready and
+    settled, bring ``job`` into view, wait until each of its ``blocks`` has been drawn and the
+    page has settled again; returns :func:`page_water`."""
+    from playwright.sync_api import expect
+
+    page.goto("/" + fragment)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=JOB_MS)
+    settled(page, JOB_MS)
+    show_job(page, job)
+    _, wait_drawn = draw_marks(job)
+    for block in blocks:
+        wait_drawn(page, block)
+    settled(page, JOB_MS)
+    return page_water(page)
+
+
+def close(a, b, rel: float = 1e-9, abs_: float = 1e-12) -> bool:
+    """``a`` and ``b`` (numbers, or the page's data-value strings) agree to ``rel`` or ``abs_``."""
+    return math.isclose(float(a), float(b), rel_tol=rel, abs_tol=abs_)
+
+
+def data_number(page, selector: str, attr: str = "data-value") -> float:
+    """The number the page wrote in ``attr`` of ``selector``; an empty or missing one fails the test."""
+    text = page.get_attribute(selector, attr)
+    assert text not in (None, ""), selector
+    return float(text)
 
 sys.path.insert(0, str(REPO / "build_scripts"))
 from serve import make_server  # noqa: E402

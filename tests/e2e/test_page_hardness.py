@@ -8,17 +8,13 @@ value of it is asserted, only that the page shows the core's.
 
 from __future__ import annotations
 
-import json
-import math
-
 import pytest
-from conftest import core_handle, settled, show_job
+from conftest import JOB_MS, STATE, close, core, draw_marks, open_job, page_water
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
 
-BOOT_MS = 120_000
-STATE = "async () => (await import('./state.js')).collectState()"
+count, wait_drawn = draw_marks("hardness")
 
 READ_PLOTS = """() => {
   const get = (m) => (m.data instanceof Map ? Object.fromEntries(m.data) : m.data);
@@ -41,35 +37,8 @@ READ_PLOTS = """() => {
 }"""
 
 
-def core(method: str, params: dict) -> dict:
-    reply = json.loads(core_handle(method, json.dumps(params)))
-    assert reply["ok"], reply
-    return reply["result"]
-
-
-def count(page: Page, block: str) -> int:
-    return int(page.evaluate(f"() => Number(document.querySelector('#job-hardness').dataset.{block}Drawn || 0)"))
-
-
-def redrawn(page: Page, block: str, before: int) -> None:
-    page.wait_for_function(
-        f"(n) => Number(document.querySelector('#job-hardness').dataset.{block}Drawn || 0) > n",
-        arg=before, timeout=BOOT_MS)
-    settled(page, timeout=BOOT_MS)
-
-
-def open_hardness(page: Page, fragment: str = "preset=co2-well", wait: bool = True) -> None:
-    page.goto("/#" + fragment)
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    settled(page, timeout=BOOT_MS)
-    show_job(page, "hardness")
-    if wait:
-        redrawn(page, "titration", 0)
-        redrawn(page, "conditional", 0)
-
-
-def close(a, b, rel=1e-9) -> bool:
-    return math.isclose(float(a), float(b), rel_tol=rel, abs_tol=1e-12)
+def open_hardness(page: Page, fragment: str = "#preset=co2-well", wait: bool = True) -> None:
+    open_job(page, fragment, "hardness", ["titration", "conditional"] if wait else [])
 
 
 def value(page: Page, selector: str) -> str:
@@ -77,7 +46,7 @@ def value(page: Page, selector: str) -> str:
 
 
 def check_titration(page: Page, sample_mL: float, titrant_M: float, pH: float) -> None:
-    scenario = page.evaluate(STATE)["water"]["scenario"]
+    scenario = page_water(page)
     ref = core("titrate", {"scenario": scenario, "titrant": "EDTA", "titrant_M": titrant_M,
                            "sample_mL": sample_mL, "fixed_pH": pH})
     assert close(value(page, "#hardness-total"), ref["total_hardness_mg_per_L_as_CaCO3"])
@@ -106,7 +75,7 @@ def check_titration(page: Page, sample_mL: float, titrant_M: float, pH: float) -
 def test_titration_and_conditional_constants_equal_the_core(page: Page, watch):
     open_hardness(page)
     check_titration(page, 50, 0.01, 10)
-    scenario = page.evaluate(STATE)["water"]["scenario"]
+    scenario = page_water(page)
     ref = core("conditional_constants", {"scenario": scenario, "metals": ["calcium", "magnesium"],
                                          "pH_from": 6, "pH_to": 13, "points": 71})
     c = page.evaluate(READ_PLOTS)["conditional"]
@@ -118,10 +87,10 @@ def test_titration_and_conditional_constants_equal_the_core(page: Page, watch):
     for field, text in (("#hardness-sample", "100"), ("#hardness-edta", "0.02"), ("#hardness-ph", "9.5")):
         before = count(page, "titration")
         page.fill(field, text)
-        redrawn(page, "titration", before)
+        wait_drawn(page, "titration", before, settle=True)
     check_titration(page, 100, 0.02, 9.5)
     page.wait_for_function("() => { for (const d of Bokeh.documents) { const m = d.get_model_by_name('edtacond_marker');"
-                           " if (m) return m.location === 9.5; } return false; }", timeout=BOOT_MS)
+                           " if (m) return m.location === 9.5; } return false; }", timeout=JOB_MS)
 
 
 @pytest.mark.parametrize("field, text, message", [
@@ -142,15 +111,15 @@ def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watc
 def test_water_without_calcium_or_magnesium_says_so(page: Page, watch):
     # the page's starting water with its calcium and magnesium taken out, opened from a link
     page.goto("/")
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=JOB_MS)
     state = page.evaluate(STATE)
     ions = state["water"]["scenario"].get("ions", [])
     state["water"]["scenario"]["ions"] = [i for i in ions if i.get("id") not in ("calcium", "magnesium")]
     link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
     page.goto("about:blank")
-    open_hardness(page, fragment=link[1:], wait=False)
+    open_hardness(page, fragment=link, wait=False)
     scenario = page.evaluate(STATE)["water"]["scenario"]
     assert not any(i.get("id") in ("calcium", "magnesium") for i in scenario.get("ions", []))
-    expect(page.locator("#hardness-water-error")).to_contain_text("neither calcium nor magnesium", timeout=BOOT_MS)
+    expect(page.locator("#hardness-water-error")).to_contain_text("neither calcium nor magnesium", timeout=JOB_MS)
     assert value(page, "#hardness-total") == ""
     assert page.locator("#hardness-endpoints tbody tr").count() == 0

@@ -9,17 +9,13 @@ here; no chemistry value of it is asserted, only that the page shows the core's.
 
 from __future__ import annotations
 
-import json
-import math
-
 import pytest
-from conftest import core_handle, settled, show_job
+from conftest import STATE, close, core, draw_marks, open_job, page_water
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
 
-BOOT_MS = 120_000
-STATE = "async () => (await import('./state.js')).collectState()"
+drawn, wait_drawn = draw_marks("lead")
 
 READ_PLOT = """() => {
   for (const doc of Bokeh.documents) {
@@ -43,41 +39,17 @@ READ_TABLE = """() => Array.from(document.querySelectorAll('#lead-table tbody tr
 })"""
 
 
-def core(method: str, params: dict) -> dict:
-    reply = json.loads(core_handle(method, json.dumps(params)))
-    assert reply["ok"], reply
-    return reply["result"]
-
-
-def drawn(page: Page) -> int:
-    return int(page.evaluate("() => Number(document.querySelector('#job-lead').dataset.leadDrawn || 0)"))
-
-
 def redrawn(page: Page, before: int) -> None:
-    page.wait_for_function("(n) => Number(document.querySelector('#job-lead').dataset.leadDrawn || 0) > n",
-                           arg=before, timeout=BOOT_MS)
-    settled(page, timeout=BOOT_MS)
+    wait_drawn(page, "lead", before, settle=True)
 
 
-def open_lead(page: Page, fragment: str = "preset=orthophosphate-dose") -> None:
-    page.goto("/#" + fragment)
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    settled(page, timeout=BOOT_MS)
-    show_job(page, "lead")
-    redrawn(page, 0)
-
-
-def water_scenario(page: Page) -> dict:
-    return page.evaluate(STATE)["water"]["scenario"]
-
-
-def close(a, b, rel=1e-9) -> bool:
-    return math.isclose(float(a), float(b), rel_tol=rel, abs_tol=1e-12)
+def open_lead(page: Page, fragment: str = "#preset=orthophosphate-dose") -> None:
+    open_job(page, fragment, "lead", ["lead"])
 
 
 def check_against_core(page: Page, params: dict) -> None:
     """The table's rows and the plotted lines equal the core's curves for the same question."""
-    scenario = water_scenario(page)
+    scenario = page_water(page)
     solids = params.pop("solids", {})
     ref = {m: core("solubility", {**params, "scenario": scenario, "metal": m, **({"solids": solids[m]} if m in solids else {})})
            for m in ("lead", "copper")}
@@ -133,23 +105,23 @@ def test_lead_and_copper_against_ph_equal_the_core(page: Page, watch):
 
 def test_dose_and_reverse_curves_equal_the_core(page: Page, watch):
     open_lead(page)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.fill("#lead-dose", "1.5")
     redrawn(page, before)
     check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 1.5,
                               "orthophosphate_dose_unit": "mg/L as P"})
     # against DIC at pH 8 (the dose still added)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.select_option("#lead-axis", "DIC")
     redrawn(page, before)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.fill("#lead-fixed-ph", "8")
     redrawn(page, before)
     check_against_core(page, {"axis": "DIC", "from": 1, "to": 100, "unit": "mg/L as C", "points": 201,
                               "fixed_pH": 8, "orthophosphate_dose": 1.5, "orthophosphate_dose_unit": "mg/L as P"})
     assert page.evaluate(READ_PLOT)["axis"] == "DIC (mg/L as C)"
     # against orthophosphate: the axis is the total, the dose field does not apply
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.select_option("#lead-axis", "orthophosphate")
     redrawn(page, before)
     expect(page.locator("#lead-dose")).to_be_disabled()
@@ -174,10 +146,10 @@ def test_bad_input_message_beside_its_field_and_no_stale_result(page: Page, watc
 
 def test_candidate_solids_chosen_on_the_page_equal_the_core(page: Page, watch):
     open_lead(page)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.select_option("#lead-lead-solids", "no-chloride")
     redrawn(page, before)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.select_option("#lead-copper-solids", "fresh")
     redrawn(page, before)
     check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 0,
@@ -194,13 +166,13 @@ def test_candidate_solids_chosen_on_the_page_equal_the_core(page: Page, watch):
 def test_a_link_carries_the_job_inputs(page: Page, watch):
     open_lead(page)
     for sel, value in (("#lead-dose", "0.8"),):
-        before = drawn(page)
+        before = drawn(page, "lead")
         page.fill(sel, value)
         redrawn(page, before)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.select_option("#lead-axis", "DIC")
     redrawn(page, before)
-    before = drawn(page)
+    before = drawn(page, "lead")
     page.fill("#lead-fixed-ph", "7.8")
     redrawn(page, before)
     state = page.evaluate(STATE)
@@ -208,11 +180,7 @@ def test_a_link_carries_the_job_inputs(page: Page, watch):
                              "fixed_pH": 7.8, "lead_solids": "all", "copper_solids": "all"}
     link = page.evaluate("async (s) => '#' + (await import('./share.js')).encodeState(s)", state)
     page.goto("about:blank")
-    page.goto("/" + link)
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    settled(page, timeout=BOOT_MS)
-    show_job(page, "lead")
-    redrawn(page, 0)
+    open_lead(page, link)
     assert page.evaluate(STATE)["lead"] == state["lead"]
     expect(page.locator("#lead-table-x")).to_have_text("DIC (mg/L as C)")
     check_against_core(page, {"axis": "DIC", "from": 1, "to": 100, "unit": "mg/L as C", "points": 201,
