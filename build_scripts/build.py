@@ -11,8 +11,8 @@ Steps, in order:
     ``npm ci --prefix build_scripts``) into vendor/pyodide/ and BokehJS from the
     installed Python bokeh into vendor/bokeh/, so the two Bokeh halves match;
  4b. make the Pyodide memory snapshot (build_scripts/snapshot.mjs, in Node) after the whole
-    core is imported and its data loaded, into snapshots/ (without its zero pages, gzip level 1
-    by default);
+    core is imported, its data loaded and the first views' requests answered (the starting
+    water, the worked examples), into snapshots/ (without its zero pages, gzip level 1 by default);
  5. write plots.json (Bokeh templates from build_scripts/plots.py);
  6. write the third-party licence notices into licenses/;
  7. write manifest.json (versions, wheel path, snapshot and its key, sha256 of every file);
@@ -247,8 +247,10 @@ def unpack_image(image: bytes) -> bytes:
     return bytes(heap)
 
 
-def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -> dict:
-    """Boot the pinned Pyodide in Node, import the whole core, load its data, save the heap.
+def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str, site: Path = SITE) -> dict:
+    """Boot the pinned Pyodide in Node, import the whole core, load its data, answer the first
+    views' requests (the starting water of ``site``/water-start.js and the worked examples of
+    ``site``/presets.json), save the heap.
 
     The heap is packed without its zero pages (``pack_image``) and written as
     snapshots/acidscape-<sha256[:12]>.img (identity) or .img.gz (gzip level 1, no name or time
@@ -265,7 +267,7 @@ def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -
     with tempfile.TemporaryDirectory() as tmp:
         raw = Path(tmp) / "snapshot.bin"
         env = {**os.environ, "SOURCE_DATE_EPOCH": str(epoch)}
-        done = subprocess.run([node, str(SNAPSHOT_SCRIPT), str(wheel), str(raw), key], capture_output=True,
+        done = subprocess.run([node, str(SNAPSHOT_SCRIPT), str(wheel), str(raw), key, str(site)], capture_output=True,
                               text=True, env=env, timeout=600)
         if done.returncode != 0:
             # Node echoes the minified source line of the throw: keep the readable lines only.
@@ -291,6 +293,8 @@ def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str) -
         "modules": len(report["modules"]),
         "skipped_modules": report["skipped"],
         "loaders": report["loaders"],
+        "warmed": len(report["warmed"]),
+        "start_request": report["start_request"],
     }
 
 
@@ -425,7 +429,7 @@ def build(out: Path, snapshot_encoding: str | None = "gzip", site: Path = SITE) 
     wheel = build_wheel(out)
     pyodide_version = copy_pyodide(out)
     bokeh_version = copy_bokehjs(out)
-    snapshot = make_snapshot(out, wheel, pyodide_version, snapshot_encoding) if snapshot_encoding else None
+    snapshot = make_snapshot(out, wheel, pyodide_version, snapshot_encoding, site) if snapshot_encoding else None
     write_plot_templates(out)
     write_licences(out, pyodide_version, bokeh_version)
     acidscape_version = wheel.name.split("-")[1]
@@ -469,7 +473,8 @@ def main(argv: list[str] | None = None) -> int:
     snapshot = report["manifest"]["snapshot"]
     if snapshot:
         print(f"snapshot: {snapshot['file']} ({snapshot['bytes'] / 1e6:.1f} MB in memory), "
-              f"{snapshot['modules']} core modules imported, loaders called: {', '.join(snapshot['loaders'])}")
+              f"{snapshot['modules']} core modules imported, loaders called: {', '.join(snapshot['loaders'])}; "
+              f"{snapshot['warmed']} requests of the first views answered")
         if snapshot["skipped_modules"]:
             print(f"snapshot: not imported (missing under Pyodide): {', '.join(snapshot['skipped_modules'])}")
     return 0

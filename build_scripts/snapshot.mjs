@@ -1,7 +1,7 @@
 // Make the Pyodide memory snapshot the page boots from (platform notes §8), at build time,
 // in Node, with the pinned package build_scripts/node_modules/pyodide.
 //
-//   node build_scripts/snapshot.mjs WHEEL OUT KEY_JSON
+//   node build_scripts/snapshot.mjs WHEEL OUT KEY_JSON [SITE]
 //
 // WHEEL     the acidscape wheel the page installs (its bytes are what KEY_JSON's hash covers)
 // OUT       where to write the raw snapshot (a Uint8Array of the whole wasm heap + a header)
@@ -9,28 +9,40 @@
 //           the wheel's sha256); it is stored inside the Python heap as
 //           __main__._acidscape_snapshot, so the worker can check after booting that the image
 //           it restored belongs to the manifest it read.
+// SITE      the page sources (default: site/ beside this folder): the requests of the first
+//           views are answered once before the heap is saved (see "Warm-up" below).
 //
 // Before the heap is saved, every module of the core is imported (pkgutil.walk_packages over
 // acidscape; a module that needs a package Pyodide lacks is skipped and reported), every
 // zero-argument cached loader (functools.cache) of the core is called so the data files sit in
 // memory, and handle("version" | "systems" | "chemicals") is answered once.
+// Warm-up: then the requests the page's first views make are answered, so that what the core
+// builds on a water's first solve (its tableau shared by every water of the same make-up, the
+// code compiled for its structure, modules imported inside functions) is in the image: the
+// catalogue calls ("catalogues", "products"), and for the starting water (site/water-start.js,
+// the module water.js reads) and each worked example's water (site/presets.json): the water
+// job's request answered in full (dispatch.stages "water_view" with the page's curve grid),
+// "solve", and for an example its one-acid "distribution".
 // Files of the Emscripten file system do not survive a snapshot boot (imported modules do), so
 // the worker writes the wheel's files into site-packages again before Python starts (fsInit),
 // for anything imported or read lazily, and after the boot calls
 // __main__._acidscape_after_restore() (defined here, kept in the image).
 //
-// Prints one JSON line: {python, modules, skipped, loaders, seconds, bytes}; "skipped" lists core
-// modules that need a package Pyodide lacks (they are not imported, and not part of the page).
+// Prints one JSON line: {python, modules, skipped, loaders, warmed, start_request, seconds, bytes};
+// "skipped" lists core modules that need a package Pyodide lacks (they are not imported, and
+// not part of the page); "warmed" the requests answered by name; "start_request" the starting
+// water's request (tests compare it with the one the page sends).
 import { readFileSync, writeFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import { dirname, join } from "node:path";
-import { fileURLToPath } from "node:url";
+import { fileURLToPath, pathToFileURL } from "node:url";
 
 const here = dirname(fileURLToPath(import.meta.url));
 const pyodideDir = join(here, "node_modules", "pyodide");
 const { loadPyodide, version } = await import(join(pyodideDir, "pyodide.mjs"));
 
-const [wheelPath, outPath, keyJson] = process.argv.slice(2);
+const [wheelPath, outPath, keyJson, siteArg] = process.argv.slice(2);
+const siteDir = siteArg || join(here, "..", "site");
 if (!wheelPath || !outPath || !keyJson) {
   console.error("usage: node snapshot.mjs WHEEL OUT KEY_JSON");
   process.exit(2);
@@ -41,6 +53,7 @@ if (key.pyodide !== version) {
   process.exit(1);
 }
 
+let startRequest = null; // set by warmUpRequests
 const clock = performance.now.bind(performance); // the real clock, for the report
 const t0 = clock();
 makeDeterministic(Number(process.env.SOURCE_DATE_EPOCH || 315619200));
@@ -58,6 +71,7 @@ const sitePackages = py.runPython("import site; site.getsitepackages()[0]");
 py.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir: sitePackages });
 
 py.globals.set("_snapshot_key_json", keyJson);
+py.globals.set("_snapshot_warm_json", JSON.stringify(await warmUpRequests(siteDir)));
 const report = py.runPython(`
 def _after_restore():
     """Run by the worker once after booting from this snapshot.
@@ -76,7 +90,7 @@ def _after_restore():
         sys.modules["random"].seed()
 
 
-def _prepare(key_json):
+def _prepare(key_json, warm_json):
     import gc, importlib, json, pkgutil, sys
     import acidscape
 
@@ -116,22 +130,60 @@ def _prepare(key_json):
         if not reply.get("ok"):
             raise RuntimeError(f"handle({method!r}) failed before the snapshot: {reply}")
 
+    # Warm-up (see the head of build_scripts/snapshot.mjs): answered as the worker answers them.
+    from acidscape.boundary.dispatch import stages
+    warmed = []
+    for name, method, params in json.loads(warm_json):
+        parts = [json.loads(p) for p in stages(method, json.dumps(params)) if p is not None]
+        if not parts or not all(p.get("ok") for p in parts):
+            raise RuntimeError(f"{method} for {name} failed before the snapshot: {parts[-1:]}")
+        warmed.append(f"{name}: {method}")
+
     import __main__
     __main__._acidscape_snapshot = key_json
     __main__._acidscape_after_restore = _after_restore
     gc.collect()
     return json.dumps({"python": sys.version.split()[0], "modules": modules, "skipped": skipped,
-                       "loaders": loaders})
+                       "loaders": loaders, "warmed": warmed})
 
-_prepare(_snapshot_key_json)
+_prepare(_snapshot_key_json, _snapshot_warm_json)
 `);
-py.runPython("del _prepare, _after_restore, _snapshot_key_json");
+py.runPython("del _prepare, _after_restore, _snapshot_key_json, _snapshot_warm_json");
 const bytes = py.makeMemorySnapshot();
 writeFileSync(outPath, bytes);
 const out = JSON.parse(report);
+out.start_request = startRequest;
 out.seconds = Math.round(clock() - t0) / 1000;
 out.bytes = bytes.length;
 process.stdout.write(JSON.stringify(out) + "\n");
+
+/**
+ * The requests of the page's first views, as [name, method, params]: the starting water's as
+ * water.js sends it (its rows read as numbers, the conditions left at the core's defaults, as
+ * the page's inputs start), and each worked example's as the page sends it once the example is
+ * applied (the saved scenario, with the same curve grid).
+ */
+async function warmUpRequests(site) {
+  const { START_WATER, WATER_CURVE } = await import(pathToFileURL(join(site, "water-start.js")).href);
+  const rows = (list) => list.map(({ id, total, unit }) => ({ id, total: Number(total), unit }));
+  const start = { systems: rows(START_WATER.systems), ions: rows(START_WATER.ions) };
+  startRequest = { ...start, curve: WATER_CURVE };
+  const requests = [["catalogues", "catalogues", {}], ["products", "products", {}],
+    ["start", "water_view", startRequest], ["start", "solve", start]];
+  const { presets } = JSON.parse(readFileSync(join(site, "presets.json"), "utf8"));
+  for (const { id, state } of presets) {
+    const scenario = state?.water?.scenario;
+    if (scenario) {
+      requests.push([id, "water_view", { systems: [], ions: [], ...scenario, curve: WATER_CURVE }]);
+      requests.push([id, "solve", { systems: [], ions: [], ...scenario }]);
+    }
+    const acid = state?.distribution;
+    if (acid?.acid && acid.acid !== "custom") {
+      requests.push([id, "distribution", { system: acid.acid, total_M: acid.total_M, pH: acid.pH }]);
+    }
+  }
+  return requests;
+}
 
 // The same inputs must give the same bytes (so an unchanged build keeps its cache name): the
 // heap would otherwise hold the build's clock (file times, time.time() at import) and random

@@ -17,26 +17,18 @@ import { fixed, prettyFormula, unitLabel } from "./format.js";
 import { parseInteger, parseNumber, parseNumberList, parseTemperature } from "./parse.js";
 import { computation, holdPending } from "./section.js";
 import { ION_WORDS } from "./share.js";
+import { START_WATER, WATER_CURVE } from "./water-start.js";
 
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
-const CURVE = { pH_min: 0, pH_max: 14, points: 281 };
+const CURVE = WATER_CURVE;
 // Units of the species table (molar, mass of the species, or mass as each system's basis) and
 // their scales (mol/L or g/L -> shown unit): the core's catalogue (catalogues.js).
 import { DISPLAY_UNITS, MASS_SCALE, MOLAR_SCALE } from "./catalogues.js";
 export { DISPLAY_UNITS };
 
-// The starting water is invented (not a real sample): a moderately hard, bicarbonate water of
-// 2.5 mmol/L carbonate, 1 mmol/L calcium, 0.3 mmol/L magnesium, 0.6 mmol/L sodium and
-// 0.8 mmol/L chloride at 25 °C, so that the headline shows the calcium carbonate indices too.
-const EXAMPLE = {
-  systems: [{ id: "carbonate", total: "2.5", unit: "mmol/L", name: "", pka: "", charge: "0" }],
-  ions: [
-    { id: "calcium", total: "1", unit: "mmol/L", name: "", charge: "2", mass: "" },
-    { id: "magnesium", total: "0.3", unit: "mmol/L", name: "", charge: "2", mass: "" },
-    { id: "sodium", total: "0.6", unit: "mmol/L", name: "", charge: "1", mass: "" },
-    { id: "chloride", total: "0.8", unit: "mmol/L", name: "", charge: "-1", mass: "" },
-  ],
-};
+// The starting water (invented) lives in water-start.js: the build answers its request before
+// saving the Python snapshot (build_scripts/snapshot.mjs).
+const EXAMPLE = START_WATER;
 
 // What a condition input goes back to when a link, file or example holds a value that cannot
 // be used (see reset()).

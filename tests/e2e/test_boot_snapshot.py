@@ -4,6 +4,11 @@ The snapshot (snapshots/*.bin.gz, named in manifest.json with its key: the Pyodi
 the sha256 of the wheel) is used only when it was made by this Pyodide, loads, and carries the
 manifest's key. Each fallback case serves a temporary copy of dist/ with one thing broken and
 checks that the page still draws its first result, booted the ordinary way.
+
+The build answers the first views' requests before saving the heap (build_scripts/snapshot.mjs:
+the starting water of site/water-start.js, the worked examples): the answers after a boot from
+that snapshot must equal those of an ordinary boot (the oracle: the same core without any
+cached state), and the page's first request must be the one the build answered.
 """
 
 from __future__ import annotations
@@ -25,6 +30,25 @@ from serve import make_server  # noqa: E402
 
 BOOT_MS = 90_000
 BOOT_INFO = "() => import('./py.js').then((m) => m.sharedPython().boot)"
+
+
+WATER_PARTS = """async ([method, params]) => {
+  const py = (await import('./py.js')).sharedPython();
+  await py.ready;
+  const parts = [];
+  const end = await py.stream(method, params, (result) => parts.push(result));
+  return {end, parts};
+}"""
+
+# The page's requests to the worker, recorded before its own scripts run.
+RECORD_REQUESTS = """(() => {
+  const send = Worker.prototype.postMessage;
+  window.__sentToWorker = [];
+  Worker.prototype.postMessage = function (message, ...rest) {
+    window.__sentToWorker.push(JSON.parse(JSON.stringify(message)));
+    return send.call(this, message, ...rest);
+  };
+})()"""
 
 
 def test_page_boots_from_the_snapshot(page, watch):
@@ -65,7 +89,7 @@ def boot_ordinary(browser, url: str) -> tuple[dict, list[str], list[str]]:
         page.on("console", lambda msg: msg.type in ("warning", "info") and warnings.append(msg.text))
         page.goto(url)
         expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-        assert int(page.get_attribute("body", "data-drawn")) >= 1
+        assert int(page.get_attribute("#water-section", "data-drawn")) >= 1  # the first view's result
         return page.evaluate(BOOT_INFO), requests, warnings
     finally:
         context.close()
@@ -125,3 +149,90 @@ def test_a_build_without_snapshot_boots_the_ordinary_way(browser, broken_copy):
     boot, requests, _ = boot_ordinary(browser, url)
     assert boot["snapshot"] is False
     assert not [u for u in requests if "/snapshots/" in u]
+
+
+def first_water_request(page) -> dict:
+    page.wait_for_function(
+        "() => (window.__sentToWorker || []).some((m) => m.method === 'water_view')", timeout=BOOT_MS)
+    return page.evaluate("() => window.__sentToWorker.find((m) => m.method === 'water_view').params")
+
+
+def test_the_build_answered_the_pages_first_request_before_the_snapshot(page, site_dir, watch):
+    # One source of truth: the starting water is read from site/water-start.js by the page and
+    # by the build; the request the page sends first is the one answered before the heap was saved.
+    snapshot = json.loads((site_dir / "manifest.json").read_text())["snapshot"]
+    page.add_init_script(RECORD_REQUESTS)
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    sent = first_water_request(page)
+    built = snapshot["start_request"]
+    # the page also names the conditions its inputs start with; the build left them to the core
+    # (which must then take the same make-up: temperature and activity model)
+    assert {k: sent[k] for k in built} == built
+    from acidscape.boundary import api
+
+    assert ({k: api.solve(sent)[k] for k in ("temperature_C", "activity")}
+            == {k: api.solve(built)[k] for k in ("temperature_C", "activity")})
+    assert snapshot["warmed"] >= 3
+
+
+def test_answers_after_a_snapshot_boot_equal_an_ordinary_boots(page, browser, broken_copy, site_dir):
+    # The first views' waters (answered once before the heap was saved, so their tableaux and
+    # compiled code come from the image) against an ordinary boot that starts from nothing.
+    manifest = json.loads((site_dir / "manifest.json").read_text())
+    presets = json.loads((site_dir / "presets.json").read_text())["presets"]
+    curve = manifest["snapshot"]["start_request"]["curve"]
+    requests = [("water_view", manifest["snapshot"]["start_request"])]
+    for preset in (presets[0], presets[-1]):
+        scenario = {"systems": [], "ions": [], **preset["state"]["water"]["scenario"]}
+        requests += [("water_view", {**scenario, "curve": curve}), ("solve", scenario)]
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    assert page.evaluate(BOOT_INFO)["snapshot"] is True
+    from_snapshot = [page.evaluate(WATER_PARTS, list(r)) for r in requests]
+
+    copy, copied, url = broken_copy
+    copied["snapshot"] = None
+    write_manifest(copy, copied)
+    context = browser.new_context(service_workers="block")
+    try:
+        fresh = context.new_page()
+        fresh.goto(url)
+        expect(fresh.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+        assert fresh.evaluate(BOOT_INFO)["snapshot"] is False
+        # a new worker with nothing asked yet: the page's own requests are done, ask in a new one
+        ordinary = [fresh.evaluate(WATER_PARTS, list(r)) for r in requests]
+    finally:
+        context.close()
+    for request, a, b in zip(requests, from_snapshot, ordinary):
+        assert a["end"] == b["end"] == "done", request[0]
+        assert len(a["parts"]) == (2 if request[0] == "water_view" else 1)
+        assert a["parts"] == b["parts"], request
+
+
+def test_a_newer_request_stops_the_curves_of_the_one_before(page, watch):
+    # The worker lets the page's messages in between the chunks of a water's curves: a newer
+    # water_view that arrives while the curves are computed ends the older stream ("dropped")
+    # before its curves are done, and a request of one answer sent with it is answered in turn.
+    page.goto("/")
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    out = page.evaluate("""async () => {
+      const py = (await import('./py.js')).sharedPython();
+      await py.ready;
+      const water = (total) => ({systems: [{id: 'carbonate', total, unit: 'mmol/L'}], ions: [],
+                                 curve: {pH_min: 0, pH_max: 14, points: 281}});
+      const order = [];
+      let second = null;
+      const first = py.stream('water_view', water(1.5), (result, index) => {
+        order.push(`first ${index}`);
+        if (index === 0) {  // the curves are being computed now
+          py.call('version').then(() => order.push('version'));
+          second = py.stream('water_view', water(2.5), (r, i) => order.push(`second ${i}`));
+        }
+      });
+      const ends = [await first];
+      ends.push(await second);
+      return {ends, order};
+    }""")
+    assert out["ends"] == ["dropped", "done"], out
+    assert out["order"] == ["first 0", "version", "second 0", "second 1"], out
