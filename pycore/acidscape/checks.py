@@ -346,19 +346,20 @@ def number(value, field: str, *, lo: float | None = None, hi: float | None = Non
     ...
     acidscape.errors.InputError: The temperature must be from 0 to 100 °C (you entered 500 °C).
     """
-    hint = _hint(field, lo, hi, above)
+    # the hint in words is written only for a message (it costs more than the check itself)
     if isinstance(value, str) and allow_text:
         try:
             value = float(value.strip())
         except ValueError:
-            raise InputError(sentence(f"{describe(field)} must be a number ({hint}); {shown(value)} is not one."),
-                             field=field) from None
+            raise InputError(sentence(f"{describe(field)} must be a number ({_hint(field, lo, hi, above)}); "
+                                      f"{shown(value)} is not one."), field=field) from None
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputError(sentence(f"{describe(field)} must be a number ({hint}); {shown(value)} is not one."),
-                         field=field)
+        raise InputError(sentence(f"{describe(field)} must be a number ({_hint(field, lo, hi, above)}); "
+                                  f"{shown(value)} is not one."), field=field)
     v = float(value)
     if not math.isfinite(v):
-        raise InputError(sentence(f"{describe(field)} is too large to use; enter a number {hint}."), field=field)
+        raise InputError(sentence(f"{describe(field)} is too large to use; enter a number "
+                                  f"{_hint(field, lo, hi, above)}."), field=field)
     if (lo is not None and v < lo) or (hi is not None and v > hi) or (above is not None and not v > above):
         raise _range_error(field, v, lo, hi, above)
     return v

@@ -737,16 +737,18 @@ def _newton(prob: _Problem, y: list[float], max_iter: int = 200,
     F, g, H, scale = prob.evaluate(y)
     if not math.isfinite(F):
         return y, 0, False
+    isfinite = math.isfinite
+    res = _residual(g, scale)
     for it in range(1, max_iter + 1):
         if _converged(g, scale, rtol):
             return y, it, True
         step = _cholesky_solve(H, [-v for v in g])
-        if step is None or not all(math.isfinite(s) for s in step):
+        if step is None or not all(map(isfinite, step)):
             return y, it, False
-        big = max(abs(s) for s in step)
+        big = max(map(abs, step))
         if big > STEP_CAP:
             step = [s * STEP_CAP / big for s in step]
-        slope = sum(a * b for a, b in zip(g, step))
+        slope = sum([a * b for a, b in zip(g, step)])
         if slope >= 0:
             return y, it, False
         t = 1.0
@@ -756,18 +758,22 @@ def _newton(prob: _Problem, y: list[float], max_iter: int = 200,
             if Fn <= F + 1e-4 * t * slope:
                 break
             # near the answer F is flat to rounding: accept a step that shrinks the residual
-            if math.isfinite(Fn) and abs(Fn - F) <= 1e-15 * (abs(F) + 1.0) and \
-                    max(abs(v) / (s + 1e-300) for v, s in zip(gn, sn)) < max(abs(v) / (s + 1e-300) for v, s in zip(g, scale)):
+            if isfinite(Fn) and abs(Fn - F) <= 1e-15 * (abs(F) + 1.0) and _residual(gn, sn) < res:
                 break
             t *= 0.5
             if t < 1e-12:
                 return y, it, _converged(g, scale, max(rtol, 1e3 * MASS_RTOL))
-        res_old = max(abs(v) / (s + 1e-300) for v, s in zip(g, scale))
+        res_old = res
         y, F, g, H, scale = yn, Fn, gn, Hn, sn
-        res = max(abs(v) / (s + 1e-300) for v, s in zip(g, scale))
+        res = _residual(g, scale)
         if res > 0.5 * res_old and res <= 1e3 * MASS_RTOL:
             return y, it, True  # rounding, not the method, now limits the residual
     return y, max_iter, _converged(g, scale, rtol)
+
+
+def _residual(g, scale) -> float:
+    """The largest gradient entry relative to its scale (the worst mass balance, relatively)."""
+    return max([abs(v) / (s + 1e-300) for v, s in zip(g, scale)])
 
 
 def _coordinate_search(prob: _Problem, y: list[float], sweeps: int = 400) -> tuple[list[float], bool]:
@@ -905,6 +911,8 @@ def equilibrium(
     I = I_fixed if I_fixed is not None else (guess or {}).get("I", None)
     if I is None:
         I = 0.5 * sum(tab.charges[j] ** 2 * totals[j] for j in range(1, m) if j not in open_comp)
+        if not Imodel_ideal and I > 0.0:
+            I = _first_I(tab, totals, open_comp, structure.own_on, pH, gamma_of, I)
     x_state = dict((guess or {}).get("x", {}))  # component index -> ln free conc
     active = [s for s in (guess or {}).get("active", []) if s in allowed]
     total_iters = 0
@@ -934,7 +942,7 @@ def equilibrium(
                                 "would break the phase rule")
                 continue
             prob = _Problem(sk, lnK_cpl, ladders, T_simple, T_cpl, d, ladder_code)
-            y = _start(prob, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp)
+            y = _start(prob, coupled, x_state, totals, pH, lgc, structure.own_on, lnKp)
             y, its, ok = _newton(prob, y, rtol=rtol)
             total_iters += its
             if not ok:
@@ -1097,7 +1105,7 @@ class _Structure:
 
     __slots__ = ("species_on", "solids_on", "allowed", "simple", "coupled", "cidx", "ladder_of", "cpl_species",
                  "x_coeffs", "prefer", "skeletons", "cpl_stoich", "on_stoich", "simple_set", "ladder_pattern",
-                 "ladder_uses", "ladder_fn")
+                 "ladder_uses", "ladder_fn", "own_on")
 
     def __init__(self, species_on, solids_on, allowed, simple, coupled, cidx, ladder_of, cpl_species, x_coeffs,
                  prefer, tab):
@@ -1108,6 +1116,8 @@ class _Structure:
         self.skeletons: dict = {}
         self.cpl_stoich = [(i, tab.species[i].stoich) for i in cpl_species]
         self.on_stoich = [(i, tab.species[i].stoich) for i, on in enumerate(species_on) if on]
+        # per component: (index, protons) of its own species that are on (see Tableau.own_species)
+        self.own_on = {j: [(i, h) for i, h in own if species_on[i]] for j, own in tab.own_species.items()}
         self.ladder_pattern = tuple(tuple(tab.h_count[i] for i in ladder_of[j]) for j in simple)
         # the ladders' sums are compiled once the structure is solved again (as skeletons are)
         self.ladder_uses = 0 if any(len(ks) > 1 for ks in self.ladder_pattern) else None
@@ -1170,17 +1180,44 @@ def _constants_at(tab: Tableau, gamma_of, I: float):
     return out
 
 
-def _own_lnS(tab, j, species_on, lnKp, xH) -> float:
-    """ln of the sum of component j's own species (j once, otherwise only H+) per unit of its
-    free concentration, at ln[H+] = xH: ln sum_k K'_k e^(h_k xH)."""
-    es = [lnKp[i] + h * xH for i, h in tab.own_species[j] if species_on[i]]
-    if not es:
+def _first_I(tab, totals, open_comp, own_on, pH, gamma_of, I_bare: float) -> float:
+    """A first ionic strength for a water solved without a guess [mol/L]: each component spread
+    over its own protonated forms at pH 7 (or the given pH), as the cold start spreads it
+    (``I_bare``, every component at its own charge, overstates a carbonate water's by half)."""
+    lgc, lgs, lnKp = _constants_at(tab, gamma_of, I_bare)
+    xH = LN10 * (-(pH if pH is not None else 7.0) - lgc[0])
+    z2 = tab.z2
+    out = 0.0
+    for j in range(1, len(tab.components)):
+        t = totals[j]
+        if not t > 0.0 or j in open_comp:
+            continue
+        own = [(lnKp[i] + h * xH, z2[i]) for i, h in own_on[j]]
+        if not own:
+            out += tab.charges[j] ** 2 * t
+            continue
+        top = max(e for e, _ in own)
+        w = [(math.exp(e - top), z) for e, z in own]
+        out += t * sum(a * z for a, z in w) / sum(a for a, _ in w)
+    return 0.5 * out if out > 0.0 else I_bare
+
+
+def _own_lnS(own, lnKp, xH) -> float:
+    """ln of the sum of a component's own species (``own``: (index, protons) of each species
+    holding it once and otherwise only H+) per unit of its free concentration, at ln[H+] = xH:
+    ln sum_k K'_k e^(h_k xH)."""
+    if len(own) == 1:
+        i, h = own[0]
+        return lnKp[i] + h * xH
+    if not own:
         return 0.0
+    es = [lnKp[i] + h * xH for i, h in own]
     top = max(es)
-    return top + math.log(sum(math.exp(e - top) for e in es))
+    exp = math.exp
+    return top + math.log(sum([exp(e - top) for e in es]))
 
 
-def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, lnKp) -> list[float]:
+def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, own_on, lnKp) -> list[float]:
     """Initial y: the last answer where known; else pH 7 (or the given pH) and each component
     spread over its own protonated forms at that pH, as if it formed no complex.
 
@@ -1197,14 +1234,13 @@ def _start(prob: _Problem, coupled, x_state, totals, pH, lgc, tab, species_on, l
         j = coupled[k]
         if j in x_state:
             if moved and j:
-                y.append(x_state[j] + _own_lnS(tab, j, species_on, lnKp, xH)
-                         - _own_lnS(tab, j, species_on, lnKp, xH_new))
+                y.append(x_state[j] + _own_lnS(own_on[j], lnKp, xH) - _own_lnS(own_on[j], lnKp, xH_new))
             else:
                 y.append(x_state[j])
         elif j == 0:
             y.append(xH)
         else:
-            y.append(math.log(max(totals[j], 1e-300)) - _own_lnS(tab, j, species_on, lnKp, xH))
+            y.append(math.log(max(totals[j], 1e-300)) - _own_lnS(own_on[j], lnKp, xH))
     return y
 
 
