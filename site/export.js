@@ -332,7 +332,8 @@ function softeningGroup(value, name, num, push) {
   push(rows, "Softening pH", value.softening_pH);
   push(rows, "Lime dose", value.lime_mg_per_L, "mg/L as Ca(OH)₂");
   if (value.softening_pH == null && value.lime_mg_per_L == null) {
-    rows.push(["Softening pH", "not given: 10.3 for calcium only, 11.0 with magnesium"]);
+    // the core's defaults (operations/softening.py SOFTENING_PH_CALCIUM, SOFTENING_PH_MAGNESIUM)
+    rows.push(["Softening pH", `not given: the usual ${value.remove_magnesium ? "11.0 with magnesium removal" : "10.3 for calcium removal"}`]);
   }
   push(rows, "Soda ash dose", value.soda_ash_mg_per_L, "mg/L as Na₂CO₃");
   push(rows, "Soda ash to a total hardness of", value.target_hardness_mg_per_L_as_CaCO3, "mg/L as CaCO₃");

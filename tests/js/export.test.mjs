@@ -67,6 +67,9 @@ test("the report's inputs are words and units, never key paths", () => {
   assert.equal(rows["Softening/Plant flow"], "25000 m³/d");
   assert.equal(rows["Softening/Recarbonation"], "with CO₂ to pH 8.6");
   assert.equal(rows["Softening/Softening pH"], undefined); // a lime dose given: no pH
+  state.softening.lime_mg_per_L = null;
+  const noLime = describeInputs(state).find((g) => g.title === "Softening").rows;
+  assert.deepEqual(noLime.find(([k]) => k === "Softening pH"), ["Softening pH", "not given: the usual 11.0 with magnesium removal"]);
   for (const [key, value] of Object.entries(rows)) {
     assert.doesNotMatch(key + value, /temperature_C|measured\.|_kg_per_L|_pct|scenario\.|_mg_per_L|_atm|target_|null|undefined/, key);
   }
