@@ -18,13 +18,14 @@
 - For the jobs' page tests: ``core(method, params)`` (the core's answer, which must be ok),
   ``page_water(page)``, ``open_job(page, fragment, job, blocks)``, ``draw_marks(job)`` (the
   job's draw counts and a wait for the next), ``close(a, b)``, ``data_number(page, selector)``,
-  ``STATE`` and ``JOB_MS``.
+  ``preset_water(id)``, ``plain_link(state)``, ``STATE`` and ``JOB_MS``.
 - ``AXE``: axe-core's axe.min.js (build_scripts/node_modules, a dev dependency) for the
   accessibility checks.
 """
 
 from __future__ import annotations
 
+import base64
 import json
 import math
 import subprocess
@@ -153,6 +154,19 @@ def data_number(page, selector: str, attr: str = "data-value") -> float:
     text = page.get_attribute(selector, attr)
     assert text not in (None, ""), selector
     return float(text)
+
+
+def preset_water(preset_id: str) -> dict:
+    """The water (state section ``water``) of the invented example ``preset_id`` of site/presets.json."""
+    presets = json.loads((REPO / "site" / "presets.json").read_text(encoding="utf-8"))["presets"]
+    return next(p for p in presets if p["id"] == preset_id)["state"]["water"]
+
+
+def plain_link(state: dict) -> str:
+    """``#s=<v>.<data>``, a plain link to ``state`` (site/share.js: base64url of the state's UTF-8
+    JSON, no padding)."""
+    raw = json.dumps(state).encode()
+    return f"#s={state['v']}." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
 
 sys.path.insert(0, str(REPO / "build_scripts"))
 from serve import make_server  # noqa: E402

@@ -10,20 +10,24 @@ tests/test_scale_curves.py against an independent implementation).
 
 from __future__ import annotations
 
+import functools
 import json
-import math
 import re
-from pathlib import Path
 
 import pytest
 from playwright.sync_api import Page, expect
 
-from conftest import core_handle, core_scenario, settled, show_job
+import conftest
+from conftest import (JOB_MS, STATE, core, core_handle, core_scenario, draw_marks, open_job, page_water, plain_link,
+                      preset_water, settled, show_job)
 
 pytestmark = pytest.mark.e2e
 
-BOOT_MS = 120_000
-STATE = "async () => (await import('./state.js')).collectState()"
+BOOT_MS = JOB_MS
+drawn, wait_drawn = draw_marks("scale")
+drawn_softening, wait_softening = draw_marks("softening")
+num = conftest.data_number
+close = functools.partial(conftest.close, abs_=1e-9)  # this file's tolerance: 1e-9 absolute too
 READ_SOURCE = """(name) => {
   for (const doc of Bokeh.documents) {
     const m = doc.get_model_by_name(name);
@@ -35,40 +39,8 @@ READ_SOURCE = """(name) => {
 }"""
 
 
-def core(method: str, params: dict) -> dict:
-    reply = json.loads(core_handle(method, json.dumps(params)))
-    assert reply["ok"], reply
-    return reply["result"]
-
-
-def drawn(page: Page, block: str) -> int:
-    return int(page.evaluate(f"() => Number(document.getElementById('job-scale').dataset.{block}Drawn || 0)"))
-
-
-def wait_drawn(page: Page, block: str, before: int = 0) -> None:
-    page.wait_for_function(
-        f"(n) => Number(document.getElementById('job-scale').dataset.{block}Drawn || 0) > n", arg=before,
-        timeout=BOOT_MS)
-
-
 def open_scale(page: Page, hash_: str) -> dict:
-    page.goto("/" + hash_)
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    show_job(page, "scale")
-    for block in ("indices", "curves", "dose", "steps"):
-        wait_drawn(page, block)
-    settled(page, BOOT_MS)
-    return core_scenario(page.evaluate(STATE)["water"]["scenario"])
-
-
-def num(page: Page, selector: str, attr: str = "data-value") -> float:
-    text = page.get_attribute(selector, attr)
-    assert text not in (None, ""), selector
-    return float(text)
-
-
-def close(a: float, b: float, rel: float = 1e-9, abs_: float = 1e-9) -> bool:
-    return math.isclose(a, b, rel_tol=rel, abs_tol=abs_)
+    return open_job(page, hash_, "scale", ("indices", "curves", "dose", "steps"))
 
 
 def test_indices_temperatures_and_plots_equal_the_core(page: Page, watch):
@@ -215,8 +187,7 @@ def test_sequence_shows_the_water_after_each_step(page: Page, watch):
     page.fill("#scale-blend-f2", "0.4")
     wait_drawn(page, "blend", before)
     settled(page, BOOT_MS)
-    presets = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))
-    other = next(p for p in presets["presets"] if p["id"] == "hard-well-scale")["state"]["water"]["scenario"]
+    other = preset_water("hard-well-scale")["scenario"]
     want = core("blend", {"waters": [scenario, core_scenario(other)], "fractions": [0.6, 0.4]})
     cells = page.eval_on_selector_all("#scale-blend-table tbody tr", """trs => Object.fromEntries(trs.map((tr) => [tr.dataset.key,
         Object.fromEntries(Array.from(tr.querySelectorAll('td'), (td) => [td.dataset.key, Number(td.dataset.value)]))]))""")
@@ -237,7 +208,7 @@ def test_a_water_without_calcium_says_what_is_missing(page: Page, watch):
     page.goto("about:blank")
     page.goto("/" + link)
     expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    scenario = page_water(page)
     assert not any(i.get("id") in ("calcium", "Ca+2") for i in scenario.get("ions", []))
     assert core("solve", scenario)["calcium_carbonate"] is None  # the core finds no calcium to work with
     show_job(page, "scale")
@@ -257,8 +228,7 @@ def test_a_shared_link_reproduces_the_indices(page: Page, context, watch):
     other.goto("/#" + link)
     expect(other.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
     show_job(other, "scale")
-    other.wait_for_function("() => Number(document.getElementById('job-scale').dataset.indicesDrawn || 0) > 0",
-                            timeout=BOOT_MS)
+    wait_drawn(other, "indices")
     assert other.get_attribute("#scale-indices tr[data-key='LSI'] td[data-key='value']", "data-value") == lsi
     assert other.get_attribute("#scale-indices tr[data-key='CCPP'] td[data-key='value']", "data-value") == ccpp
     settled(other, BOOT_MS)
@@ -268,23 +238,11 @@ def test_a_shared_link_reproduces_the_indices(page: Page, context, watch):
 # -- the job's inputs travel in links, files and the report (state keys "scale", "softening",
 #    "workbench") --------------------------------------------------------------------------------
 
-PRESETS = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))["presets"]
 # The page's own reader of the link in the address bar (site/share.js readFragmentAsync).
 HASH_STATE = """() => { import('./share.js')
   .then((m) => m.readFragmentAsync(location.hash, ['water', 'scale', 'softening', 'workbench']))
   .then((r) => { window.__linked = r.kind === 'state' ? r.state : null; });
   return window.__linked || null; }"""
-
-
-def plain_link(state: dict) -> str:
-    """A plain s= link (site/share.js: base64url of the state's UTF-8 JSON, no padding)."""
-    import base64
-    raw = json.dumps(state).encode()
-    return f"#s={state['v']}." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
-
-
-def water_of(preset_id: str) -> dict:
-    return next(p for p in PRESETS if p["id"] == preset_id)["state"]["water"]
 
 
 SCALE_INPUTS = {
@@ -308,7 +266,7 @@ def read_linked(page: Page) -> dict:
 
 
 def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbers_are_the_cores(page: Page, watch):
-    state = {"v": 2, "water": water_of("hard-well-scale"), "scale": SCALE_INPUTS, "softening": SOFTENING_INPUTS,
+    state = {"v": 2, "water": preset_water("hard-well-scale"), "scale": SCALE_INPUTS, "softening": SOFTENING_INPUTS,
              "workbench": {"job": "scale"}}
     page.goto("/" + plain_link(state))
     expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
@@ -347,14 +305,14 @@ def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbe
     rows = page.eval_on_selector_all("#scale-steps-table tbody tr[data-step]:not([data-step='0'])",
                                      "trs => trs.map((tr) => Number(tr.querySelector('td[data-key=dose]').dataset.value))")
     assert len(rows) == 2 and all(close(a, s["dose_mg_per_L"]) for a, s in zip(rows, steps["steps"]))
-    other = core_scenario(water_of("upland-conditioning")["scenario"])
+    other = core_scenario(preset_water("upland-conditioning")["scenario"])
     blend = core("blend", {"waters": [scenario, other], "fractions": [0.6, 0.4]})
     assert close(num(page, "#scale-blend-table tr[data-key='LSI'] td[data-key='blend']"), blend["blend"]["LSI"])
 
     # the softening job, put away meanwhile, holds its inputs and computes them when shown
-    before = drawn_softening(page)
+    before = drawn_softening(page, "softening")
     show_job(page, "softening")
-    wait_softening(page, before)
+    wait_softening(page, "softening", before)
     settled(page, BOOT_MS)
     for sel, value in (("#soften-mode", "magnesium"), ("#soften-ph", ""), ("#soften-target-hardness", "90"),
                        ("#soften-flow", "25000"), ("#soften-recarb-kind", "pH"), ("#soften-recarb-value", "8.6")):
@@ -397,20 +355,10 @@ def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbe
     assert inputs["Job in view/Job"].startswith("Softening")
 
 
-def drawn_softening(page: Page) -> int:
-    return int(page.evaluate("() => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0)"))
-
-
-def wait_softening(page: Page, before: int) -> None:
-    page.wait_for_function(
-        "(n) => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0) > n", arg=before,
-        timeout=BOOT_MS)
-
-
 def test_a_hostile_link_in_the_scale_inputs_keeps_the_valid_ones_names_the_rest_and_computes(page: Page, watch):
     dialogs = []
     page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
-    state = {"v": 2, "water": water_of("hard-well-scale"), "workbench": {"job": "scale"}, "scale": {
+    state = {"v": 2, "water": preset_water("hard-well-scale"), "workbench": {"job": "scale"}, "scale": {
         "ccpp_temperatures_C": [60, 250], "CO2_partial_pressure_atm": "lots",
         "dose": {"chemical": "<img src=x onerror=\"window.__pwned=1\">", "target_LSI": "abc", "flow": -5,
                  "flow_unit": "furlongs"},
@@ -444,7 +392,7 @@ def test_a_hostile_link_in_the_scale_inputs_keeps_the_valid_ones_names_the_rest_
     assert mine["steps"] == [{"chemical": "Ca(OH)2", "target_pH": 9.5}]
     assert mine["blend"]["fractions"] == [0.7, 0.3]
     # ... and the page computes them: the numbers are the core's
-    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    scenario = page_water(page)
     want = core("solve", {**scenario, "uncertainty": True, "ccpp_temperatures_C": []})["calcium_carbonate"]
     assert close(num(page, "#scale-indices tr[data-key='LSI'] td[data-key='value']"), want["LSI"])
     dose = core("dose", {"scenario": scenario, "chemical": "NaOH", "target_LSI": 0})

@@ -9,60 +9,29 @@ chemistry), only that the page shows what the core computes.
 
 from __future__ import annotations
 
-import base64
-import json
-import math
-from pathlib import Path
+import functools
 
 import pytest
 from playwright.sync_api import Page, expect
 
-from conftest import core_handle, core_scenario, settled, show_job
+import conftest
+from conftest import JOB_MS, STATE, core, draw_marks, open_job, page_water, plain_link, preset_water, settled, show_job
 
 pytestmark = pytest.mark.e2e
 
-BOOT_MS = 120_000
-STATE = "async () => (await import('./state.js')).collectState()"
-
-
-def core(method: str, params: dict) -> dict:
-    reply = json.loads(core_handle(method, json.dumps(params)))
-    assert reply["ok"], reply
-    return reply["result"]
-
-
-def drawn(page: Page) -> int:
-    return int(page.evaluate("() => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0)"))
-
-
-def wait_drawn(page: Page, before: int = 0) -> None:
-    page.wait_for_function(
-        "(n) => Number(document.getElementById('job-softening').dataset.softeningDrawn || 0) > n", arg=before,
-        timeout=BOOT_MS)
-
-
-def num(page: Page, selector: str) -> float:
-    text = page.get_attribute(selector, "data-value")
-    assert text not in (None, ""), selector
-    return float(text)
-
-
-def close(a: float, b: float) -> bool:
-    return math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-9)
+BOOT_MS = JOB_MS
+drawn, wait_drawn = draw_marks("softening")
+num = conftest.data_number
+close = functools.partial(conftest.close, abs_=1e-9)  # this file's tolerance: 1e-9 absolute too
 
 
 def test_softening_equals_the_core_with_its_comparison_and_cautions(page: Page, watch):
-    page.goto("/#preset=lime-softening-plant")
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    show_job(page, "softening")
-    wait_drawn(page)
-    settled(page, BOOT_MS)
-    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
-    before = drawn(page)
+    scenario = open_job(page, "#preset=lime-softening-plant", "softening", ["softening"])
+    before = drawn(page, "softening")
     page.select_option("#soften-mode", "magnesium")
     page.fill("#soften-target-hardness", "90")
     page.fill("#soften-flow", "25000")
-    wait_drawn(page, before)
+    wait_drawn(page, "softening", before)
     settled(page, BOOT_MS)
     want = core("soften", {"scenario": scenario, "remove_magnesium": True, "target_hardness_mg_per_L_as_CaCO3": 90,
                            "flow": 25000, "flow_unit": "m3/d", "recarbonation": {"target_LSI": 0}})
@@ -91,10 +60,7 @@ def test_softening_equals_the_core_with_its_comparison_and_cautions(page: Page, 
 
 
 def test_bad_softening_inputs_get_their_message_and_no_figures(page: Page, watch):
-    page.goto("/#preset=lime-softening-plant")
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    show_job(page, "softening")
-    wait_drawn(page)
+    open_job(page, "#preset=lime-softening-plant", "softening", ["softening"])
     page.fill("#soften-ph", "10.5")
     page.fill("#soften-lime", "200")
     expect(page.locator("#soften-lime-error")).to_contain_text("not both")
@@ -108,25 +74,17 @@ def test_bad_softening_inputs_get_their_message_and_no_figures(page: Page, watch
     page.fill("#soften-recarb-value", "abc")
     expect(page.locator("#soften-recarb-value-error")).to_contain_text("not a number")
     page.fill("#soften-recarb-value", "0")
-    before = drawn(page)
-    wait_drawn(page, before - 1)
+    before = drawn(page, "softening")
+    wait_drawn(page, "softening", before - 1)
     expect(page.locator("#soften-recarb-value-error")).to_have_text("")
     expect(page.locator("#soften-lime-dose")).not_to_have_attribute("data-value", "", timeout=BOOT_MS)
     settled(page, BOOT_MS)
 
 
-def plain_link(state: dict) -> str:
-    """A plain s= link (site/share.js: base64url of the state's UTF-8 JSON, no padding)."""
-    raw = json.dumps(state).encode()
-    return f"#s={state['v']}." + base64.urlsafe_b64encode(raw).decode().rstrip("=")
-
-
 def test_a_hostile_link_in_the_softening_inputs_keeps_the_valid_ones_names_the_rest_and_computes(page: Page, watch):
     # the job is not the one in view when the link opens: its inputs are still checked and named
     # at once, and computed when the job is shown
-    presets = json.loads((Path(__file__).resolve().parents[2] / "site" / "presets.json").read_text(encoding="utf-8"))
-    water = next(p for p in presets["presets"] if p["id"] == "lime-softening-plant")["state"]["water"]
-    state = {"v": 2, "water": water, "softening": {
+    state = {"v": 2, "water": preset_water("lime-softening-plant"), "softening": {
         "remove_magnesium": "yes", "softening_pH": 15, "lime_mg_per_L": 200, "soda_ash_mg_per_L": "lots",
         "target_hardness_mg_per_L_as_CaCO3": None, "excess_lime_meq_per_L": 0.8, "flow": "<b>9</b>",
         "flow_unit": "furlongs", "recarbonation": {"target_pH": "abc"}}}
@@ -149,9 +107,8 @@ def test_a_hostile_link_in_the_softening_inputs_keeps_the_valid_ones_names_the_r
                     "flow_unit": "m3/d", "recarbonation": {"target_LSI": 0}}
     # ... and computed when the job is shown: the numbers are the core's
     show_job(page, "softening")
-    wait_drawn(page)
-    settled(page, BOOT_MS)
-    scenario = core_scenario(page.evaluate(STATE)["water"]["scenario"])
+    wait_drawn(page, "softening", settle=True)
+    scenario = page_water(page)
     want = core("soften", {"scenario": scenario, "remove_magnesium": False, "lime_mg_per_L": 200,
                            "excess_lime_meq_per_L": 0.8, "recarbonation": {"target_LSI": 0}})
     assert close(num(page, "#soften-lime-dose"), want["lime"]["dose_mg_per_L"])
