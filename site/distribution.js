@@ -1,5 +1,8 @@
 // Section "Species of one acid across pH": reads the form, asks the core for the distribution,
 // draws the plots and the table. Keeps the last good result on screen when an input is bad.
+// It is the workbench's job "explorer": while hidden it asks the core nothing (not at boot
+// either) and computes when shown; a link, file or example that gives its inputs has them
+// checked by the core when it is opened, so what is dropped is named at once.
 // Other sections (water equilibrium, titration, dosing...) follow the same shape: a
 // mount<Name>({py, view, plots, status, ...}) function returning {refresh}.
 
@@ -8,6 +11,9 @@ import { fixed, prettyFormula } from "./format.js";
 import { parseInteger, parseNumber, parseNumberList } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { computation } from "./section.js";
+import { isJobShown, onJobShown } from "./workbench.js";
+
+const JOB = "explorer";
 
 // What an input goes back to when a link or file holds a value the page cannot use.
 const DEFAULTS = { "pka-input": "2.15, 7.20, 12.35", "charge-input": "0", "total-input": "0.001", "ph-input": "7" };
@@ -148,10 +154,20 @@ export function mountDistribution({ py, view, plots, status, systems }) {
       view.setResultState(shownFor ? "stale" : "empty", staleNote(kind));
     },
     busy: (flag) => view.setBusy(flag),
+    active: () => isJobShown(JOB),
   });
+  onJobShown(JOB, () => block.resume());
 
   async function refresh() {
     return (await block.run()) === "drawn";
+  }
+
+  // Inputs given by a link, file or example (setState) are checked by the core when opened.
+  let opened = false;
+  function settle() {
+    const force = opened;
+    opened = false;
+    return block.settle(reset, { force });
   }
 
   function reset(problems) {
@@ -192,6 +208,7 @@ export function mountDistribution({ py, view, plots, status, systems }) {
   }
 
   function setState(obj) {
+    opened = true;
     const notes = [];
     const asText = (value, key, isList) => {
       if (typeof value === "string") return value;
@@ -222,7 +239,7 @@ export function mountDistribution({ py, view, plots, status, systems }) {
     return notes;
   }
 
-  registerSection("distribution", { get: getState, set: setState, refresh, settle: () => block.settle(reset) });
+  registerSection("distribution", { get: getState, set: setState, refresh, settle });
 
   return { refresh };
 }

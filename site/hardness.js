@@ -227,11 +227,12 @@ export function mountHardness({ py, view, plots, water }) {
   });
 
   view.setWater(describe(null));
-  // Mounted after the water's first result: ask for that water's figures once (a later solve wins).
+  // Mounted after the water's first result: its figures come with the replayed solve; asked
+  // for once, when shown, only if there was none (a later solve wins).
   askInitialWater(py, () => current, (scenario, result) => {
     current = { scenario, result };
     view.setWater(describe(result));
     run();
-  });
+  }, { shown: () => isJobShown("hardness"), onShown: (listener) => onJobShown("hardness", listener) });
   return { refresh };
 }

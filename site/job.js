@@ -1,6 +1,6 @@
 // What the job controllers share (hardness.js, lead.js, scale.js, softening.js, treatment.js):
-// the words for a water that cannot be used, and the one request for the figures of the water
-// already on the page when a job mounts after the water's first result. No DOM here.
+// the words for a water that cannot be used, and the figures of the water already on the page
+// when a job mounts after the water's first result. No DOM here.
 
 import { fixed } from "./format.js";
 
@@ -19,19 +19,34 @@ export function staleWaterNote(result, what = "figures", withTemperature = false
 }
 
 /**
- * Ask the core once for the water already on the page (a job mounted after the water's first
- * result); `take(scenario, result)` runs unless a solve of the water arrived in between.
+ * The figures of the water already on the page for a job mounted after the water's first result.
+ * They normally come with the water handle's replay of its last solve (main.js), which costs no
+ * request; only when there was none (the water went stale before the job was mounted) is the
+ * core asked, once, and not before the job is shown (a hidden job asks nothing). `take(scenario,
+ * result)` runs unless a solve of the water arrived in between.
  *
  * @param {{call: Function}} py  the core
  * @param {() => {scenario: object|null, result: object|null}} getCurrent  the job's water now
  * @param {(scenario: object, result: object) => void} take
+ * @param {{shown: () => boolean, onShown: (listener: () => void) => () => void}} job  whether the
+ *        job is in view, and a listener for when it comes into view (workbench.js)
  */
-export function askInitialWater(py, getCurrent, take) {
-  const initial = getCurrent().scenario;
-  if (!initial) return;
-  py.call("solve", initial).then((result) => {
-    const now = getCurrent();
-    if (now.result || now.scenario !== initial) return;
-    take(initial, result);
-  }).catch(() => {}); // the water section shows its own failure
+export function askInitialWater(py, getCurrent, take, { shown, onShown }) {
+  let off = null;
+  const ask = () => {
+    off?.();
+    off = null;
+    const initial = getCurrent().scenario;
+    if (!initial || getCurrent().result) return; // no water yet, or the replayed solve came
+    py.call("solve", initial).then((result) => {
+      const now = getCurrent();
+      if (now.result || now.scenario !== initial) return;
+      take(initial, result);
+    }).catch(() => {}); // the water section shows its own failure
+  };
+  // After the replay of the water's last solve (a microtask queued when the job subscribed).
+  queueMicrotask(() => {
+    if (shown()) ask();
+    else off = onShown(ask);
+  });
 }

@@ -267,11 +267,12 @@ export function mountLead({ py, view, plot, water }) {
 
   view.setAxis("pH", LEAD_AXES.pH.words);
   view.setWater(describe(null));
-  // Mounted after the water's first result: ask for that water's figures once (a later solve wins).
+  // Mounted after the water's first result: its figures come with the replayed solve; asked
+  // for once, when shown, only if there was none (a later solve wins).
   askInitialWater(py, () => current, (scenario, result) => {
     current = { scenario, result };
     view.setWater(describe(result));
     run();
-  });
+  }, { shown: () => isJobShown("lead"), onShown: (listener) => onJobShown("lead", listener) });
   return { refresh };
 }

@@ -3,6 +3,15 @@
 // The page is a workbench (workbench.js): the water's inputs and headline stay in view, one job
 // at a time beside them. The water is mounted and drawn first; the other jobs after its first
 // result, so the first figures the user waits for come sooner.
+//
+// Boot order (issue 10: load only what the first view needs before its first result):
+//   1. the core's library ("systems") and catalogues are asked at once (the worker answers them
+//      as soon as Python is up), and the water's two plots are embedded while Python starts;
+//   2. the water is mounted, the URL's state applied to it and its first request sent (it does
+//      not wait for the plots: its curves, the answer's second part, are drawn once they are in);
+//   3. after the water's plots are drawn: the chemicals list, the other jobs' plots and mounts.
+//      A hidden job computes nothing until it is shown (a link's inputs of a job may be checked
+//      by the core on opening: see treatment.js and distribution.js).
 
 import { onBootProgress, sharedPython } from "./py.js";
 import { embedBufferPlot, embedPlots, embedTitrationPlot, loadTemplates } from "./plot.js";
@@ -55,17 +64,20 @@ manifest.then((m) => about.render(m?.versions));
 
 const py = sharedPython(); // already started by boot.js
 onBootProgress((step) => status.progress(step));
+// Asked now: the worker queues them and answers them as soon as Python is ready.
+const libraryLoading = py.call("systems").catch(() => ({ systems: [], ions: [] }));
+const cataloguesLoading = py.call("catalogues");
+// The first view's plots, embedded while the worker boots (the main thread waits for it anyway).
+const waterPlots = embedWaterPlots();
+waterPlots.catch(() => {}); // awaited below, where a failure is reported
 const templates = loadTemplates("./plots.json");
 const presetsLoading = loadPresets("./presets.json");
 
 try {
-  const [versions, plotTemplates, presets] = await Promise.all([py.ready, templates, presetsLoading]);
-  about.render(versions);
-  const [waterLibrary, chemicalList, catalogueList] = await Promise.all([
-    py.call("systems").catch(() => ({ systems: [], ions: [] })),
-    py.call("chemicals").then((r) => r.chemicals),
-    py.call("catalogues"),
+  const [versions, plotTemplates, presets, waterLibrary, catalogueList] = await Promise.all([
+    py.ready, templates, presetsLoading, libraryLoading, cataloguesLoading,
   ]);
+  about.render(versions);
   setCatalogues(catalogueList); // the core's units, activity models, flow units, molar masses
   fillCatalogueSelects(document); // before any section reads its lists
   const library = waterLibrary.systems?.length ? waterLibrary.systems : null;
@@ -83,7 +95,7 @@ try {
   const waterSection = mountWater({
     py,
     view: new WaterView(document),
-    plots: await embedWaterPlots(),
+    plots: waterPlots,
     palette: plotTemplates.palette,
     systems: waterLibrary.systems,
     ions: waterLibrary.ions,
@@ -106,7 +118,11 @@ try {
       return off;
     },
   };
-  messages.push(...(await applyState(opened, ["water"])));
+  const waterApplied = applyState(opened, ["water"]); // sends the water's first request now
+  const [waterNotes] = await Promise.all([waterApplied, waterPlots]);
+  messages.push(...waterNotes);
+  // What the first view does not need: asked after the water's result is drawn.
+  const chemicalList = await py.call("chemicals").then((r) => r.chemicals);
 
   // Then the jobs on it. The one-acid explorer (distribution.js) is one job among them.
   const plotHandles = await embedPlots("./plots.json", { distribution: "plot-distribution", logConcentration: "plot-logc" });

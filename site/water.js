@@ -126,7 +126,9 @@ export function resolveIonId(id, library) {
  * @param {object} deps
  * @param {{call: (method: string, params?: object) => Promise<any>}} deps.py  the core
  * @param {import("./water-view.js").WaterView} deps.view  its DOM
- * @param {{fraction: object, logc: object}} deps.plots  from embedWaterPlots()
+ * @param {{fraction: object, logc: object}|Promise<{fraction: object, logc: object}>} deps.plots
+ *        from embedWaterPlots(), or its promise: the first request need not wait for the plots
+ *        (the headline draws none); the curves, the answer's second part, are drawn once they are in
  * @param {string[]} deps.palette  line colours (plots.json)
  * @param {object[]} deps.systems  library systems (core "systems" method)
  * @param {object[]} deps.ions  library strong ions
@@ -146,6 +148,12 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
   const staleListeners = new Set();
   let lastScenario = null;
   let last = null; // {result, curves, scenario}
+  let plotsIn = !(plots instanceof Promise);
+  const plotsReady = Promise.resolve(plots).then((p) => {
+    plots = p;
+    plotsIn = true;
+  });
+  plotsReady.catch(() => {}); // a failure to embed them is the caller's to report
   let wantedPlotSystem = null; // from a link, applied at the next draw
 
   view.setLibrary([...library.values()], [...ionLibrary.values()]);
@@ -496,10 +504,13 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
     // are not computed.
     stream: (scenario, onPart) => {
       const t0 = performance.now();
-      return py.stream("water_view", { ...scenario, curve: CURVE }, (part, index) => {
+      const sent = py.stream("water_view", { ...scenario, curve: CURVE }, (part, index) => {
         performance.measure(index ? "water:core-curves" : "water:core", { start: t0, end: performance.now() });
-        onPart(part);
+        if (!index || plotsIn) onPart(part);
+        else plotsReady.then(() => onPart(part)); // the curves wait for the plots (first load only)
       });
+      // the stream is over once its parts are handed on (after the plots, on the first load)
+      return plotsIn ? sent : sent.then((end) => plotsReady.then(() => end));
     },
     render(out, scenario) {
       const t1 = performance.now();

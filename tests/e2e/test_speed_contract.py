@@ -8,6 +8,11 @@
   core's answer for the last input.
 - Opening the page or a link computes each hidden job's blocks once, when the job is shown,
   not twice (once on the water's solve and again when the link is settled).
+- Boot order (issue 10: "load only what the first view needs before the first result"): with
+  the water job in view, nothing but the water's one request and the core's library and
+  catalogues is sent before the water's plots are drawn; no hidden job asks for a solve of
+  the water or a distribution (the jobs get the water the page solved); the one-acid explorer
+  computes when it is shown.
 
 Requests are counted by the page itself (py.js: window.__acidscapeCalls). No timings here:
 speed is measured by build_scripts/bench.py. The oracle for the numbers is
@@ -135,3 +140,67 @@ def test_hidden_jobs_ask_nothing_and_are_computed_once_when_shown(page: Page, wa
     # an edit of the water with the titration job in view: the water and that job's blocks only
     sent = edit(page, "#water-system-0-total", "2.83")
     assert sent == {"water_view": 1, "titrate": 1, "buffer": 1}, sent
+
+
+# Installed before the page's scripts: every request the page posts to its worker, in order,
+# with whether the water's plots were drawn (#water-section[data-drawn]) when it was sent.
+SENT_LOG = """(() => {
+  window.__sent = [];
+  const post = Worker.prototype.postMessage;
+  Worker.prototype.postMessage = function (message, ...rest) {
+    if (message && message.method) {
+      window.__sent.push({method: message.method,
+                          plotted: Boolean(document.querySelector('#water-section[data-drawn]'))});
+    }
+    return post.call(this, message, ...rest);
+  };
+})();"""
+
+# What the first view needs from the core: its library (systems, ions, limits) and catalogues
+# (units, activity models, molar masses), and the water's one request.
+FIRST_VIEW = {"systems", "catalogues", "water_view"}
+# Lists the jobs are filled from once the water is drawn (no computation of a job).
+LISTS = {"chemicals", "products"}
+
+
+def sent(page: Page) -> list[dict]:
+    return page.evaluate("() => window.__sent")
+
+
+@pytest.mark.parametrize("fragment", ["", "preset=upland-reservoir"])
+def test_boot_sends_only_what_the_first_view_needs_before_the_water_is_plotted(page: Page, watch, fragment):
+    page.add_init_script(SENT_LOG)
+    open_page(page, fragment)
+    log = sent(page)
+    before = [r["method"] for r in log if not r["plotted"]]
+    assert set(before) <= FIRST_VIEW, before
+    assert before.count("water_view") == 1, before
+    assert page.get_attribute("#water-section", "data-drawn") is not None
+    # No job asks the core to solve the water again: it has the page's solve.
+    assert "solve" not in [r["method"] for r in log], log
+
+
+def test_hidden_jobs_compute_nothing_at_boot_and_the_explorer_computes_when_shown(page: Page, watch):
+    page.add_init_script(SENT_LOG)
+    open_page(page)
+    assert set(calls(page)["byMethod"]) <= FIRST_VIEW | LISTS, calls(page)["byMethod"]
+    assert calls(page)["byMethod"]["water_view"] == 1
+    assert page.get_attribute("body", "data-drawn") is None  # the explorer drew nothing yet
+    before = calls(page)
+    show_job(page, "explorer")
+    expect(page.locator("body")).to_have_attribute("data-drawn", "1", timeout=BOOT_MS)
+    settled(page, timeout=BOOT_MS)
+    assert sent_since(before, calls(page)) == {"distribution": 1}
+    # the core's answer for the explorer's inputs on screen (phosphate, 0.001 mol/L, pH 7)
+    want = api.distribution({"system": page.input_value("#acid-select"), "total_M": float(page.input_value("#total-input")),
+                             "pH": float(page.input_value("#ph-input"))})
+    fraction = float(page.get_attribute("#species-table tbody tr td[data-key='fraction']", "data-value"))
+    assert math.isclose(fraction, want["table"]["rows"][0]["fraction"], rel_tol=1e-12)
+    # A job shown after the boot computes its own blocks; the water it works on is the page's
+    # solve (no request for the water again).
+    for job in ("lead", "hardness"):
+        before = calls(page)
+        show_job(page, job)
+        settled(page, timeout=BOOT_MS)
+        asked = sent_since(before, calls(page))
+        assert asked and "solve" not in asked and "water_view" not in asked, (job, asked)

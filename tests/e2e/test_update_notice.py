@@ -118,8 +118,9 @@ def test_new_build_shows_notice_keeps_old_copy_and_reload_takes_it(page: Page, c
     assert new_build_waits(page)
     expect(page).to_have_title("Acidscape")
     assert cache_keys(page) == set(old.values()) | set(new.values())
+    show_job(page, "explorer")  # a hidden job computes when it is shown: its first result first
+    page.wait_for_selector("body[data-drawn]", state="attached", timeout=60_000)
     drawn = int(page.get_attribute("body", "data-drawn"))
-    show_job(page, "explorer")
     page.fill("#ph-input", "8.3")
     page.wait_for_function("(n) => Number(document.body.dataset.drawn) > n", arg=drawn)
     # The new worker fetched the changed page files only.
