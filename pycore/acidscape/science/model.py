@@ -56,10 +56,14 @@ Activity coefficients are computed once per distinct (charge, ion size) and ln K
 distinct set of (activity, coefficient) terms. A skeleton used more than a few times has its
 evaluation of F, gradient, residual scale and Hessian compiled to straight-line Python, and
 the Cholesky factor and solve are compiled per dimension: CPython spends most of a small
-sparse evaluation on loop overhead, not arithmetic. The compiled code performs the same
-operations in the same order as the loops it replaces (``tests/test_model.py`` checks that
-the numbers are identical), so the answers do not depend on it. A ``guess`` (an earlier
-state, or a measured water's settled ionic strength) only shortens the iteration.
+sparse evaluation on loop overhead, not arithmetic; so are the eliminated components' ladder
+sums, per pattern of protons (and, with the pH held, they are a constant computed once). The
+compiled code performs the same operations in the same order as the loops it replaces
+(``tests/test_model.py`` checks that the numbers are identical), so the answers do not depend
+on it. These caches live on the tableau, which :class:`acidscape.science.tableau.WaterModel`
+shares between waters of the same make-up. A ``guess`` (an earlier state, or a measured
+water's settled ionic strength) only shortens the iteration; at another given pH each
+component's free concentration is first moved with its own protonated forms.
 
 Functions and classes
 ---------------------
@@ -953,13 +957,14 @@ def equilibrium(
             st = _assemble(tab, structure, totals, x, lnKp, open_comp, pH)
             x_state.update((j, v) for j, v in enumerate(st["ln_free"]) if v > -math.inf)
             # amounts of the active solids from the mass balances they close
-            amounts = _amounts(tab, active, st["resid"], coupled, open_comp, pH, totals)
+            amounts = _amounts(tab, active, st["resid"]() if active else None, coupled, open_comp, pH, totals)
             neg = [(n, s) for s, n in zip(active, amounts) if n < -1e-13 * max(1e-30, max(totals[1:] or [0]))]
             if neg:
                 active.remove(min(neg)[1])
                 continue
-            si = _saturation(tab, st["ln_free"], lgc, solids_on)
-            cand = [(si[s], s) for s in allowed if s not in active and si[s] > SI_TOL]
+            # saturation of every solid: now when solids may form, else once for the answer
+            si = _saturation(tab, st["ln_free"], lgc, solids_on) if allowed else None
+            cand = [(si[s], s) for s in allowed if s not in active and si[s] > SI_TOL] if allowed else ()
             if cand:
                 best = max(cand)[1]
                 key = (tuple(sorted(active)), best)
@@ -974,7 +979,8 @@ def equilibrium(
             st["SI"] = si
             st["lgc"], st["lgs"] = lgc, lgs
             return st
-        st["amounts"] = dict(zip(active, _amounts(tab, active, st["resid"], coupled, open_comp, pH, totals)))
+        st["amounts"] = dict(zip(active, _amounts(tab, active, st["resid"]() if active else None, coupled, open_comp,
+                                                  pH, totals)))
         st["rtol"] = rtol
         st["SI"] = _saturation(tab, st["ln_free"], lgc, solids_on)
         st["lgc"], st["lgs"] = lgc, lgs
@@ -1038,6 +1044,8 @@ def equilibrium(
     conc = st["conc"]
     lgc, lgs = st["lgc"], st["lgs"]
     pH_out = -(st["ln_free"][0] / LN10 + lgc[0])
+    if st["SI"] is None:
+        st["SI"] = _saturation(tab, st["ln_free"], lgc, solids_on)
     log10_IAP = {s: v + tab.solids[s].log10_Ksp for s, v in st["SI"].items()}
     charge_res = sum(sp.charge * c for sp, c in zip(tab.species, conc))
     used_totals, residuals = st["finish"](st["amounts"])
@@ -1259,28 +1267,43 @@ def _assemble(tab, structure, totals, x, lnKp, open_comp, pH) -> dict:
             e += a * ln_free[j]
         conc[i] = exp(e)
     hc = tab.h_count
+    log = math.log
     for j in structure.simple:
         idx = structure.ladder_of[j]
         es = [lnKp[i] + hc[i] * xH for i in idx]
         top = max(es)
-        lnS = top + math.log(sum(exp(e - top) for e in es))
-        ln_free[j] = math.log(totals[j]) - lnS
+        lnS = top + log(sum([exp(e - top) for e in es]))
+        lnT = log(totals[j])
+        ln_free[j] = lnT - lnS
         for i, e in zip(idx, es):
-            conc[i] = exp(math.log(totals[j]) + e - lnS)
-    held = [0.0] * m
-    for i, st in structure.on_stoich:
-        c = conc[i]
-        for j, a in st:
-            held[j] += a * c
-    resid = list(totals)
-    for j in range(m):
-        if j in open_comp or (j == 0 and pH is not None):
-            resid[j] = 0.0  # set by the answer, not by a given total
-        else:
-            resid[j] = totals[j] - held[j]
+            conc[i] = exp(lnT + e - lnS)
+    held_memo = []
+
+    def held_of():
+        """The amount of each component the species hold (computed once, when asked)."""
+        if not held_memo:
+            held = [0.0] * m
+            for i, st in structure.on_stoich:
+                c = conc[i]
+                for j, a in st:
+                    held[j] += a * c
+            held_memo.append(held)
+        return held_memo[0]
+
+    def resid():
+        """Mass-balance residual of each component (0 for rows the answer sets) [mol/L]."""
+        held = held_of()
+        out = list(totals)
+        for j in range(m):
+            if j in open_comp or (j == 0 and pH is not None):
+                out[j] = 0.0  # set by the answer, not by a given total
+            else:
+                out[j] = totals[j] - held[j]
+        return out
 
     def finish(amounts):
         """Totals as used (open and fixed-pH rows filled in) and mass-balance residuals."""
+        held = held_of()
         in_solid = [0.0] * m
         for s, n in amounts.items():
             for j, b in tab.solids[s].stoich:
