@@ -265,7 +265,7 @@ def read_linked(page: Page) -> dict:
     return page.evaluate("() => window.__linked")
 
 
-def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbers_are_the_cores(page: Page, watch):
+def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbers_are_the_cores(page: Page, watch, tmp_path):
     state = {"v": 2, "water": preset_water("hard-well-scale"), "scale": SCALE_INPUTS, "softening": SOFTENING_INPUTS,
              "workbench": {"job": "scale"}}
     page.goto("/" + plain_link(state))
@@ -353,6 +353,29 @@ def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbe
     assert inputs["Softening/Plant flow"] == "25000 m³/d"
     assert inputs["Softening/Recarbonation"] == "with CO₂ to pH 8.6"
     assert inputs["Job in view/Job"].startswith("Softening")
+
+    # a saved file holds them too (with the job in view), and opening it puts them back
+    with page.expect_download() as info:
+        page.click("#save-json")
+    saved = tmp_path / "scale.json"
+    info.value.save_as(saved)
+    filed = json.loads(saved.read_text(encoding="utf-8"))
+    assert filed["scale"] == SCALE_INPUTS and filed["softening"] == SOFTENING_INPUTS
+    assert filed["workbench"] == {"job": "softening"}
+    page.fill("#soften-target-hardness", "120")
+    show_job(page, "scale")
+    page.fill("#scale-pco2", "0.001")
+    settled(page, BOOT_MS)
+    before = int(page.get_attribute("body", "data-opened") or 0)
+    page.set_input_files("#load-json", str(saved))
+    page.wait_for_function("(n) => Number(document.body.dataset.opened) > n", arg=before, timeout=BOOT_MS)
+    expect(page.locator("#share-message")).to_have_text('Opened the scenario from the file "scale.json".')
+    expect(page.locator("body")).to_have_attribute("data-job", "softening")
+    expect(page.locator("#soften-target-hardness")).to_have_value("90")
+    settled(page, BOOT_MS)
+    mine = page.evaluate(STATE)
+    assert mine["scale"] == SCALE_INPUTS and mine["softening"] == SOFTENING_INPUTS
+    assert close(num(page, "#soften-soda-dose"), soft["soda_ash"]["dose_mg_per_L"])  # soda ash to 90, not 120
 
 
 def test_a_hostile_link_in_the_scale_inputs_keeps_the_valid_ones_names_the_rest_and_computes(page: Page, watch):
