@@ -8,14 +8,22 @@
 // The snapshot is used only if it was made by this Pyodide version, Pyodide accepts it (it
 // checks its own build id), and the key stored inside it equals the manifest's (Pyodide
 // version + sha256 of the wheel). Otherwise, or if it fails to load, the worker boots Pyodide
-// the ordinary way. Either way the wheel's files are written into site-packages before Python
-// starts (files of Pyodide's file system do not survive in a snapshot), so a module imported
-// lazily or a data file read later is found as usual.
+// the ordinary way. Either way the wheel's files are in site-packages before the first request
+// (files of Pyodide's file system do not survive in a snapshot), so a module imported lazily or
+// a data file read later is found as usual: written before Python starts for an ordinary boot,
+// and after the restore (before anything else runs) for a snapshot boot, which then need not
+// wait for the wheel.
+//
+// This module has no static imports: its first lines start the downloads (the manifest, then
+// the snapshot and the wheel; the runtime's wasm), while the modules it uses still load.
 
-import { loadPyodide, version as pyodideVersion } from "./vendor/pyodide/pyodide.mjs";
-import { PROTOCOL_VERSION } from "./py.js";
-import { expandImage } from "./snapshot-image.js";
-import { wheelFiles, writeFiles } from "./wheel.js";
+const imported = Promise.all([
+  import("./vendor/pyodide/pyodide.mjs"),
+  import("./py.js"),
+  import("./snapshot-image.js"),
+  import("./wheel.js"),
+]);
+let PROTOCOL_VERSION = null; // from py.js, once imported (see post)
 
 // loadPyodide hangs rather than rejects when the wasm cannot be instantiated: always time out.
 const BOOT_TIMEOUT_MS = 90000;
@@ -49,7 +57,25 @@ WebAssembly.instantiateStreaming = async (source, imports) => {
   return { module, instance: await WebAssembly.instantiate(module, imports) };
 };
 
-const post = (message) => self.postMessage({ v: PROTOCOL_VERSION, ...message });
+// Messages to the page wait for py.js (its protocol version), in the order they were posted.
+const outbox = [];
+const post = (message) => {
+  if (PROTOCOL_VERSION === null) outbox.push(message);
+  else self.postMessage({ v: PROTOCOL_VERSION, ...message });
+};
+imported.then(
+  ([, py]) => {
+    PROTOCOL_VERSION = py.PROTOCOL_VERSION;
+    for (const message of outbox.splice(0)) post(message);
+  },
+  (error) => {
+    // A module that cannot load is the worker's error, as a static import's would be: the page
+    // hears of it at once (its Worker "error" event).
+    setTimeout(() => {
+      throw error;
+    });
+  },
+);
 const progress = (stage, fraction, text) => post({ type: "progress", stage, fraction, text });
 const timings = {}; // ms since the worker started, per boot step (reported with "ready")
 const mark = (name) => {
@@ -102,6 +128,7 @@ async function fetchSnapshot(entry) {
   }
   const image = await readExactly(body, entry.image_bytes, "the Python snapshot");
   mark("snapshot_fetched");
+  const [, , { expandImage }] = await imported;
   const heap = expandImage(image);
   if (heap.length !== entry.bytes) throw new Error(`the snapshot holds ${heap.length} bytes, the manifest says ${entry.bytes}`);
   mark("snapshot_expanded");
@@ -117,22 +144,36 @@ const pyodideOptions = {
 class NoSnapshot extends Error {}
 
 /**
- * A Pyodide restored from the build's snapshot, or null (after a console message) when there
- * is none, it belongs to another Pyodide or another core, or it fails to load. Pyodide's own
- * files (runtime module, wasm, standard library) start loading at once, beside the manifest
- * and the snapshot.
+ * The snapshot's heap, or a NoSnapshot rejection when the build has none or made it with
+ * another Pyodide than the one it ships (manifest.versions.pyodide; then it is not fetched).
  */
-async function bootFromSnapshot(manifestPromise, options) {
-  const snapshot = manifestPromise.then((manifest) => {
+function snapshotHeap(manifestPromise) {
+  return manifestPromise.then((manifest) => {
     const entry = manifest.snapshot;
     if (!entry) throw new NoSnapshot("this build has none");
-    if (!entry.key || JSON.parse(entry.key).pyodide !== pyodideVersion) {
-      throw new NoSnapshot(`it was made for another Pyodide (this is ${pyodideVersion})`);
+    const shipped = manifest.versions?.pyodide;
+    if (!entry.key || JSON.parse(entry.key).pyodide !== shipped) {
+      throw new NoSnapshot(`it was made for another Pyodide (this is ${shipped})`);
     }
     return fetchSnapshot(entry);
   });
+}
+
+/**
+ * A Pyodide restored from the build's snapshot, or null (after a console message) when there
+ * is none, it belongs to another Pyodide or another core, or it fails to load. Pyodide's own
+ * files (runtime module, wasm, standard library) load meanwhile, beside the snapshot.
+ */
+async function bootFromSnapshot(heap, manifestPromise, options) {
+  const [{ loadPyodide, version }] = await imported;
   try {
-    const pyodide = await loadPyodide({ ...options, _loadSnapshot: snapshot });
+    // the runtime that loaded must be the one the manifest names (checked again, now it is in)
+    const bytes = Promise.all([heap, manifestPromise]).then(([image, manifest]) => {
+      const made = JSON.parse(manifest.snapshot.key).pyodide;
+      if (made !== version) throw new NoSnapshot(`it was made for another Pyodide (this is ${version})`);
+      return image;
+    });
+    const pyodide = await loadPyodide({ ...options, _loadSnapshot: bytes });
     // Pyodide keeps its options; drop the image (tens of MB) now that it sits in the heap.
     if (pyodide._api?.config) pyodide._api.config._loadSnapshot = null;
     const stored = pyodide.globals.get("_acidscape_snapshot");
@@ -157,39 +198,52 @@ async function boot() {
       if (!manifest.wheel) throw new Error("manifest.json names no wheel");
       return manifest;
     });
-  // The core's files, read from the wheel while the runtime loads, go into site-packages
-  // before Python starts (Pyodide's fsInit hook), for either kind of boot.
+  const heap = snapshotHeap(manifestPromise);
+  heap.catch(() => {}); // reported by bootFromSnapshot
+  // The core's files, read from the wheel while the runtime loads: written into site-packages
+  // before Python starts (Pyodide's fsInit hook) for an ordinary boot, after the restore for a
+  // snapshot boot (whose modules are in the image already).
   const files = manifestPromise
     .then((manifest) => fetchOk(new URL(manifest.wheel, import.meta.url), "the acidscape package"))
     .then((response) => response.arrayBuffer())
-    .then(wheelFiles)
+    .then(async (archive) => (await imported)[3].wheelFiles(archive))
     .then((list) => {
       mark("wheel_read");
       return list;
     });
   files.catch(() => {}); // its failure is reported where it is awaited
+  let sitePackages = null;
   const options = {
     ...pyodideOptions,
-    fsInit: async (FS, { sitePackages }) => {
+    fsInit: async (FS, paths) => {
       try {
-        writeFiles(FS, sitePackages, await files);
+        (await imported)[3].writeFiles(FS, paths.sitePackages, await files);
       } catch {
         // reported by the await of `files` below
       }
     },
   };
+  const snapshotOptions = {
+    ...pyodideOptions,
+    fsInit: (FS, paths) => {
+      sitePackages = paths.sitePackages;
+    },
+  };
 
-  let pyodide = await bootFromSnapshot(manifestPromise, options);
+  let pyodide = await bootFromSnapshot(heap, manifestPromise, snapshotOptions);
   const manifest = await manifestPromise; // a failed manifest fails the boot here
   const fromSnapshot = Boolean(pyodide);
   if (!pyodide) {
     progress("runtime", 0.5, "Starting Python…");
+    const [{ loadPyodide }] = await imported;
     pyodide = await loadPyodide(options);
   }
-  await files; // a wheel that could not be read fails the boot here
+  const list = await files; // a wheel that could not be read fails the boot here
   mark("runtime");
   if (fromSnapshot) {
-    // Defined in the image by build_scripts/snapshot.mjs: fresh directory listings, random seed.
+    // Before any request: the wheel's files for what is imported or read lazily, then (defined
+    // in the image by build_scripts/snapshot.mjs) fresh directory listings and random seed.
+    (await imported)[3].writeFiles(pyodide.FS, sitePackages, list);
     const afterRestore = pyodide.globals.get("_acidscape_after_restore");
     afterRestore();
     afterRestore.destroy();
@@ -326,7 +380,8 @@ async function work() {
   }
 }
 
-self.onmessage = (event) => {
+/** A request from the page (after py.js is in: requests sent early wait for it, in order). */
+function receive(event) {
   const request = event.data || {};
   if (request.v !== PROTOCOL_VERSION) {
     post({ id: request.id, ok: false, error: { type: "ProtocolError", message: `unsupported protocol version ${request.v}`, field: null } });
@@ -334,4 +389,9 @@ self.onmessage = (event) => {
   }
   queue.push(request);
   work();
+}
+
+self.onmessage = (event) => {
+  if (PROTOCOL_VERSION === null) imported.then(() => receive(event), () => {});
+  else receive(event);
 };
