@@ -1338,7 +1338,11 @@ def _amounts(tab, active, resid, coupled, open_comp, pH, totals) -> list[float]:
 def _saturation(tab, ln_free, lgc, solids_on) -> dict[int, float]:
     """SI = log10 IAP - log10 Ksp of every solid whose components are present."""
     out = {}
+    la = [f / LN10 + g for f, g in zip(ln_free, lgc)]  # log10 activity of each component
     for s, (solid, on) in enumerate(zip(tab.solids, solids_on)):
         if on:
-            out[s] = sum(b * (ln_free[j] / LN10 + lgc[j]) for j, b in solid.stoich) - solid.log10_Ksp
+            v = 0
+            for j, b in solid.stoich:
+                v += b * la[j]
+            out[s] = v - solid.log10_Ksp
     return out
