@@ -14,9 +14,14 @@
 // and after the restore (before anything else runs) for a snapshot boot, which then need not
 // wait for the wheel.
 //
-// This module has no static imports: its first lines start the downloads (the manifest, then
-// the snapshot and the wheel; the runtime's wasm), while the modules it uses still load.
+// This module has no static imports: its first lines start the downloads, while the modules it
+// uses still load. The manifest goes first (the snapshot's name is in it), then the modules and
+// the runtime's wasm; once the manifest is in, the snapshot, then the wheel and Pyodide's other
+// files (the browser fetches a few files at a time from one host over HTTP/1.1).
 
+const MANIFEST_URL = new URL("./manifest.json", import.meta.url);
+const manifestResponse = fetch(MANIFEST_URL);
+manifestResponse.catch(() => {}); // reported in boot()
 const imported = Promise.all([
   import("./vendor/pyodide/pyodide.mjs"),
   import("./py.js"),
@@ -38,8 +43,30 @@ const wasmModule = WebAssembly.compileStreaming(fetch(WASM_URL));
 wasmModule.catch(() => {}); // a failure falls back below
 const standIns = new WeakSet();
 const fetchFile = self.fetch.bind(self);
+// Pyodide's other files start loading now too, not once loadPyodide runs: the standard library
+// and the lock file are fetched here and their responses handed to Pyodide's first fetch of
+// each (a later fetch, e.g. by an ordinary boot after a failed snapshot, goes to the network),
+// and the runtime's module is imported (Pyodide's own import of the same URL then finds it).
+const early = new Map();
+const asked = new Set(); // URLs Pyodide has fetched already
+function fetchPyodideFiles() {
+  for (const name of ["python_stdlib.zip", "pyodide-lock.json"]) {
+    if (asked.has(INDEX_URL + name)) continue; // Pyodide was quicker
+    const response = fetchFile(INDEX_URL + name);
+    response.catch(() => {}); // Pyodide reports a failure when it reads the file
+    early.set(INDEX_URL + name, response);
+  }
+  import(INDEX_URL + "pyodide.asm.mjs").catch(() => {}); // Pyodide's import reports a failure
+}
 self.fetch = (input, init) => {
-  if (String(input) !== WASM_URL) return fetchFile(input, init);
+  const url = String(input);
+  asked.add(url);
+  if (early.has(url)) {
+    const response = early.get(url);
+    early.delete(url);
+    return response;
+  }
+  if (url !== WASM_URL) return fetchFile(input, init);
   const standIn = new Response(null, { headers: { "Content-Type": "application/wasm" } });
   standIns.add(standIn);
   return Promise.resolve(standIn);
@@ -191,8 +218,11 @@ async function bootFromSnapshot(heap, manifestPromise, options) {
 
 async function boot() {
   progress("runtime", 0.15, "Loading the Python runtime (about 20 MB the first time)…");
-  const manifestPromise = fetchOk(new URL("./manifest.json", import.meta.url), "manifest.json")
-    .then((response) => response.json())
+  const manifestPromise = manifestResponse
+    .then((response) => {
+      if (!response.ok) throw new Error(`could not load manifest.json (HTTP ${response.status})`);
+      return response.json();
+    })
     .then((manifest) => {
       mark("manifest");
       if (!manifest.wheel) throw new Error("manifest.json names no wheel");
@@ -212,6 +242,7 @@ async function boot() {
       return list;
     });
   files.catch(() => {}); // its failure is reported where it is awaited
+  manifestPromise.finally(fetchPyodideFiles).catch(() => {}); // after the snapshot's and the wheel's
   let sitePackages = null;
   const options = {
     ...pyodideOptions,
