@@ -7,7 +7,7 @@ import { CoreError } from "./py.js";
 import { parseNumber, parsePH, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
-import { askInitialWater, staleWaterNote } from "./job.js";
+import { followWater } from "./job.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 
@@ -32,10 +32,16 @@ const LABEL = { sample_mL: "Sample volume", titrant_M: "EDTA concentration", fix
  * @returns {{refresh: () => Promise<void>}}
  */
 export function mountHardness({ py, view, plots, water }) {
-  let current = { scenario: water.scenario?.() ?? null, result: null };
-  let waterNote = "";
   let owed = true;
   const drawn = { titration: false, conditional: false };
+  // The water above (job.js): each solve computed here; while it cannot be used, what is drawn is marked.
+  const current = followWater({ py, water, view, job: "hardness", what: "figures", describe, run,
+    stale: (note) => {
+      for (const [name, b] of [["titration", titration], ["conditional", conditional]]) {
+        b.cancel();
+        if (drawn[name]) view.setResultState(name, "stale", note);
+      }
+    } });
 
   /** The water's calcium and magnesium totals [mol/L] as the core solved them. */
   function hardnessIons(result) {
@@ -80,7 +86,7 @@ export function mountHardness({ py, view, plots, water }) {
   }
 
   function settledState(block) {
-    if (waterNote) view.setResultState(block, "stale", waterNote);
+    if (current.note) view.setResultState(block, "stale", current.note);
     else view.setResultState(block, "current");
   }
 
@@ -176,20 +182,6 @@ export function mountHardness({ py, view, plots, water }) {
       `${fixed(result.temperature_C, 1)} °C.`;
   }
 
-  water.onSolved((scenario, result) => {
-    current = { scenario, result };
-    waterNote = "";
-    view.setWater(describe(result));
-    run();
-  });
-  water.onStale?.((note, result) => {
-    waterNote = staleWaterNote(result, "figures");
-    view.setWater(waterNote, true);
-    for (const [name, b] of [["titration", titration], ["conditional", conditional]]) {
-      b.cancel();
-      if (drawn[name]) view.setResultState(name, "stale", waterNote);
-    }
-  });
   view.bindChange((id) => {
     notifyInputChange("hardness");
     // the buffered pH moves the conditional plot's marker only (its curves do not depend on it)
@@ -226,13 +218,5 @@ export function mountHardness({ py, view, plots, water }) {
     refresh,
   });
 
-  view.setWater(describe(null));
-  // Mounted after the water's first result: its figures come with the replayed solve; asked
-  // for once, when shown, only if there was none (a later solve wins).
-  askInitialWater(py, () => current, (scenario, result) => {
-    current = { scenario, result };
-    view.setWater(describe(result));
-    run();
-  }, { shown: () => isJobShown("hardness"), onShown: (listener) => onJobShown("hardness", listener) });
   return { refresh };
 }

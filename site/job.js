@@ -1,8 +1,10 @@
 // What the job controllers share (hardness.js, lead.js, scale.js, softening.js, treatment.js):
-// the words for a water that cannot be used, and the figures of the water already on the page
-// when a job mounts after the water's first result. No DOM here.
+// the words for a water that cannot be used, the figures of the water already on the page
+// when a job mounts after the water's first result, and following the water (hardness, lead).
+// No DOM here.
 
 import { fixed } from "./format.js";
+import { isJobShown, onJobShown } from "./workbench.js";
 
 /**
  * The note a job shows while the water above has an input that cannot be used.
@@ -49,4 +51,45 @@ export function askInitialWater(py, getCurrent, take, { shown, onShown }) {
     if (shown()) ask();
     else off = onShown(ask);
   });
+}
+
+/**
+ * A job follows the water above: each solve is kept, written on the job's water line
+ * (`describe(result)`) and computed (`run()`); while the water has an input that cannot be used
+ * the line says so (staleWaterNote) and `stale(note)` stops and marks the job's drawn results; the
+ * water already on the page when the job mounts is taken as askInitialWater takes it. The line
+ * reads `describe(null)` until the first water comes.
+ *
+ * @param {object} o
+ * @param {{call: Function}} o.py  the core
+ * @param {{scenario?: () => object|null, onSolved: Function, onStale?: Function}} o.water  the water handle (main.js)
+ * @param {{setWater: (text: string, stale?: boolean) => void}} o.view  the job's view
+ * @param {string} o.job  the job's name on the workbench (workbench.js)
+ * @param {string} o.what  what the job's figures are ("figures", "curves"), for the note
+ * @param {(result: object|null) => string} o.describe  the water line for a water's result
+ * @param {() => void} o.run  compute the job on the water now
+ * @param {(note: string) => void} o.stale  stop the job's requests and mark what it has drawn
+ * @returns {{scenario: object|null, result: object|null, note: string}}  the job's water, kept
+ *          up to date in place (`note`: the stale note, "" while the water can be used)
+ */
+export function followWater({ py, water, view, job, what, describe, run, stale }) {
+  const current = { scenario: water.scenario?.() ?? null, result: null, note: "" };
+  const take = (scenario, result) => {
+    current.scenario = scenario;
+    current.result = result;
+    view.setWater(describe(result));
+    run();
+  };
+  water.onSolved((scenario, result) => {
+    current.note = "";
+    take(scenario, result);
+  });
+  water.onStale?.((note, result) => {
+    current.note = staleWaterNote(result, what);
+    view.setWater(current.note, true);
+    stale(current.note);
+  });
+  view.setWater(describe(null));
+  askInitialWater(py, () => current, take, { shown: () => isJobShown(job), onShown: (listener) => onJobShown(job, listener) });
+  return current;
 }

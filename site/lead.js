@@ -8,7 +8,7 @@ import { CoreError } from "./py.js";
 import { parseNumber, phRange, stateNumber } from "./parse.js";
 import { notifyInputChange, registerSection } from "./state.js";
 import { fixed } from "./format.js";
-import { askInitialWater, staleWaterNote } from "./job.js";
+import { followWater } from "./job.js";
 import { computation } from "./section.js";
 import { isJobShown, onJobShown } from "./workbench.js";
 
@@ -44,10 +44,14 @@ const LABEL = { from: "From", to: "To", fixed_pH: "Fixed pH", orthophosphate_dos
  * @returns {{refresh: () => Promise<void>}}
  */
 export function mountLead({ py, view, plot, water }) {
-  let current = { scenario: water.scenario?.() ?? null, result: null };
-  let waterNote = "";
   let owed = true; // a computation was put off while the job was hidden
   let drawn = false;
+  // The water above (job.js): each solve computed here; while it cannot be used, what is drawn is marked.
+  const current = followWater({ py, water, view, job: "lead", what: "curves", describe, run,
+    stale: (note) => {
+      block.cancel();
+      if (drawn) view.setResultState("stale", note);
+    } });
 
   function read() {
     const raw = view.read();
@@ -162,7 +166,7 @@ export function mountLead({ py, view, plot, water }) {
     view.setWarnings(warnings);
     view.setCautions(lead.cautions ?? []);
     drawn = true;
-    if (waterNote) view.setResultState("stale", waterNote);
+    if (current.note) view.setResultState("stale", current.note);
     else view.setResultState("current");
     view.markDrawn();
   }
@@ -202,18 +206,6 @@ export function mountLead({ py, view, plot, water }) {
       `orthophosphate ${mmol(sys("phosphate"))} before any dose, ${fixed(result.temperature_C, 1)} °C.`;
   }
 
-  water.onSolved((scenario, result) => {
-    current = { scenario, result };
-    waterNote = "";
-    view.setWater(describe(result));
-    run();
-  });
-  water.onStale?.((note, result) => {
-    waterNote = staleWaterNote(result, "curves");
-    view.setWater(waterNote, true);
-    block.cancel();
-    if (drawn) view.setResultState("stale", waterNote);
-  });
   view.bindChange((id) => {
     notifyInputChange("lead");
     if (id === "lead-axis") {
@@ -266,13 +258,5 @@ export function mountLead({ py, view, plot, water }) {
   });
 
   view.setAxis("pH", LEAD_AXES.pH.words);
-  view.setWater(describe(null));
-  // Mounted after the water's first result: its figures come with the replayed solve; asked
-  // for once, when shown, only if there was none (a later solve wins).
-  askInitialWater(py, () => current, (scenario, result) => {
-    current = { scenario, result };
-    view.setWater(describe(result));
-    run();
-  }, { shown: () => isJobShown("lead"), onShown: (listener) => onJobShown("lead", listener) });
   return { refresh };
 }

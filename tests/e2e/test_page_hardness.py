@@ -123,3 +123,23 @@ def test_water_without_calcium_or_magnesium_says_so(page: Page, watch):
     expect(page.locator("#hardness-water-error")).to_contain_text("neither calcium nor magnesium", timeout=JOB_MS)
     assert value(page, "#hardness-total") == ""
     assert page.locator("#hardness-endpoints tbody tr").count() == 0
+
+
+def test_a_water_that_cannot_be_used_marks_the_figures_and_a_good_one_brings_them_back(page: Page, watch):
+    open_hardness(page)
+    water_line = page.locator("#hardness-water")
+    expect(water_line).to_contain_text("From the water above")
+    page.fill("#water-temperature", "warm")
+    expect(water_line).to_have_attribute("data-state", "stale", timeout=JOB_MS)
+    expect(water_line).to_contain_text("These figures are for the last valid water (pH")
+    for results in ("#hardness-results", "#hardness-conditional-results"):
+        expect(page.locator(results)).to_have_attribute("data-state", "stale", timeout=JOB_MS)
+    assert value(page, "#hardness-total") != ""  # kept, but marked
+    before = count(page, "titration")
+    page.fill("#water-temperature", "20")
+    wait_drawn(page, "titration", before, settle=True)
+    expect(water_line).to_have_attribute("data-state", "current")
+    for results in ("#hardness-results", "#hardness-conditional-results"):
+        expect(page.locator(results)).to_have_attribute("data-state", "current", timeout=JOB_MS)
+    assert page_water(page)["temperature_C"] == 20
+    check_titration(page, 50, 0.01, 10)

@@ -10,7 +10,7 @@ here; no chemistry value of it is asserted, only that the page shows the core's.
 from __future__ import annotations
 
 import pytest
-from conftest import STATE, close, core, draw_marks, open_job, page_water
+from conftest import JOB_MS, STATE, close, core, draw_marks, open_job, page_water
 from playwright.sync_api import Page, expect
 
 pytestmark = pytest.mark.e2e
@@ -185,3 +185,23 @@ def test_a_link_carries_the_job_inputs(page: Page, watch):
     expect(page.locator("#lead-table-x")).to_have_text("DIC (mg/L as C)")
     check_against_core(page, {"axis": "DIC", "from": 1, "to": 100, "unit": "mg/L as C", "points": 201,
                               "fixed_pH": 7.8, "orthophosphate_dose": 0.8, "orthophosphate_dose_unit": "mg/L as P"})
+
+
+def test_a_water_that_cannot_be_used_marks_the_curves_and_a_good_one_brings_them_back(page: Page, watch):
+    open_lead(page)
+    water_line = page.locator("#lead-water")
+    expect(water_line).to_contain_text("Working on the water above")
+    expect(page.locator("#lead-results")).to_have_attribute("data-state", "current")
+    page.fill("#water-temperature", "warm")
+    expect(water_line).to_have_attribute("data-state", "stale", timeout=JOB_MS)
+    expect(water_line).to_contain_text("These curves are for the last valid water (pH")
+    expect(page.locator("#lead-results")).to_have_attribute("data-state", "stale", timeout=JOB_MS)
+    assert page.locator("#lead-table tbody tr").count() == 9  # kept, but marked
+    before = drawn(page, "lead")
+    page.fill("#water-temperature", "20")
+    redrawn(page, before)
+    expect(water_line).to_have_attribute("data-state", "current")
+    expect(page.locator("#lead-results")).to_have_attribute("data-state", "current")
+    assert page_water(page)["temperature_C"] == 20
+    check_against_core(page, {"axis": "pH", "from": 6.5, "to": 10.5, "points": 201, "orthophosphate_dose": 0,
+                              "orthophosphate_dose_unit": "mg/L as P"})
