@@ -258,6 +258,17 @@ SOFTENING_INPUTS = {
 }
 
 
+def open_linked(page: Page, state: dict) -> None:
+    """Open a plain link to ``state``, made with the scale job in view: that job is shown, and
+    each of its blocks that the link's inputs fill is drawn before the page settles."""
+    page.goto("/" + plain_link(state))
+    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
+    expect(page.locator("body")).to_have_attribute("data-job", "scale", timeout=BOOT_MS)
+    for block in ("indices", "dose", "steps", "blend"):
+        wait_drawn(page, block)
+    settled(page, BOOT_MS)
+
+
 def read_linked(page: Page) -> dict:
     """The state in the address bar's link, once the page has written one (a y= link)."""
     page.wait_for_function(HASH_STATE, timeout=BOOT_MS)
@@ -268,13 +279,7 @@ def read_linked(page: Page) -> dict:
 def test_a_link_reopens_the_scale_and_softening_inputs_and_the_job_and_the_numbers_are_the_cores(page: Page, watch, tmp_path):
     state = {"v": 2, "water": preset_water("hard-well-scale"), "scale": SCALE_INPUTS, "softening": SOFTENING_INPUTS,
              "workbench": {"job": "scale"}}
-    page.goto("/" + plain_link(state))
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    # the job the link was made on is the one in view, and it computes on the link's inputs
-    expect(page.locator("body")).to_have_attribute("data-job", "scale", timeout=BOOT_MS)
-    for block in ("indices", "dose", "steps", "blend"):
-        wait_drawn(page, block)
-    settled(page, BOOT_MS)
+    open_linked(page, state)  # the job the link was made on is in view, computed on the link's inputs
     expect(page.locator("#share-message")).to_have_text("Opened the scenario from the link.")
     # the fields hold the link's inputs, and the page's state is exactly the link's
     for sel, value in (("#scale-temperatures", "5, 60"), ("#scale-pco2", "0.00042"), ("#scale-dose-chemical", "Ca(OH)2"),
@@ -389,12 +394,7 @@ def test_a_hostile_link_in_the_scale_inputs_keeps_the_valid_ones_names_the_rest_
                   {"chemical": "XYZ", "target_pH": 8}, "junk"],
         "blend": {"other": "nowhere", "fractions": [2, -1]},
     }}
-    page.goto("/" + plain_link(state))
-    expect(page.locator("body")).to_have_attribute("data-ready", "true", timeout=BOOT_MS)
-    expect(page.locator("body")).to_have_attribute("data-job", "scale", timeout=BOOT_MS)
-    for block in ("indices", "dose", "steps", "blend"):
-        wait_drawn(page, block)
-    settled(page, BOOT_MS)
+    open_linked(page, state)
     message = page.locator("#share-message")
     expect(message).to_have_attribute("data-kind", "warning")
     for words in ('CCPP temperatures "60, 250" could not be used', "no further temperatures are used",
