@@ -14,7 +14,8 @@ Cases (invented waters, not checks of chemistry):
   0.6, chloride 0.8 mmol/L, 25 °C): its headline part and its 281-point curves part (``_curves``:
   from the first part to the last);
 - with ``--pyodide``: the same water-view parts in Pyodide (the page's interpreter) under Node.js,
-  a wheel of the core installed into a temporary folder as ``bench_jobs.py --pyodide`` does.
+  a wheel of the core installed into a temporary folder as ``bench_jobs.py --pyodide`` does
+  (wall and Node's process CPU time, which counts its compiler and collector threads too).
 
 ``model_*`` figures time the equilibrium model alone (the scenario read once, then
 ``WaterModel.solve``); the others time the whole ``solve`` result a user gets (alkalinity,
@@ -128,25 +129,34 @@ const out = { python: py.runPython("import sys; sys.version.split()[0]") };
 for (const [name, params] of Object.entries(views)) {
   const text = JSON.stringify(params);
   parts(text, true);  // warm-up
-  const wall = [];
+  const wall = [], cpu = [];
   for (let k = 0; k < Number(nHead); k++) {
-    const t0 = performance.now();
+    const c0 = process.cpuUsage(), t0 = performance.now();
     parts(text, true);
     wall.push(performance.now() - t0);
+    const c1 = process.cpuUsage(c0);
+    cpu.push((c1.user + c1.system) / 1000);
   }
   out[name + "_headline_ms"] = median(wall);
+  out[name + "_headline_cpu_ms"] = median(cpu);
 }
 const text = JSON.stringify(views.default_water);
-const whole = [], head = [];
+const whole = [], head = [], wholeCpu = [], headCpu = [];
 for (let k = 0; k < Number(nCurves); k++) {
-  let t0 = performance.now();
+  let c0 = process.cpuUsage(), t0 = performance.now();
   parts(text, true);
   head.push(performance.now() - t0);
+  let c1 = process.cpuUsage(c0);
+  headCpu.push((c1.user + c1.system) / 1000);
+  c0 = process.cpuUsage();
   t0 = performance.now();
   parts(text, false);
   whole.push(performance.now() - t0);
+  c1 = process.cpuUsage(c0);
+  wholeCpu.push((c1.user + c1.system) / 1000);
 }
 out.default_water_curves_ms = median(whole) - median(head);
+out.default_water_curves_cpu_ms = median(wholeCpu) - median(headCpu);
 process.stdout.write(JSON.stringify(out));
 """
 

@@ -130,6 +130,8 @@ def held_all(sol) -> list[float]:
 
 def held(sol, j: int = 0) -> float:
     """Amount of component ``j`` held by the aqueous species [mol/L]; j = 0 gives T_H."""
+    if j == 0:  # each species' protons, found once per tableau (the same terms in the same order)
+        return math.fsum([aH * c for (aH, _), c in zip(_structure(sol.tableau), sol.conc) if c])
     return math.fsum(dict(sp.stoich).get(j, 0) * c for sp, c in zip(sol.tableau.species, sol.conc) if c)
 
 

@@ -338,6 +338,10 @@ def _cholesky_solve(H: list[list[float]], b: list[float]) -> list[float] | None:
 
 def _lstsq(rows: list[list[float]], rhs: list[float], k: int) -> list[float]:
     """Least-squares solution of rows @ n = rhs with k unknowns (normal equations)."""
+    if k == 1:  # one solid: the same sums and the same division as the factor of a 1 x 1 matrix
+        M11 = sum([r[0] * r[0] for r in rows])
+        if M11 > 0.0:
+            return [sum([r[0] * t for r, t in zip(rows, rhs)]) / M11]
     M = [[sum(r[a] * r[b] for r in rows) for b in range(k)] for a in range(k)]
     v = [sum(r[a] * t for r, t in zip(rows, rhs)) for a in range(k)]
     out = _cholesky_solve(M, v)
@@ -1326,11 +1330,12 @@ def _amounts(tab, active, resid, coupled, open_comp, pH, totals) -> list[float]:
     if not active:
         return []
     rows, rhs = [], []
+    stoich = [dict(tab.solids[s].stoich) for s in active]
     for j in coupled:
         if j in open_comp or (j == 0 and pH is not None):
             continue
         w = 1.0 / max(abs(totals[j]), abs(resid[j]), 1e-300)
-        rows.append([w * float(dict(tab.solids[s].stoich).get(j, 0)) for s in active])
+        rows.append([w * float(st.get(j, 0)) for st in stoich])
         rhs.append(w * resid[j])
     return _lstsq(rows, rhs, len(active))
 
