@@ -40,7 +40,7 @@ const INDEX_URL = new URL("./vendor/pyodide/", import.meta.url).href;
 // call gets the module compiled here (or, should that compile fail, compiles the file anew).
 const WASM_URL = new URL("./vendor/pyodide/pyodide.asm.wasm", import.meta.url).href;
 const wasmModule = WebAssembly.compileStreaming(fetch(WASM_URL));
-wasmModule.catch(() => {}); // a failure falls back below
+wasmModule.then(() => mark("wasm_compiled"), () => {}); // a failure falls back below
 const standIns = new WeakSet();
 const fetchFile = self.fetch.bind(self);
 // Pyodide's other files start loading now too, not once loadPyodide runs: the standard library
@@ -201,6 +201,7 @@ async function bootFromSnapshot(heap, manifestPromise, options) {
       return image;
     });
     const pyodide = await loadPyodide({ ...options, _loadSnapshot: bytes });
+    mark("restored");
     // Pyodide keeps its options; drop the image (tens of MB) now that it sits in the heap.
     if (pyodide._api?.config) pyodide._api.config._loadSnapshot = null;
     const stored = pyodide.globals.get("_acidscape_snapshot");
