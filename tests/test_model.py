@@ -316,6 +316,17 @@ def test_a_water_of_a_known_make_up_shares_its_tableau_and_answers_as_a_fresh_on
     for edits in ({"temperature_C": 25}, {"activity": "ideal"}, {"complexes": False},
                   {"systems": [{"id": "carbonate", "total": 2}]}):
         assert water_model(parsed(**edits)).tab is not first.tab, edits
+    # what one water does to its own model (its amounts; a tableau of shifted constants, as the
+    # calcium carbonate indices' uncertainty does) stays with it
+    import dataclasses
+
+    ksp = [s.log10_Ksp for s in first.tab.solids]
+    first.totals[1] *= 2.0
+    first.tab = dataclasses.replace(first.tab, solids=tuple(dataclasses.replace(s, log10_Ksp=s.log10_Ksp + 0.5)
+                                                            for s in first.tab.solids))
+    again = water_model(parsed())
+    assert [s.log10_Ksp for s in again.tab.solids] == ksp and again.tab is shared.tab
+    assert again.totals[1] == pytest.approx(first.totals[1] / 2.0, rel=1e-15)
 
 
 def test_a_warm_start_at_another_given_pH_gives_the_same_answer():
