@@ -16,8 +16,11 @@
 //
 // This module has no static imports: its first lines start the downloads, while the modules it
 // uses still load. The manifest goes first (the snapshot's name is in it), then the modules and
-// the runtime's wasm; once the manifest is in, the snapshot, then the wheel and Pyodide's other
-// files (the browser fetches a few files at a time from one host over HTTP/1.1).
+// the runtime's wasm; once the manifest is in, the snapshot, then the wheel (the browser fetches
+// a few files at a time from one host over HTTP/1.1). Pyodide's other files (standard library,
+// lock file, runtime module) are asked by loadPyodide itself: starting them here too changed
+// nothing measurable in the boot marks (the snapshot's download and the wasm's compile are the
+// longer waits).
 
 const MANIFEST_URL = new URL("./manifest.json", import.meta.url);
 const manifestResponse = fetch(MANIFEST_URL);
@@ -43,30 +46,8 @@ const wasmModule = WebAssembly.compileStreaming(fetch(WASM_URL));
 wasmModule.then(() => mark("wasm_compiled"), () => {}); // a failure falls back below
 const standIns = new WeakSet();
 const fetchFile = self.fetch.bind(self);
-// Pyodide's other files start loading now too, not once loadPyodide runs: the standard library
-// and the lock file are fetched here and their responses handed to Pyodide's first fetch of
-// each (a later fetch, e.g. by an ordinary boot after a failed snapshot, goes to the network),
-// and the runtime's module is imported (Pyodide's own import of the same URL then finds it).
-const early = new Map();
-const asked = new Set(); // URLs Pyodide has fetched already
-function fetchPyodideFiles() {
-  for (const name of ["python_stdlib.zip", "pyodide-lock.json"]) {
-    if (asked.has(INDEX_URL + name)) continue; // Pyodide was quicker
-    const response = fetchFile(INDEX_URL + name);
-    response.catch(() => {}); // Pyodide reports a failure when it reads the file
-    early.set(INDEX_URL + name, response);
-  }
-  import(INDEX_URL + "pyodide.asm.mjs").catch(() => {}); // Pyodide's import reports a failure
-}
 self.fetch = (input, init) => {
-  const url = String(input);
-  asked.add(url);
-  if (early.has(url)) {
-    const response = early.get(url);
-    early.delete(url);
-    return response;
-  }
-  if (url !== WASM_URL) return fetchFile(input, init);
+  if (String(input) !== WASM_URL) return fetchFile(input, init);
   const standIn = new Response(null, { headers: { "Content-Type": "application/wasm" } });
   standIns.add(standIn);
   return Promise.resolve(standIn);
@@ -243,7 +224,6 @@ async function boot() {
       return list;
     });
   files.catch(() => {}); // its failure is reported where it is awaited
-  manifestPromise.finally(fetchPyodideFiles).catch(() => {}); // after the snapshot's and the wheel's
   let sitePackages = null;
   const options = {
     ...pyodideOptions,
