@@ -16,6 +16,7 @@ Functions
 ---------
 handle(method, params_json) -> str     JSON dispatcher used by the page's worker
 stages(method, params_json) -> iterator of str or None     the same, answered in parts
+keep_answer(method, params_json) -> int     answer now and keep it (the page's build)
 """
 
 from __future__ import annotations
@@ -217,6 +218,61 @@ def _water_view(params: dict):
 _STAGED = {"water_view": _water_view}
 
 
+#: Answers kept by :func:`keep_answer`: (method, canonical parameters) -> the parts as
+#: :func:`stages` gave them (JSON strings, None at pauses). Empty unless a build filled it.
+_KEPT: dict[tuple[str, str], tuple[str | None, ...]] = {}
+
+
+def _canonical(params) -> str:
+    """One text per request, whatever the key order or spacing of the JSON it came in."""
+    return json.dumps(params, sort_keys=True, separators=(",", ":"), allow_nan=False)
+
+
+def keep_answer(method: str, params_json: str) -> int:
+    """Answer a request of the page's first view now and keep its parts, so that the same request
+    (same method and parameters, in any key order) is answered later by :func:`stages` from what
+    was kept instead of being computed again.
+
+    The page's build calls this for the starting water and each worked example before it saves
+    the Python heap (build_scripts/snapshot.mjs): the first view's figures are then in the image,
+    computed by this core from these very parameters, and a page opened on them draws them as
+    soon as Python is up. Only methods answered in parts are kept, only on success, and the table
+    only grows here (never while the page runs), so it cannot hold an answer to anything else.
+    e2e tests check that a page booted from the image shows what an ordinary boot computes.
+
+    Parameters
+    ----------
+    method : str
+        A method answered in parts (``"water_view"``) [-]
+    params_json : str
+        Its parameters as a JSON object [-]
+
+    Returns
+    -------
+    int
+        Characters of JSON kept for this request [-]
+
+    Examples
+    --------
+    >>> request = json.dumps({"systems": [{"id": "acetic", "total": 1}], "curve": {"points": 3}})
+    >>> computed = list(stages("water_view", request))
+    >>> keep_answer("water_view", request) > 0
+    True
+    >>> reordered = json.dumps({"curve": {"points": 3}, "systems": [{"total": 1, "id": "acetic"}]})
+    >>> list(stages("water_view", reordered)) == computed
+    True
+    >>> _KEPT.clear()
+    """
+    if method not in _STAGED:
+        raise InputError(f"only answers in parts are kept, not {method!r}", field=None)
+    parts = tuple(stages(method, params_json))
+    replies = [json.loads(p) for p in parts if p is not None]
+    if not replies or not all(reply.get("ok") for reply in replies):
+        raise InputError(f"{method} failed, so nothing is kept: {replies[-1:]}", field=None)
+    _KEPT[(method, _canonical(json.loads(params_json) if params_json else {}))] = parts
+    return sum(len(p) for p in parts if p is not None)
+
+
 def _failure(exc: Exception) -> str:
     if isinstance(exc, AcidscapeError):
         return json.dumps({"ok": False, "error": exc.to_dict()})
@@ -265,6 +321,11 @@ def stages(method: str, params_json: str):
             params = json.loads(params_json) if params_json else {}
         except (TypeError, ValueError) as exc:
             raise InputError(f"request parameters are not valid JSON: {exc}", field=None) from None
+        if _KEPT:
+            kept = _KEPT.get((method, _canonical(params)))
+            if kept is not None:
+                yield from kept
+                return
         for part in staged(params):
             yield None if part is None else json.dumps({"ok": True, "result": part}, allow_nan=False)
     except (AcidscapeError, ValueError, OverflowError, ZeroDivisionError, TypeError, KeyError) as exc:
