@@ -294,6 +294,7 @@ def make_snapshot(out: Path, wheel: Path, pyodide_version: str, encoding: str, s
         "skipped_modules": report["skipped"],
         "loaders": report["loaders"],
         "warmed": len(report["warmed"]),
+        "kept_answer_chars": report.get("kept_chars", 0),
         "start_request": report["start_request"],
     }
 

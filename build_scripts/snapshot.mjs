@@ -22,13 +22,17 @@
 // catalogue calls ("catalogues", "products"), and for the starting water (site/water-start.js,
 // the module water.js reads) and each worked example's water (site/presets.json): the water
 // job's request answered in full (dispatch.stages "water_view" with the page's curve grid),
-// "solve", and for an example its one-acid "distribution".
+// "solve", and for an example its one-acid "distribution". The water job's answers are also
+// kept (acidscape.boundary.dispatch.keep_answer): the same request later is answered from them,
+// so a page opened on the starting water or an example draws its first view as soon as Python
+// is up; any other water is computed as usual.
 // Files of the Emscripten file system do not survive a snapshot boot (imported modules do), so
 // the worker writes the wheel's files into site-packages again before Python starts (fsInit),
 // for anything imported or read lazily, and after the boot calls
 // __main__._acidscape_after_restore() (defined here, kept in the image).
 //
-// Prints one JSON line: {python, modules, skipped, loaders, warmed, start_request, seconds, bytes};
+// Prints one JSON line: {python, modules, skipped, loaders, warmed, kept_chars, start_request, seconds,
+// bytes} ("kept_chars": characters of JSON kept for the water job's answers);
 // "skipped" lists core modules that need a package Pyodide lacks (they are not imported, and
 // not part of the page); "warmed" the requests answered by name; "start_request" the starting
 // water's request (tests compare it with the one the page sends).
@@ -131,12 +135,18 @@ def _prepare(key_json, warm_json):
             raise RuntimeError(f"handle({method!r}) failed before the snapshot: {reply}")
 
     # Warm-up (see the head of build_scripts/snapshot.mjs): answered as the worker answers them.
-    from acidscape.boundary.dispatch import stages
+    # The water job's answers (dispatch.keep_answer) are kept in the image as well: a page opened
+    # on the starting water or an example draws them as soon as Python is up.
+    from acidscape.boundary.dispatch import keep_answer, stages
     warmed = []
+    kept_chars = 0
     for name, method, params in json.loads(warm_json):
-        parts = [json.loads(p) for p in stages(method, json.dumps(params)) if p is not None]
-        if not parts or not all(p.get("ok") for p in parts):
-            raise RuntimeError(f"{method} for {name} failed before the snapshot: {parts[-1:]}")
+        if method == "water_view":
+            kept_chars += keep_answer(method, json.dumps(params))
+        else:
+            parts = [json.loads(p) for p in stages(method, json.dumps(params)) if p is not None]
+            if not parts or not all(p.get("ok") for p in parts):
+                raise RuntimeError(f"{method} for {name} failed before the snapshot: {parts[-1:]}")
         warmed.append(f"{name}: {method}")
 
     import __main__
@@ -144,7 +154,7 @@ def _prepare(key_json, warm_json):
     __main__._acidscape_after_restore = _after_restore
     gc.collect()
     return json.dumps({"python": sys.version.split()[0], "modules": modules, "skipped": skipped,
-                       "loaders": loaders, "warmed": warmed})
+                       "loaders": loaders, "warmed": warmed, "kept_chars": kept_chars})
 
 _prepare(_snapshot_key_json, _snapshot_warm_json)
 `);
@@ -159,14 +169,13 @@ process.stdout.write(JSON.stringify(out) + "\n");
 
 /**
  * The requests of the page's first views, as [name, method, params]: the starting water's as
- * water.js sends it (its rows read as numbers, the conditions left at the core's defaults, as
- * the page's inputs start), and each worked example's as the page sends it once the example is
+ * water.js sends it (its rows read as numbers, the conditions its inputs start with), and each worked example's as the page sends it once the example is
  * applied (the saved scenario, with the same curve grid).
  */
 async function warmUpRequests(site) {
-  const { START_WATER, WATER_CURVE } = await import(pathToFileURL(join(site, "water-start.js")).href);
+  const { START_CONDITIONS, START_WATER, WATER_CURVE } = await import(pathToFileURL(join(site, "water-start.js")).href);
   const rows = (list) => list.map(({ id, total, unit }) => ({ id, total: Number(total), unit }));
-  const start = { systems: rows(START_WATER.systems), ions: rows(START_WATER.ions) };
+  const start = { ...START_CONDITIONS, systems: rows(START_WATER.systems), ions: rows(START_WATER.ions) };
   startRequest = { ...start, curve: WATER_CURVE };
   const requests = [["catalogues", "catalogues", {}], ["products", "products", {}],
     ["start", "water_view", startRequest], ["start", "solve", start]];

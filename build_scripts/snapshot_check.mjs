@@ -20,7 +20,7 @@ import { readFileSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { gunzipSync } from "node:zlib";
-import { expandImage } from "../site/snapshot-image.js";
+import { expandImage, makeRoom } from "../site/snapshot-image.js";
 import { wheelFiles, writeFiles } from "../site/wheel.js";
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -41,6 +41,15 @@ if (!entry) {
 let image = readFileSync(join(dist, entry.file));
 if (entry.encoding === "gzip") image = gunzipSync(image);
 const heap = () => expandImage(new Uint8Array(image.buffer, image.byteOffset, image.byteLength));
+// The runtime's memory must hold the heap before Pyodide copies it in, as in site/worker.js.
+for (const name of ["instantiate", "instantiateStreaming"]) {
+  const original = WebAssembly[name].bind(WebAssembly);
+  WebAssembly[name] = async (...args) => {
+    const result = await original(...args);
+    if (result.instance) makeRoom(result.instance, entry.bytes);
+    return result;
+  };
+}
 const files = await wheelFiles(new Uint8Array(readFileSync(join(dist, manifest.wheel))));
 
 const PROBE = `

@@ -34,3 +34,20 @@ export function expandImage(image) {
   if (at !== image.length) throw new Error("packed snapshot image has trailing bytes");
   return heap;
 }
+
+/**
+ * Grow a just-instantiated Pyodide runtime's memory so that a snapshot's heap fits: the memory
+ * starts at the size the wasm declares, and Pyodide copies the heap into it without growing it
+ * (a build that keeps answers in the image can outgrow that size). Call before Pyodide looks at
+ * the memory (worker.js and build_scripts/snapshot_check.mjs wrap WebAssembly's instantiation).
+ *
+ * @param {WebAssembly.Instance} instance  the runtime, just instantiated
+ * @param {number} heapBytes  the snapshot's size [bytes]; 0 for an ordinary boot
+ * @returns {number}  pages added
+ */
+export function makeRoom(instance, heapBytes) {
+  const memory = instance.exports.memory;
+  const missing = Math.ceil(heapBytes / 65536) - memory.buffer.byteLength / 65536;
+  if (missing > 0) memory.grow(missing);
+  return Math.max(missing, 0);
+}

@@ -18,5 +18,10 @@ export const START_WATER = {
   ],
 };
 
+// The conditions the water's inputs start with, as the page sends them (index.html's temperature
+// field and activity choice): the build's request must be the page's to the letter, since the
+// answer it keeps is found by its parameters (tests/e2e/test_boot_snapshot.py compares them).
+export const START_CONDITIONS = { temperature_C: 25, activity: "davies" };
+
 // The pH grid of the water's curves (fraction and log-concentration plots).
 export const WATER_CURVE = { pH_min: 0, pH_max: 14, points: 281 };

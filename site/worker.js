@@ -52,17 +52,28 @@ self.fetch = (input, init) => {
   standIns.add(standIn);
   return Promise.resolve(standIn);
 };
+// The runtime's memory starts at the size its wasm declares (30 MiB), and Pyodide copies a
+// snapshot into it without growing it. A snapshot whose heap outgrew that size at build time
+// (the answers the build keeps for the first views, dispatch.keep_answer) needs the memory grown
+// to the heap's size first: done here, as soon as the instance exists, before Pyodide looks at
+// its memory. 0 = no snapshot (an ordinary boot).
+let snapshotHeapBytes = 0;
+let makeRoom = null; // snapshot-image.js's, once imported (before any instantiation: see boot)
+const withRoom = (result) => {
+  if (snapshotHeapBytes) makeRoom(result.instance, snapshotHeapBytes);
+  return result;
+};
 const instantiateStreaming = WebAssembly.instantiateStreaming.bind(WebAssembly);
 WebAssembly.instantiateStreaming = async (source, imports) => {
   const response = await source;
-  if (!standIns.has(response)) return instantiateStreaming(response, imports);
+  if (!standIns.has(response)) return withRoom(await instantiateStreaming(response, imports));
   let module;
   try {
     module = await wasmModule;
   } catch {
-    return instantiateStreaming(fetchFile(WASM_URL), imports);
+    return withRoom(await instantiateStreaming(fetchFile(WASM_URL), imports));
   }
-  return { module, instance: await WebAssembly.instantiate(module, imports) };
+  return withRoom({ module, instance: await WebAssembly.instantiate(module, imports) });
 };
 
 // Messages to the page wait for py.js (its protocol version), in the order they were posted.
@@ -136,9 +147,11 @@ async function fetchSnapshot(entry) {
   }
   const image = await readExactly(body, entry.image_bytes, "the Python snapshot");
   mark("snapshot_fetched");
-  const [, , { expandImage }] = await imported;
-  const heap = expandImage(image);
+  const [, , decoders] = await imported;
+  makeRoom = decoders.makeRoom;
+  const heap = decoders.expandImage(image);
   if (heap.length !== entry.bytes) throw new Error(`the snapshot holds ${heap.length} bytes, the manifest says ${entry.bytes}`);
+  snapshotHeapBytes = heap.length;
   mark("snapshot_expanded");
   return heap;
 }
@@ -191,6 +204,7 @@ async function bootFromSnapshot(heap, manifestPromise, options) {
     }
     return pyodide;
   } catch (error) {
+    snapshotHeapBytes = 0; // the ordinary boot that follows starts with the runtime's own memory
     const why = String(error?.message || error);
     if (error instanceof NoSnapshot) console.info(`Python starts without a snapshot: ${why}`);
     else console.warn(`The Python snapshot could not be loaded (${why}); starting Python the ordinary way.`);
