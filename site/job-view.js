@@ -5,6 +5,7 @@
 // chemistry and no job's ids here: each view passes its own elements.
 
 import { fixed } from "./format.js";
+import { markBusy } from "./view.js";
 
 /** The element with this id; a missing one is a broken page, said at once. */
 export function byId(doc, id) {
@@ -91,10 +92,8 @@ export function listen(inputs, handler) {
   }
 }
 
-/** aria-busy on a results block. */
-export function markBusy(el, busy) {
-  el.setAttribute("aria-busy", busy ? "true" : "false");
-}
+/** aria-busy on a results block, after a short delay (view.js). */
+export { markBusy };
 
 /** Count one drawn result in the section's data-* (key in camelCase, e.g. "leadDrawn"). */
 export function countDrawn(section, key) {

@@ -3,6 +3,32 @@
 
 import { fixed, prettyFormula, sciNumber } from "./format.js";
 
+// A results block is marked busy (aria-busy, which dims it: style.css) only when its answer
+// takes longer than this: an edit answered within a few frames changes nothing on screen but
+// its figures, so the frame after the keystroke stays cheap and the answer is drawn sooner.
+const BUSY_AFTER_MS = 250;
+const busyTimers = new WeakMap();
+
+/**
+ * aria-busy on a results block: "true" once a computation has run for BUSY_AFTER_MS, "false"
+ * as soon as it ends.
+ *
+ * @param {Element} el  the results block
+ * @param {boolean} busy  a computation is running
+ */
+export function markBusy(el, busy) {
+  clearTimeout(busyTimers.get(el));
+  busyTimers.delete(el);
+  if (busy) {
+    busyTimers.set(el, setTimeout(() => {
+      busyTimers.delete(el);
+      el.setAttribute("aria-busy", "true");
+    }, BUSY_AFTER_MS));
+  } else if (el.getAttribute("aria-busy") !== "false") {
+    el.setAttribute("aria-busy", "false");
+  }
+}
+
 function byId(doc, id) {
   const el = doc.getElementById(id);
   if (!el) throw new Error(`the page lacks #${id}`);
@@ -223,7 +249,7 @@ export class DistributionView {
 
   /** @param {boolean} busy  a computation is running */
   setBusy(busy) {
-    this.results.setAttribute("aria-busy", busy ? "true" : "false");
+    markBusy(this.results, busy);
   }
 
   /**

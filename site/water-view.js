@@ -4,7 +4,7 @@
 
 import { embedSpeciesPlot } from "./plot.js";
 import { exportNumber, fixed, prettyFormula, sciNumber, unitLabel } from "./format.js";
-import { FieldMessages, markResults } from "./view.js";
+import { FieldMessages, markBusy, markResults } from "./view.js";
 
 export { unitLabel };
 
@@ -350,7 +350,7 @@ export class WaterView {
 
   /** @param {boolean} busy  a computation is running */
   setBusy(busy) {
-    this.results.setAttribute("aria-busy", busy ? "true" : "false");
+    markBusy(this.results, busy);
   }
 
   /**
