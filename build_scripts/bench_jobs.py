@@ -162,7 +162,10 @@ def indices_added(repeat: int) -> dict:
             "solve_without_indices_cpu_ms": solve_ms - idx_ms}
 
 
-def pyodide(repeat: int) -> dict:
+def run_in_pyodide(runner_source: str, payload, *args) -> dict:
+    """Run a Node.js script on this checkout's core in Pyodide (``build_scripts/node_modules/
+    pyodide``): the script gets argv ``[pyodide_dir, wheel, payload.json, *args]`` and prints one
+    JSON object, returned here (or ``{"error": ...}``). Shared by the bench scripts."""
     pyodide_dir = ROOT / "build_scripts" / "node_modules" / "pyodide"
     if not pyodide_dir.exists():
         return {"error": "Pyodide is not installed: run `npm ci --prefix build_scripts`"}
@@ -172,14 +175,18 @@ def pyodide(repeat: int) -> dict:
                         "-q", "-w", str(tmp), str(ROOT)], check=True, capture_output=True, timeout=300)
         wheel = next(tmp.glob("acidscape-*.whl"))
         runner = tmp / "runner.mjs"
-        runner.write_text(PYODIDE_RUNNER)
-        cases = tmp / "cases.json"
-        cases.write_text(json.dumps(CASES))
-        proc = subprocess.run(["node", str(runner), str(pyodide_dir), str(wheel), str(cases), str(repeat)],
+        runner.write_text(runner_source)
+        data = tmp / "payload.json"
+        data.write_text(json.dumps(payload))
+        proc = subprocess.run(["node", str(runner), str(pyodide_dir), str(wheel), str(data), *map(str, args)],
                               capture_output=True, text=True, timeout=1200)
         if proc.returncode != 0:
             return {"error": proc.stderr.strip()[-2000:]}
         return json.loads(proc.stdout)
+
+
+def pyodide(repeat: int) -> dict:
+    return run_in_pyodide(PYODIDE_RUNNER, CASES, repeat)
 
 
 def against_targets(out: dict) -> list[dict]:

@@ -32,7 +32,6 @@ import os
 import statistics
 import subprocess
 import sys
-import tempfile
 import time
 from pathlib import Path
 
@@ -163,23 +162,9 @@ process.stdout.write(JSON.stringify(out));
 
 def pyodide_water_views(n_head: int = 51, n_curves: int = 5) -> dict:
     """The water views' medians [ms] in Pyodide under Node.js (``build_scripts/node_modules/pyodide``)."""
-    pyodide_dir = ROOT / "build_scripts" / "node_modules" / "pyodide"
-    if not pyodide_dir.exists():
-        return {"error": "Pyodide is not installed: run `npm ci --prefix build_scripts`"}
-    with tempfile.TemporaryDirectory() as tmp:
-        tmp = Path(tmp)
-        subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "--no-index",
-                        "-q", "-w", str(tmp), str(ROOT)], check=True, capture_output=True, timeout=300)
-        wheel = next(tmp.glob("acidscape-*.whl"))
-        runner = tmp / "runner.mjs"
-        runner.write_text(PYODIDE_RUNNER)
-        views = tmp / "views.json"
-        views.write_text(json.dumps(WATER_VIEWS))
-        proc = subprocess.run(["node", str(runner), str(pyodide_dir), str(wheel), str(views), str(n_head),
-                               str(n_curves)], capture_output=True, text=True, timeout=1200)
-        if proc.returncode != 0:
-            return {"error": proc.stderr.strip()[-2000:]}
-        return json.loads(proc.stdout)
+    from bench_jobs import run_in_pyodide
+
+    return run_in_pyodide(PYODIDE_RUNNER, WATER_VIEWS, n_head, n_curves)
 
 
 def _uptime() -> str | None:
