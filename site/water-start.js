@@ -19,8 +19,9 @@ export const START_WATER = {
 };
 
 // The conditions the water's inputs start with, as the page sends them (index.html's temperature
-// field and activity choice): the build's request must be the page's to the letter, since the
-// answer it keeps is found by its parameters (tests/e2e/test_boot_snapshot.py compares them).
+// field and activity choice), and what water.js puts back when a link's value cannot be used:
+// the build's request must be the page's to the letter, since the answer it keeps is found by
+// its parameters (tests/e2e/test_boot_snapshot.py compares them).
 export const START_CONDITIONS = { temperature_C: 25, activity: "davies" };
 
 // The pH grid of the water's curves (fraction and log-concentration plots).

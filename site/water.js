@@ -17,7 +17,7 @@ import { fixed, prettyFormula, unitLabel } from "./format.js";
 import { parseInteger, parseNumber, parseNumberList, parseTemperature } from "./parse.js";
 import { computation, holdPending } from "./section.js";
 import { ION_WORDS } from "./share.js";
-import { START_WATER, WATER_CURVE } from "./water-start.js";
+import { START_CONDITIONS, START_WATER, WATER_CURVE } from "./water-start.js";
 
 const LOG_SPAN = 14; // decades shown on the log-concentration axis
 const CURVE = WATER_CURVE;
@@ -34,7 +34,7 @@ const EXAMPLE = START_WATER;
 // be used (see reset()).
 // input id -> [readConditions key, default text, what happens then, the input's name]
 const CONDITION_DEFAULTS = {
-  "water-temperature": ["temperature", "25", "25 °C is used", "temperature"],
+  "water-temperature": ["temperature", String(START_CONDITIONS.temperature_C), `${START_CONDITIONS.temperature_C} °C is used`, "temperature"],
   "water-fixed-ph": ["fixedPH", "", "the pH is solved for", "pH to speciate at"],
   "water-pco2": ["pco2", "", "the water is treated as closed to air", "CO₂ partial pressure"],
   "water-istrength-value": ["iValue", "", "the ionic strength is worked out from the composition", "ionic strength"],
@@ -643,14 +643,15 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
     };
     const iMode = sc.ionic_strength_M != null ? "given" : sc.tds_mg_per_L != null ? "tds" : sc.conductance_uS_per_cm != null ? "conductance" : "composition";
     const m = sc.measured && typeof sc.measured === "object" ? sc.measured : null;
-    const activity = ["ideal", "davies", "extended-debye-huckel"].includes(sc.activity ?? "davies") ? sc.activity ?? "davies" : "davies";
+    const wantedActivity = sc.activity ?? START_CONDITIONS.activity;
+    const activity = ["ideal", "davies", "extended-debye-huckel"].includes(wantedActivity) ? wantedActivity : START_CONDITIONS.activity;
     if (sc.activity && activity !== sc.activity) messages.push(`water: activity model ${JSON.stringify(sc.activity).slice(0, 40)} is unknown; Davies is used`);
     const unit = obj.display?.unit;
     if (unit !== undefined && !DISPLAY_UNITS.includes(unit)) messages.push(`water: display unit ${JSON.stringify(unit).slice(0, 40)} is not offered; kept ${view.readConditions().displayUnit}`);
     const alkUnit = m?.alkalinity?.unit;
     if (m && !["mg/L as CaCO3", "meq/L"].includes(alkUnit)) messages.push(`water: alkalinity unit ${JSON.stringify(alkUnit ?? null).slice(0, 40)} is not offered; mg/L as CaCO3 is used`);
     view.setConditions({
-      temperature: text(sc.temperature_C ?? 25),
+      temperature: text(sc.temperature_C ?? START_CONDITIONS.temperature_C),
       activity,
       iMode,
       iValue: text(sc.ionic_strength_M ?? sc.tds_mg_per_L ?? sc.conductance_uS_per_cm),
@@ -691,8 +692,8 @@ export function mountWater({ py, view, plots, palette, systems, ions, co2MolarMa
         view.setConditions({ measured: false });
         refreshRowNotes();
         notes.push(`water: the measurements (pH "${String(c.measuredPH).slice(0, 20)}", alkalinity "${String(c.alkValue).slice(0, 20)}") could not be used (${why}); they were left out`);
-      } else if (id === "water-activity" && c.activity !== "davies") {
-        view.setConditions({ activity: "davies" });
+      } else if (id === "water-activity" && c.activity !== START_CONDITIONS.activity) {
+        view.setConditions({ activity: START_CONDITIONS.activity });
         notes.push(`water: activity model could not be used (${why}); Davies is used instead`);
       }
     }
